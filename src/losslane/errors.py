@@ -1,0 +1,45 @@
+"""The project's error and warning types, and the validity-range warning helper."""
+
+from __future__ import annotations
+
+import warnings
+
+import numpy as np
+
+
+class LossLaneError(ValueError):
+    """Bad input: the message names the key, the value and what would be valid.
+
+    The command line turns it into one line on stderr and exit code 2.
+    """
+
+
+class LossLaneWarning(UserWarning):
+    """A result is returned, but an input lies outside a model's stated validity range."""
+
+
+def warn(message: str) -> None:
+    warnings.warn(message, LossLaneWarning, stacklevel=3)
+
+
+def check_range(model: str, name: str, value, low: float | None, high: float | None) -> None:
+    """Warn when ``value`` (scalar or array) leaves ``[low, high]`` of ``model``."""
+    v = np.asarray(value, dtype=float)
+    if v.size == 0:
+        return
+    vmin, vmax = float(np.nanmin(v)), float(np.nanmax(v))
+    below = low is not None and vmin < low * (1 - 1e-12)
+    above = high is not None and vmax > high * (1 + 1e-12)
+    if below or above:
+        lo = "-inf" if low is None else f"{low:g}"
+        hi = "inf" if high is None else f"{high:g}"
+        shown = f"{vmin:.4g}" if vmin == vmax else f"{vmin:.4g}..{vmax:.4g}"
+        warn(
+            f"{model}: {name} = {shown} is outside the model's validity range [{lo}, {hi}]; "
+            "the result is an extrapolation"
+        )
+
+
+def require(condition: bool, message: str) -> None:
+    if not condition:
+        raise LossLaneError(message)

@@ -1,0 +1,198 @@
+"""Coplanar waveguide on a finite substrate (CPW) and grounded coplanar waveguide (GCPW).
+
+Methods and validity (ranges from memory):
+
+* quasi-static, conformal mapping: C. P. Wen, IEEE Trans. MTT 17, 1969 (CPW);
+  G. Ghione and C. Naldi, Electronics Letters 20, 1984 and 19, 1983 (finite substrate and
+  lower ground plane). With k0 = a/b (a = w/2, b = w/2 + gap, h the substrate):
+  CPW  eps_eff = 1 + (eps_r - 1)/2 * [K(k1)/K(k1')]/[K(k0)/K(k0')], k1 = sinh(pi a/2h)/sinh(pi b/2h),
+       Z0 = 30 pi / sqrt(eps_eff) * K(k0')/K(k0);
+  GCPW k3 = tanh(pi a/2h)/tanh(pi b/2h), q = [K(k3)/K(k3')]/[K(k0)/K(k0') + K(k3)/K(k3')],
+       eps_eff = 1 + q (eps_r - 1), Z0 = 60 pi / sqrt(eps_eff) / [K(k0)/K(k0') + K(k3)/K(k3')].
+  Semi-infinite coplanar grounds are assumed (ground width >> gap).
+* strip thickness: Gupta, Garg, Bahl, Bhartia, *Microstrip Lines and Slotlines*, 2nd ed.,
+  1996: Delta = (1.25 t/pi)(1 + ln(4 pi w/t)), k_e = (w + Delta)/(w + 2 gap - Delta),
+  eps_eff,t = eps_eff - 0.7 (eps_eff - 1) t/gap / (K(k0)/K(k0') + 0.7 t/gap); for t well
+  below the gap.
+* dispersion: M. Y. Frankel et al., IEEE Trans. MTT 39(6), 1991:
+  sqrt(eps_eff(f)) = sqrt(eps_q) + (sqrt(eps_r) - sqrt(eps_q)) / (1 + a (f/f_TE)^-1.8),
+  f_TE = c/(4 h sqrt(eps_r - 1)), a = exp(u ln(w/gap) + v), u = 0.54 - 0.64 p + 0.015 p^2,
+  v = 0.43 - 0.86 p + 0.54 p^2, p = ln(w/h); fitted for 0.1 <= w/h <= 5,
+  0.1 <= w/gap <= 5, 1.5 <= eps_r <= 50, f <= 10 f_TE. Applied to GCPW as well (an
+  approximation: the grounded line has the same surface-wave mechanism). The impedance
+  follows with constant inductance, Z0(f) = Z0 sqrt(eps_q / eps_eff(f)).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy.special import ellipk
+
+from losslane.errors import LossLaneError, check_range, warn
+from losslane.materials.dielectric import Dielectric
+from losslane.xsection.base import CrossSection, Metal, positive
+from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
+
+
+def k_over_kp(k: np.ndarray) -> np.ndarray:
+    """K(k)/K(k') with k' = sqrt(1 - k^2), for 0 < k < 1 (modulus k, not parameter)."""
+    k = np.asarray(k, float)
+    return ellipk(k * k) / ellipk(1.0 - k * k)
+
+
+def thickness_delta(w: float, t: float) -> float:
+    return 0.0 if t <= 0 else 1.25 * t / np.pi * (1.0 + np.log(4.0 * np.pi * w / t))
+
+
+def _k0(w: float, gap: float, t: float) -> float:
+    d = thickness_delta(w, t)
+    return (w + d) / (w + 2 * gap - d)
+
+
+def cpw_z_air(w: float, gap: float, t: float, h: float, grounded: bool) -> float:
+    """Air-filled impedance (thickness-corrected) of CPW or GCPW."""
+    r0 = float(k_over_kp(_k0(w, gap, t)))
+    if not grounded:
+        return ETA0 / (4.0 * r0)
+    a, b = w / 2.0, w / 2.0 + gap
+    r3 = float(k_over_kp(np.tanh(np.pi * a / (2 * h)) / np.tanh(np.pi * b / (2 * h))))
+    return ETA0 / (2.0 * (r0 + r3))
+
+
+def cpw_eps_quasi_static(
+    w: float, gap: float, t: float, h: float, er: np.ndarray, grounded: bool
+) -> np.ndarray:
+    """Quasi-static eps_eff with the thickness correction."""
+    a, b = w / 2.0, w / 2.0 + gap
+    r0z = float(k_over_kp(a / b))  # zero-thickness modulus in the filling factor
+    if grounded:
+        r3 = float(k_over_kp(np.tanh(np.pi * a / (2 * h)) / np.tanh(np.pi * b / (2 * h))))
+        eps = 1.0 + r3 / (r0z + r3) * (er - 1.0)
+    else:
+        r1 = float(k_over_kp(np.sinh(np.pi * a / (2 * h)) / np.sinh(np.pi * b / (2 * h))))
+        eps = 1.0 + (er - 1.0) / 2.0 * r1 / r0z
+    if t > 0:
+        x = 0.7 * t / gap
+        eps = eps - (eps - 1.0) * x / (r0z + x)
+    return eps
+
+
+def frankel_eps(
+    w: float, gap: float, h: float, er: np.ndarray, eps_q: np.ndarray, f: np.ndarray
+) -> np.ndarray:
+    """Frankel et al. (1991) dispersive eps_eff(f) of a coplanar line."""
+    p = np.log(w / h)
+    u = 0.54 - 0.64 * p + 0.015 * p * p
+    v = 0.43 - 0.86 * p + 0.54 * p * p
+    a = np.exp(u * np.log(w / gap) + v)
+    f_te = C0 / (4.0 * h * np.sqrt(np.maximum(er - 1.0, 1e-12)))
+    ratio = f / f_te
+    with np.errstate(divide="ignore"):
+        denom = 1.0 + a * np.where(ratio > 0, ratio, 1.0) ** -1.8
+    frac = np.where(ratio > 0, 1.0 / denom, 0.0)
+    root = np.sqrt(eps_q) + (np.sqrt(er) - np.sqrt(eps_q)) * frac
+    return root * root
+
+
+@dataclass(frozen=True)
+class Coplanar(CrossSection):
+    """Centre strip of ``width``, ``gap`` to the coplanar grounds on each side, on a
+    substrate of ``height``; ``grounded`` adds the lower return plane (GCPW)."""
+
+    width: float
+    gap: float
+    height: float
+    thickness: float
+    dielectric: Dielectric
+    grounded: bool = False
+    metal: Metal = field(default_factory=Metal)
+
+    @property
+    def kind(self) -> str:  # type: ignore[override]
+        return "gcpw" if self.grounded else "cpw"
+
+    def __post_init__(self) -> None:
+        positive(self.kind, "width", self.width)
+        positive(self.kind, "gap", self.gap)
+        positive(self.kind, "height", self.height)
+        positive(self.kind, "thickness", self.thickness, allow_zero=True)
+        if 2 * self.gap - thickness_delta(self.width, self.thickness) <= 0:
+            raise LossLaneError(
+                f"{self.kind}: thickness = {self.thickness:g} m is too large for gap = "
+                f"{self.gap:g} m (the thickness-widened strip would close the gap); use a "
+                "wider gap or the field solver"
+            )
+
+    def check_validity(self, er: np.ndarray, f: np.ndarray) -> None:
+        name = f"{self.kind} (conformal mapping)"
+        check_range(name, "thickness/gap", self.thickness / self.gap, 0, 0.5)
+        if np.any(f > 0):
+            disp = f"{self.kind} dispersion (Frankel)"
+            check_range(disp, "width/height", self.width / self.height, 0.1, 5)
+            check_range(disp, "width/gap", self.width / self.gap, 0.1, 5)
+            check_range(disp, "dk", er, 1.5, 50)
+            f_te = C0 / (4.0 * self.height * np.sqrt(np.maximum(er - 1.0, 1e-12)))
+            check_range(disp, "f/f_TE", f / f_te, 0, 10)
+
+    def z_air(self, w: float, gap: float, t: float, h: float) -> float:
+        return cpw_z_air(w, gap, t, h, self.grounded)
+
+    def _groups(self) -> list[ConductorGroup]:
+        w, s, t, h = self.width, self.gap, self.thickness, self.height
+        if t == 0:
+            warn(
+                f"{self.kind}: thickness = 0, so conductor loss is not modelled "
+                "(give the copper thickness, e.g. '1.4 mil' or '1 oz')"
+            )
+            return []
+        scale = min(w, s, t)
+        za = lambda p: self.z_air(*p)  # noqa: E731
+        p0 = (w, s, t, h)
+        # one thickness parameter serves strip and grounds: each gets half its recession
+        g_sig = wheeler_factor(za, p0, lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - d, p[3]), scale)
+        g_cop = wheeler_factor(za, p0, lambda p, d: (p[0], p[1] + d, p[2] - d, p[3]), scale)
+        m = self.metal
+        groups = [
+            ConductorGroup("strip", g_sig, g_sig * w * t, m.conductor, m.foil),
+            ConductorGroup("coplanar grounds", g_cop, t / 2.0, m.conductor, m.foil),
+        ]
+        if self.grounded:
+            g_pl = wheeler_factor(za, p0, lambda p, d: (p[0], p[1], p[2], p[3] + d), min(scale, h))
+            groups.append(ConductorGroup("plane", g_pl, m.plane_thickness, m.conductor, m.planes))
+        return groups
+
+    def modes(self, f: np.ndarray) -> dict[str, Mode]:
+        f = np.atleast_1d(np.asarray(f, float))
+        eps_r = self.dielectric.eps(f)
+        er = eps_r.real
+        self.check_validity(er, f)
+        w, s, t, h = self.width, self.gap, self.thickness, self.height
+        eps_q = cpw_eps_quasi_static(w, s, t, h, er, self.grounded)
+        eps_f = frankel_eps(w, s, h, er, eps_q, f)
+        z_air = self.z_air(w, s, t, h)
+        z0 = z_air / np.sqrt(eps_f)
+        return {"single": assemble_mode("single", f, eps_r, eps_f, z0, self._groups())}
+
+
+def CPW(
+    width: float,
+    gap: float,
+    height: float,
+    thickness: float,
+    dielectric: Dielectric,
+    metal: Metal | None = None,
+) -> Coplanar:
+    return Coplanar(width, gap, height, thickness, dielectric, False, metal or Metal())
+
+
+def GCPW(
+    width: float,
+    gap: float,
+    height: float,
+    thickness: float,
+    dielectric: Dielectric,
+    metal: Metal | None = None,
+) -> Coplanar:
+    return Coplanar(width, gap, height, thickness, dielectric, True, metal or Metal())

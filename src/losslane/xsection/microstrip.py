@@ -1,0 +1,193 @@
+"""Microstrip: a strip on a dielectric sheet over one return plane, air above.
+
+Methods and validity (coefficients as published; ranges from the papers, from memory):
+
+* quasi-static Z0 and eps_eff: Hammerstad & Jensen, "Accurate models for microstrip
+  computer-aided design", IEEE MTT-S Digest 1980 -- Z0 within 0.03 % for
+  0.01 <= w/h <= 1000 (air line), eps_eff within 0.2 % for 0.01 <= w/h <= 100 and
+  1 <= eps_r <= 128; with their strip-thickness correction, meant for thin strips
+  (t/h up to about 0.5 is taken as its range here);
+* eps_eff dispersion: Kirschning & Jansen, Electronics Letters 18(6), 1982 -- within
+  0.6 % for 0.1 <= w/h <= 100, 1 <= eps_r <= 20, h/lambda0 <= 0.13;
+* Z0 dispersion: Jansen & Kirschning, AEU 37, 1983 -- for 0.1 <= w/h <= 10,
+  1 <= eps_r <= 18, h/lambda0 <= 0.13.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from losslane.errors import check_range, warn
+from losslane.materials.dielectric import Dielectric
+from losslane.xsection.base import CrossSection, Metal, positive
+from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
+
+
+def hj_z_air(u: np.ndarray) -> np.ndarray:
+    """Hammerstad-Jensen impedance of the air-filled microstrip of width ratio u = w/h."""
+    u = np.asarray(u, float)
+    fu = 6.0 + (2 * np.pi - 6.0) * np.exp(-((30.666 / u) ** 0.7528))
+    return ETA0 / (2 * np.pi) * np.log(fu / u + np.sqrt(1.0 + (2.0 / u) ** 2))
+
+
+def hj_eps_eff(u: np.ndarray, er: np.ndarray) -> np.ndarray:
+    """Hammerstad-Jensen quasi-static effective permittivity (zero thickness)."""
+    u = np.asarray(u, float)
+    er = np.asarray(er, float)
+    a = (
+        1.0
+        + np.log((u**4 + (u / 52.0) ** 2) / (u**4 + 0.432)) / 49.0
+        + np.log(1.0 + (u / 18.1) ** 3) / 18.7
+    )
+    b = 0.564 * ((er - 0.9) / (er + 3.0)) ** 0.053
+    return (er + 1.0) / 2.0 + (er - 1.0) / 2.0 * (1.0 + 10.0 / u) ** (-a * b)
+
+
+def hj_thickness(u: float, t_h: float, er: np.ndarray) -> tuple[float, np.ndarray]:
+    """Hammerstad-Jensen strip-thickness correction: widened ratios (u1 in air, ur in the
+    dielectric) of a strip of thickness ratio t_h = t/h."""
+    er = np.asarray(er, float)
+    if t_h <= 0:
+        return u, np.full(er.shape, u)
+    du1 = t_h / np.pi * np.log(1.0 + 4.0 * np.e / (t_h / np.tanh(np.sqrt(6.517 * u)) ** 2))
+    dur = 0.5 * (1.0 + 1.0 / np.cosh(np.sqrt(np.maximum(er - 1.0, 0.0)))) * du1
+    return u + du1, u + dur
+
+
+def hj_quasi_static(w: float, h: float, t: float, er: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(Z0, eps_eff) of the Hammerstad-Jensen model with thickness correction."""
+    u = w / h
+    u1, ur = hj_thickness(u, t / h, er)
+    e_r = hj_eps_eff(ur, er)
+    z_r = hj_z_air(ur)
+    z0 = z_r / np.sqrt(e_r)
+    eps_eff = e_r * (hj_z_air(u1) / z_r) ** 2
+    return z0, eps_eff
+
+
+def kj_eps_eff(u: float, er: np.ndarray, eps0: np.ndarray, fn: np.ndarray) -> np.ndarray:
+    """Kirschning-Jansen dispersive eps_eff(f); fn = f[GHz] * h[mm]."""
+    p1 = 0.27488 + (0.6315 + 0.525 / (1.0 + 0.0157 * fn) ** 20) * u - 0.065683 * np.exp(-8.7513 * u)
+    p2 = 0.33622 * (1.0 - np.exp(-0.03442 * er))
+    p3 = 0.0363 * np.exp(-4.6 * u) * (1.0 - np.exp(-((fn / 38.7) ** 4.97)))
+    p4 = 1.0 + 2.751 * (1.0 - np.exp(-((er / 15.916) ** 8)))
+    p = p1 * p2 * ((0.1844 + p3 * p4) * fn) ** 1.5763
+    return er - (er - eps0) / (1.0 + p)
+
+
+def jk_z0(
+    u: float, er: np.ndarray, eps0: np.ndarray, eps_f: np.ndarray, z00: np.ndarray, fn: np.ndarray
+) -> np.ndarray:
+    """Jansen-Kirschning dispersive Z0(f); fn = f[GHz] * h[mm]."""
+    r1 = 0.03891 * er**1.4
+    r2 = 0.267 * u**7
+    r3 = 4.766 * np.exp(-3.228 * u**0.641)
+    r4 = 0.016 + (0.0514 * er) ** 4.524
+    r5 = (fn / 28.843) ** 12
+    r6 = 22.2 * u**1.92
+    r7 = 1.206 - 0.3144 * np.exp(-r1) * (1.0 - np.exp(-r2))
+    r8 = 1.0 + 1.275 * (1.0 - np.exp(-0.004625 * r3 * er**1.674 * (fn / 18.365) ** 2.745))
+    r9 = (
+        5.086
+        * r4
+        * r5
+        / (0.3838 + 0.386 * r4)
+        * np.exp(-r6)
+        / (1.0 + 1.2992 * r5)
+        * (er - 1.0) ** 6
+        / (1.0 + 10.0 * (er - 1.0) ** 6)
+    )
+    r10 = 0.00044 * er**2.136 + 0.0184
+    r11 = (fn / 19.47) ** 6 / (1.0 + 0.0962 * (fn / 19.47) ** 6)
+    r12 = 1.0 / (1.0 + 0.00245 * u**2)
+    r13 = 0.9408 * eps_f**r8 - 0.9603
+    r14 = (0.9408 - r9) * eps0**r8 - 0.9603
+    r15 = 0.707 * r10 * (fn / 12.3) ** 1.097
+    r16 = 1.0 + 0.0503 * er**2 * r11 * (1.0 - np.exp(-((u / 15.0) ** 6)))
+    r17 = r7 * (1.0 - 1.1241 * r12 / r16 * np.exp(-0.026 * fn**1.15656 - r15))
+    with np.errstate(invalid="ignore", divide="ignore"):
+        ratio = r13 / r14
+    # Near eps_r = 1 both terms approach -0.0195 and the ratio loses meaning; the line is
+    # then TEM-like and has no impedance dispersion.
+    ok = np.isfinite(ratio) & (ratio > 0)
+    return z00 * np.where(ok, np.abs(ratio) ** r17, 1.0)
+
+
+@dataclass(frozen=True)
+class Microstrip(CrossSection):
+    """A strip of ``width`` and ``thickness`` at ``height`` (strip bottom to plane) above
+    the return plane, on ``dielectric``, air above. Lengths in metres.
+    """
+
+    width: float
+    height: float
+    thickness: float
+    dielectric: Dielectric
+    metal: Metal = field(default_factory=Metal)
+    kind = "microstrip"
+
+    def __post_init__(self) -> None:
+        positive(self.kind, "width", self.width)
+        positive(self.kind, "height", self.height)
+        positive(self.kind, "thickness", self.thickness, allow_zero=True)
+
+    def check_validity(self, er: np.ndarray, fn: np.ndarray) -> None:
+        u = self.width / self.height
+        check_range("microstrip (Hammerstad-Jensen)", "width/height", u, 0.01, 100)
+        check_range("microstrip (Hammerstad-Jensen)", "dk", er, 1, 128)
+        check_range(
+            "microstrip (Hammerstad-Jensen thickness)",
+            "thickness/height",
+            self.thickness / self.height,
+            0,
+            0.5,
+        )
+        if np.any(fn > 0):
+            check_range("microstrip dispersion (Kirschning-Jansen)", "width/height", u, 0.1, 100)
+            check_range("microstrip dispersion (Kirschning-Jansen)", "dk", er, 1, 20)
+            check_range(
+                "microstrip dispersion (Kirschning-Jansen)",
+                "height/wavelength",
+                fn / (C0 * 1e-6),
+                0,
+                0.13,
+            )
+
+    def z_air(self, w: float, h: float, t: float) -> float:
+        """Air-filled impedance with thickness correction (the incremental-inductance base)."""
+        u1, _ = hj_thickness(w / h, t / h, np.array([1.0]))
+        return float(hj_z_air(u1))
+
+    def _groups(self) -> list[ConductorGroup]:
+        w, h, t = self.width, self.height, self.thickness
+        if t == 0:
+            warn(
+                "microstrip: thickness = 0, so the strip's conductor loss is not modelled "
+                "(give the copper thickness, e.g. '1.4 mil' or '1 oz')"
+            )
+            return []
+        scale = min(w, h, t)
+        za = lambda p: self.z_air(*p)  # noqa: E731
+        g_strip = wheeler_factor(
+            za, (w, h, t), lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - 2 * d), scale
+        )
+        g_plane = wheeler_factor(za, (w, h, t), lambda p, d: (p[0], p[1] + d, p[2]), scale)
+        m = self.metal
+        return [
+            ConductorGroup("strip", g_strip, g_strip * w * t, m.conductor, m.foil),
+            ConductorGroup("plane", g_plane, m.plane_thickness, m.conductor, m.planes),
+        ]
+
+    def modes(self, f: np.ndarray) -> dict[str, Mode]:
+        f = np.atleast_1d(np.asarray(f, float))
+        eps_r = self.dielectric.eps(f)
+        er = eps_r.real
+        u = self.width / self.height
+        fn = f * 1e-9 * self.height * 1e3
+        self.check_validity(er, fn)
+        z00, eps0 = hj_quasi_static(self.width, self.height, self.thickness, er)
+        eps_f = kj_eps_eff(u, er, eps0, fn)
+        z0 = jk_z0(u, er, eps0, eps_f, z00, fn)
+        return {"single": assemble_mode("single", f, eps_r, eps_f, z0, self._groups())}
