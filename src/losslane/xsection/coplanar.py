@@ -5,7 +5,8 @@ Methods and validity (ranges from memory):
 * quasi-static, conformal mapping: C. P. Wen, IEEE Trans. MTT 17, 1969 (CPW);
   G. Ghione and C. Naldi, Electronics Letters 20, 1984 and 19, 1983 (finite substrate and
   lower ground plane). With k0 = a/b (a = w/2, b = w/2 + gap, h the substrate):
-  CPW  eps_eff = 1 + (eps_r - 1)/2 * [K(k1)/K(k1')]/[K(k0)/K(k0')], k1 = sinh(pi a/2h)/sinh(pi b/2h),
+  CPW  eps_eff = 1 + (eps_r - 1)/2 * [K(k1)/K(k1')]/[K(k0)/K(k0')],
+       k1 = sinh(pi a/2h)/sinh(pi b/2h),
        Z0 = 30 pi / sqrt(eps_eff) * K(k0')/K(k0);
   GCPW k3 = tanh(pi a/2h)/tanh(pi b/2h), q = [K(k3)/K(k3')]/[K(k0)/K(k0') + K(k3)/K(k3')],
        eps_eff = 1 + q (eps_r - 1), Z0 = 60 pi / sqrt(eps_eff) / [K(k0)/K(k0') + K(k3)/K(k3')].
