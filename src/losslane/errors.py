@@ -4,8 +4,6 @@ from __future__ import annotations
 
 import warnings
 
-import numpy as np
-
 
 class LossLaneError(ValueError):
     """Bad input: the message names the key, the value and what would be valid.
@@ -24,6 +22,8 @@ def warn(message: str) -> None:
 
 def check_range(model: str, name: str, value, low: float | None, high: float | None) -> None:
     """Warn when ``value`` (scalar or array) leaves ``[low, high]`` of ``model``."""
+    import numpy as np
+
     v = np.asarray(value, dtype=float)
     if v.size == 0:
         return

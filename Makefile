@@ -1,0 +1,36 @@
+# Every target creates .venv and installs what it needs on first use.
+PYTHON ?= python3
+VENV := .venv
+PY := $(VENV)/bin/python
+STAMP := $(VENV)/.installed
+
+.PHONY: demo test lint format bench clean
+
+$(STAMP): pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(PY) -m pip install --quiet --upgrade pip
+	$(PY) -m pip install --quiet -e '.[dev]'
+	touch $(STAMP)
+
+demo: $(STAMP)
+	$(VENV)/bin/losslane line microstrip --width 6mil --height 3.5mil --thickness 1.4mil \
+	  --dk 3.7 --df 0.009 --dk-at 10GHz --foil very-low-profile --at 1GHz,10GHz,28GHz
+
+test: $(STAMP)
+	$(PY) -m pytest -q
+	$(VENV)/bin/ruff check src tests benchmarks
+	$(VENV)/bin/ruff format --check src tests benchmarks
+
+lint: $(STAMP)
+	$(VENV)/bin/ruff check src tests benchmarks
+	$(VENV)/bin/ruff format --check src tests benchmarks
+
+format: $(STAMP)
+	$(VENV)/bin/ruff check --fix src tests benchmarks
+	$(VENV)/bin/ruff format src tests benchmarks
+
+bench: $(STAMP)
+	$(PY) benchmarks/run.py
+
+clean:
+	rm -rf $(VENV) losslane-demo .pytest_cache .ruff_cache

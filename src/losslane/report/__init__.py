@@ -1,0 +1,1 @@
+"""Outputs: tables, plots and reports."""
