@@ -1,0 +1,411 @@
+"""The scenario file (TOML) -> validated objects. Every error names the section, the key and
+the value, and says what would be valid; unknown keys are errors with the closest valid key
+suggested, so a typo is never silently ignored. Paths are relative to the scenario file.
+
+The format is documented in the README ("Writing a scenario").
+"""
+
+from __future__ import annotations
+
+import re
+import tomllib
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from losslane.errors import LossLaneError
+from losslane.materials.dielectric import Dielectric
+from losslane.materials.library import Library, dielectric_from_spec, foil_from_spec, load_library
+from losslane.materials.roughness import Roughness
+from losslane.spec import check_keys, quantity, suggest, text
+from losslane.xsection.base import CrossSection
+from losslane.xsection.factory import section_from_spec
+
+TOP_KEYS = ("name", "note", "library", "sweep", "ports", "dielectrics", "foils", "lines",
+            "channel", "budget")
+SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
+PORT_ORDERS = ("in-in-out-out", "in-out-in-out")
+MAX_POINTS = 200_001
+
+
+@dataclass(frozen=True)
+class Sweep:
+    start: float
+    stop: float
+    step: float | None
+    points: int
+
+    def frequencies(self) -> np.ndarray:
+        return np.linspace(self.start, self.stop, self.points)
+
+
+@dataclass(frozen=True)
+class Ports:
+    reference: float = 50.0
+    order: str = "in-in-out-out"
+
+
+@dataclass(frozen=True)
+class Segment:
+    """One [[channel]] entry: ``type`` is one of SEGMENT_TYPES; ``values`` the parsed SI
+    quantities; ``section`` the cross-section of a line; ``path`` an imported file."""
+
+    index: int
+    type: str
+    name: str
+    values: dict[str, float] = field(default_factory=dict)
+    section: CrossSection | None = None
+    line: str | None = None
+    dielectric: Dielectric | None = None
+    path: Path | None = None
+    order: str | None = None
+
+    @property
+    def where(self) -> str:
+        return f"[[channel]] #{self.index + 1} ({self.name})"
+
+
+@dataclass(frozen=True)
+class Check:
+    at: float
+    max_loss: float | None
+    min_return_loss: float | None
+
+
+@dataclass(frozen=True)
+class Budget:
+    data_rate: float | None
+    modulation: str
+    max_loss: float | None
+    checks: tuple[Check, ...]
+    fit_start: float | None = None
+    fit_stop: float | None = None
+
+    @property
+    def baud(self) -> float | None:
+        if self.data_rate is None:
+            return None
+        return self.data_rate / (2.0 if self.modulation == "pam4" else 1.0)
+
+    @property
+    def nyquist(self) -> float | None:
+        """Nyquist frequency = baud rate / 2 (common practice)."""
+        return None if self.baud is None else self.baud / 2.0
+
+
+@dataclass
+class Scenario:
+    name: str
+    path: Path | None
+    sweep: Sweep
+    ports: Ports
+    lines: dict[str, CrossSection]
+    channel: list[Segment]
+    budget: Budget | None
+    library: Library
+    dielectrics: dict[str, Dielectric]
+    foils: dict[str, Roughness]
+    source_text: str = ""
+
+    @property
+    def conductors(self) -> int:
+        """1 for a single-ended (2-port) channel, 2 for a differential (4-port) one."""
+        return _conductors(self.channel)
+
+    def frequencies(self) -> np.ndarray:
+        return self.sweep.frequencies()
+
+
+def _conductors(channel: list[Segment]) -> int:
+    n = None
+    first = None
+    for seg in channel:
+        if seg.section is None:
+            continue
+        if n is None:
+            n, first = seg.section.n_conductors, seg
+        elif seg.section.n_conductors != n:
+            kinds = {1: "single-ended", 2: "differential pair"}
+            raise LossLaneError(
+                f"{seg.where}: line {seg.line!r} is a {kinds.get(seg.section.n_conductors)} "
+                f"but {first.where} ({first.line!r}) is a {kinds.get(n)}; a channel is either "
+                "all single-ended (2-port) or all pairs (4-port)")
+    return n or 1
+
+
+def load_scenario(path: str | Path) -> Scenario:
+    """Read and validate a scenario file."""
+    p = Path(path)
+    if not p.is_file():
+        raise LossLaneError(f"scenario file {str(p)!r} does not exist")
+    text_ = p.read_text(encoding="utf-8")
+    return parse_scenario(text_, base=p.parent, path=p)
+
+
+def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None) -> Scenario:
+    try:
+        data = tomllib.loads(source)
+    except tomllib.TOMLDecodeError as exc:
+        where = str(path) if path else "scenario"
+        raise LossLaneError(f"{where}: not valid TOML: {exc}") from None
+    base = Path(base)
+    check_keys("scenario", data, TOP_KEYS, required=("sweep", "channel"))
+    name = data.get("name") or (path.stem if path else "channel")
+    if not isinstance(name, str) or not name.strip():
+        raise LossLaneError(f"scenario: name = {name!r}: expected a non-empty text")
+
+    libs = data.get("library", [])
+    if isinstance(libs, str):
+        libs = [libs]
+    if not isinstance(libs, list) or not all(isinstance(x, str) for x in libs):
+        raise LossLaneError(f"scenario: library = {libs!r}: expected a file name or a list "
+                            "of file names")
+    library = load_library([base / x for x in libs])
+
+    dielectrics: dict[str, Dielectric] = {}
+    for dname, spec in _tables(data, "dielectrics").items():
+        dielectrics[dname] = dielectric_from_spec(dname, spec, f"[dielectrics.{dname}]")
+    foils: dict[str, Roughness] = {}
+    for fname, spec in _tables(data, "foils").items():
+        foils[fname] = foil_from_spec(fname, spec, f"[foils.{fname}]")
+
+    def resolve_dielectric(n: str, where: str) -> Dielectric:
+        if n in dielectrics:
+            return dielectrics[n]
+        if n in library.dielectrics:
+            return library.dielectrics[n]
+        raise LossLaneError(f"{where} = {n!r}: unknown dielectric; not in [dielectrics] nor "
+                            f"in the library; {suggest(n, [*dielectrics, *library.dielectrics])}")
+
+    def resolve_foil(n: str, where: str) -> Roughness:
+        if n in foils:
+            return foils[n]
+        if n in library.foils:
+            return library.foils[n]
+        raise LossLaneError(f"{where} = {n!r}: unknown foil; not in [foils] nor in the "
+                            f"library; {suggest(n, [*foils, *library.foils])}")
+
+    lines: dict[str, CrossSection] = {}
+    for lname, spec in _tables(data, "lines").items():
+        lines[lname] = section_from_spec(spec, f"[lines.{lname}]", resolve_dielectric,
+                                         resolve_foil)
+
+    sweep = _sweep(data["sweep"])
+    ports = _ports(data.get("ports", {}))
+    channel = _channel(data["channel"], lines, base, resolve_dielectric)
+    budget = _budget(data["budget"]) if "budget" in data else None
+    sc = Scenario(name=name.strip(), path=path, sweep=sweep, ports=ports, lines=lines,
+                  channel=channel, budget=budget, library=library, dielectrics=dielectrics,
+                  foils=foils, source_text=source)
+    _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
+    return sc
+
+
+def _tables(data: Mapping, key: str) -> dict[str, Mapping]:
+    value = data.get(key, {})
+    if not isinstance(value, Mapping):
+        raise LossLaneError(f"[{key}]: expected a table of named entries, e.g. [{key}.core]")
+    for name, spec in value.items():
+        if not isinstance(spec, Mapping):
+            raise LossLaneError(f"[{key}.{name}]: expected a table of keys, got {spec!r}")
+    return dict(value)
+
+
+def _sweep(spec: object) -> Sweep:
+    where = "[sweep]"
+    if not isinstance(spec, Mapping):
+        raise LossLaneError(f"{where}: expected a table with start, stop and step or points")
+    check_keys(where, spec, ("start", "stop", "step", "points"), required=("start", "stop"))
+    start = quantity(where, spec, "start", "frequency", required=True)
+    stop = quantity(where, spec, "stop", "frequency", required=True)
+    if start < 0:
+        raise LossLaneError(f"{where}.start = {spec['start']!r}: must be >= 0 Hz")
+    if stop <= start:
+        raise LossLaneError(f"{where}.stop = {spec['stop']!r}: must be above start "
+                            f"({spec['start']!r})")
+    if ("step" in spec) == ("points" in spec):
+        raise LossLaneError(f"{where}: give exactly one of step (e.g. \"10 MHz\") or points "
+                            "(e.g. 4001)")
+    if "step" in spec:
+        step = quantity(where, spec, "step", "frequency", required=True)
+        if step <= 0:
+            raise LossLaneError(f"{where}.step = {spec['step']!r}: must be > 0 Hz")
+        n = (stop - start) / step
+        points = int(np.floor(n + 1e-9)) + 1
+        if abs(n - round(n)) > 1e-6 * max(1.0, n):
+            raise LossLaneError(f"{where}.step = {spec['step']!r} does not divide the range "
+                                f"{spec['start']!r}..{spec['stop']!r} into whole steps; "
+                                "adjust stop or step, or give points")
+        points = int(round(n)) + 1
+    else:
+        pts = spec["points"]
+        if isinstance(pts, bool) or not isinstance(pts, int) or pts < 2:
+            raise LossLaneError(f"{where}.points = {pts!r}: expected a whole number >= 2")
+        points, step = pts, None
+    if points > MAX_POINTS:
+        raise LossLaneError(f"{where}: {points} frequency points is more than the "
+                            f"{MAX_POINTS} allowed; use a coarser step")
+    return Sweep(start, stop, step, points)
+
+
+def _ports(spec: object) -> Ports:
+    where = "[ports]"
+    if not isinstance(spec, Mapping):
+        raise LossLaneError(f"{where}: expected a table with reference and order")
+    check_keys(where, spec, ("reference", "order"))
+    ref = quantity(where, spec, "reference", "resistance", default=50.0)
+    if ref <= 0:
+        raise LossLaneError(f"{where}.reference = {spec['reference']!r}: must be > 0 ohm")
+    order = text(where, spec, "order", PORT_ORDERS, "in-in-out-out")
+    return Ports(ref, order)
+
+
+_SEGMENT_KEYS = {
+    "line": ("line", "length", "name"),
+    "via": ("via", "name"),
+    "capacitor": ("capacitor", "name"),
+    "series": ("series", "name"),
+    "shunt": ("shunt", "name"),
+    "touchstone": ("touchstone", "name", "order"),
+}
+
+
+def _channel(entries: object, lines: dict[str, CrossSection], base: Path,
+             resolve_dielectric) -> list[Segment]:
+    if not isinstance(entries, list) or not entries:
+        raise LossLaneError("[[channel]]: expected one or more [[channel]] segments, in order "
+                            "from the transmitter")
+    out = []
+    for i, entry in enumerate(entries):
+        where = f"[[channel]] #{i + 1}"
+        if not isinstance(entry, Mapping):
+            raise LossLaneError(f"{where}: expected a table")
+        types = [t for t in SEGMENT_TYPES if t in entry]
+        if len(types) != 1:
+            allowed = ", ".join(SEGMENT_TYPES)
+            if not types:
+                check_keys(where, entry, SEGMENT_TYPES + ("length", "name", "order"))
+            raise LossLaneError(f"{where}: give exactly one of {allowed} "
+                                f"(found {', '.join(types) or 'none'})")
+        kind = types[0]
+        check_keys(where, entry, _SEGMENT_KEYS[kind])
+        name = entry.get("name")
+        if name is not None and (not isinstance(name, str) or not name.strip()):
+            raise LossLaneError(f"{where}.name = {name!r}: expected a non-empty text")
+        out.append(_segment(i, kind, entry, where, name, lines, base, resolve_dielectric))
+    names = [s.name for s in out]
+    for i, s in enumerate(out):
+        if names.count(s.name) > 1:
+            # repeated labels would make the budget ambiguous; number them
+            k = names[: i + 1].count(s.name)
+            object.__setattr__(s, "name", f"{s.name} ({k})")
+    return out
+
+
+def _segment(i: int, kind: str, entry: Mapping, where: str, name: str | None,
+             lines: dict[str, CrossSection], base: Path, resolve_dielectric) -> Segment:
+    if kind == "line":
+        lname = entry["line"]
+        if not isinstance(lname, str) or lname not in lines:
+            raise LossLaneError(f"{where}.line = {lname!r}: no such [lines.*] section; "
+                                f"{suggest(str(lname), lines)}")
+        length = quantity(where, entry, "length", "length", required=True)
+        if length <= 0:
+            raise LossLaneError(f"{where}.length = {entry['length']!r}: must be > 0")
+        return Segment(i, "line", name or lname, {"length": length}, section=lines[lname],
+                       line=lname)
+    body = entry[kind]
+    w = f"{where}.{kind}"
+    if kind == "touchstone":
+        if isinstance(body, str):
+            fname, order = body, entry.get("order")
+        else:
+            raise LossLaneError(f"{w} = {body!r}: expected a file name, e.g. "
+                                "\"models/connector.s4p\"")
+        if order is not None and order not in PORT_ORDERS:
+            raise LossLaneError(f"{where}.order = {order!r}: valid values are "
+                                f"{', '.join(repr(o) for o in PORT_ORDERS)}")
+        p = (base / fname).resolve()
+        if not p.is_file():
+            raise LossLaneError(f"{w} = {fname!r}: file {str(p)!r} does not exist (paths are "
+                                "relative to the scenario file)")
+        if not re.search(r"\.s\d+p$", p.name, re.IGNORECASE):
+            raise LossLaneError(f"{w} = {fname!r}: expected a Touchstone file (.s2p, .s4p)")
+        return Segment(i, "touchstone", name or p.stem, path=p, order=order)
+    if not isinstance(body, Mapping):
+        raise LossLaneError(f"{w} = {body!r}: expected an inline table, e.g. {kind} = {{ ... }}")
+    if kind == "via":
+        check_keys(w, body, ("barrel", "stub", "impedance", "dielectric"),
+                   required=("barrel", "impedance", "dielectric"))
+        vals = {"barrel": quantity(w, body, "barrel", "length", required=True),
+                "stub": quantity(w, body, "stub", "length", default=0.0),
+                "impedance": quantity(w, body, "impedance", "resistance", required=True)}
+        if vals["barrel"] <= 0 or vals["stub"] < 0 or vals["impedance"] <= 0:
+            raise LossLaneError(f"{w}: barrel and impedance must be > 0 and stub >= 0 "
+                                f"(got {dict(body)})")
+        d = body["dielectric"]
+        if not isinstance(d, str):
+            raise LossLaneError(f"{w}.dielectric = {d!r}: expected a dielectric name")
+        return Segment(i, "via", name or "via", vals,
+                       dielectric=resolve_dielectric(d, f"{w}.dielectric"))
+    if kind == "capacitor":
+        check_keys(w, body, ("value", "esl", "esr"), required=("value",))
+        vals = {"value": quantity(w, body, "value", "capacitance", required=True),
+                "esl": quantity(w, body, "esl", "inductance", default=0.0),
+                "esr": quantity(w, body, "esr", "resistance", default=0.0)}
+        if vals["value"] <= 0 or vals["esl"] < 0 or vals["esr"] < 0:
+            raise LossLaneError(f"{w}: value must be > 0, esl and esr >= 0 (got {dict(body)})")
+        return Segment(i, "capacitor", name or "capacitor", vals)
+    if kind == "series":
+        check_keys(w, body, ("resistance", "inductance"))
+        vals = {"resistance": quantity(w, body, "resistance", "resistance", default=0.0),
+                "inductance": quantity(w, body, "inductance", "inductance", default=0.0)}
+        if vals["resistance"] < 0 or vals["inductance"] < 0 or not any(vals.values()):
+            raise LossLaneError(f"{w}: give resistance and/or inductance, >= 0 "
+                                f"(got {dict(body)})")
+        return Segment(i, "series", name or "series part", vals)
+    check_keys(w, body, ("capacitance",), required=("capacitance",))
+    vals = {"capacitance": quantity(w, body, "capacitance", "capacitance", required=True)}
+    if vals["capacitance"] <= 0:
+        raise LossLaneError(f"{w}.capacitance = {body['capacitance']!r}: must be > 0")
+    return Segment(i, "shunt", name or "shunt capacitance", vals)
+
+
+def _budget(spec: object) -> Budget:
+    where = "[budget]"
+    if not isinstance(spec, Mapping):
+        raise LossLaneError(f"{where}: expected a table")
+    check_keys(where, spec, ("data_rate", "modulation", "max_loss", "check", "fit_start",
+                             "fit_stop"))
+    rate = quantity(where, spec, "data_rate", "data rate")
+    if rate is not None and rate <= 0:
+        raise LossLaneError(f"{where}.data_rate = {spec['data_rate']!r}: must be > 0")
+    modulation = text(where, spec, "modulation", ("nrz", "pam4"), "nrz")
+    max_loss = quantity(where, spec, "max_loss", "decibel")
+    if max_loss is not None and rate is None:
+        raise LossLaneError(f"{where}: max_loss is the allowance at Nyquist and needs "
+                            "data_rate (e.g. \"32 Gb/s\")")
+    checks = []
+    raw = spec.get("check", [])
+    if not isinstance(raw, list):
+        raise LossLaneError(f"{where}.check: expected [[budget.check]] entries")
+    for i, c in enumerate(raw):
+        w = f"[[budget.check]] #{i + 1}"
+        if not isinstance(c, Mapping):
+            raise LossLaneError(f"{w}: expected a table")
+        check_keys(w, c, ("at", "max_loss", "min_return_loss"), required=("at",))
+        chk = Check(quantity(w, c, "at", "frequency", required=True),
+                    quantity(w, c, "max_loss", "decibel"),
+                    quantity(w, c, "min_return_loss", "decibel"))
+        if chk.max_loss is None and chk.min_return_loss is None:
+            raise LossLaneError(f"{w}: give max_loss and/or min_return_loss")
+        checks.append(chk)
+    fit_start = quantity(where, spec, "fit_start", "frequency")
+    fit_stop = quantity(where, spec, "fit_stop", "frequency")
+    return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop)
+
+
+__all__ = ["Budget", "Check", "Ports", "Scenario", "Segment", "Sweep", "load_scenario",
+           "parse_scenario"]
