@@ -17,7 +17,8 @@ Models (each tends to 1 at low frequency, where the skin depth dwarfs the roughn
 * :class:`Graded` -- a rough, possibly plated surface (e.g. a gold flash on nickel on
   copper) as a graded stack whose complex surface impedance comes from scikit-rf's
   ``tlineFunctions.surface_impedance`` (Tegowski et al., IEEE T-MTT 71(2), 2023; Gold and
-  Helmreich, EuMC 2016); K = Z_s(stack) / Z_s(smooth base copper), complex.
+  Helmreich, EuMC 2016); K = Z_s(stack) / Z_s(smooth base copper), complex, both taken at
+  the mean plane of the outermost boundary (where the line's dimensions are measured).
 """
 
 from __future__ import annotations
@@ -28,7 +29,10 @@ from functools import lru_cache
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.materials.conductor import Conductor
+from losslane.materials.conductor import MU0, Conductor
+
+C0 = 299_792_458.0
+ETA0 = MU0 * C0
 
 
 def _positive(model: str, key: str, value: float) -> float:
@@ -266,5 +270,13 @@ def _graded_factor_table(
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)
         zs = surface_impedance(fgrid, mats, rms_roughness=max(model.rq, 0.0), boundary_loc=locs)
+    # scikit-rf refers Zs to the start of its computation span, 5 rms heights out in the
+    # outside medium (x_start in its source); move it back to the mean plane through that
+    # lossless slab, or the slab's reactance j w mu0 5 rq would be added to the line's
+    # inductance (and shift Z0 and delay) for no physical reason.
+    reach = 5.0 * max(model.rq, 1e-14)
+    eta = ETA0 / np.sqrt(model.outside_dk)
+    t = 1j * np.tan(2 * np.pi * fgrid * np.sqrt(model.outside_dk) / C0 * reach)
+    zs = eta * (zs - eta * t) / (eta - zs * t)
     k = zs / conductor.surface_impedance(fgrid)
     return np.log(fgrid), k
