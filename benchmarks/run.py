@@ -66,7 +66,7 @@ def main(argv: list[str]) -> int:
         except Exception:  # report and go on with the other modules
             failures += 1
             print(f"{path.name}: failed\n{traceback.format_exc()}", file=sys.stderr)
-    header = ("module", "benchmark", "measured", "target", "unit", "")
+    header = ("module", "benchmark", "measured", "target", "unit", "result")
     body = []
     for mod, (name, measured, target, unit) in rows:
         verdict = "" if target is None else ("ok" if measured <= target else "MISSED")
