@@ -17,7 +17,8 @@ Models (each tends to 1 at low frequency, where the skin depth dwarfs the roughn
 * :class:`Graded` -- a rough, possibly plated surface (e.g. a gold flash on nickel on
   copper) as a graded stack whose complex surface impedance comes from scikit-rf's
   ``tlineFunctions.surface_impedance`` (Tegowski et al., IEEE T-MTT 71(2), 2023; Gold and
-  Helmreich, EuMC 2016); K = Z_s(stack) / Z_s(smooth base copper), complex.
+  Helmreich, EuMC 2016); K = Z_s(stack) / Z_s(smooth base copper), complex, both taken at
+  the mean plane of the outermost boundary (where the line's dimensions are measured).
 """
 
 from __future__ import annotations
@@ -28,7 +29,10 @@ from functools import lru_cache
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.materials.conductor import Conductor
+from losslane.materials.conductor import MU0, Conductor
+
+C0 = 299_792_458.0
+ETA0 = MU0 * C0
 
 
 def _positive(model: str, key: str, value: float) -> float:
@@ -217,10 +221,16 @@ class Graded(Roughness):
             return out
         lo, hi = float(f[pos].min()), float(f[pos].max())
         grid, k = _graded_factor_table(self, conductor, lo, hi)
-        # K varies slowly with log f; a 48-point table interpolated in log f stays well
-        # inside scikit-rf's own 1e-6 refinement tolerance for the smooth curves it gives.
+        # K varies smoothly with log f: a cubic spline through 16 points per decade stays
+        # within about 1e-6 of scikit-rf's direct result (its own refinement tolerance);
+        # straight-line interpolation of the same table was off by up to 1e-3.
         lf = np.log(f[pos])
-        out[pos] = np.interp(lf, grid, k.real) + 1j * np.interp(lf, grid, k.imag)
+        if grid.size < 4:
+            out[pos] = np.interp(lf, grid, k.real) + 1j * np.interp(lf, grid, k.imag)
+        else:
+            from scipy.interpolate import CubicSpline
+
+            out[pos] = CubicSpline(grid, k)(lf)
         return out
 
     def saturation(self) -> float:
@@ -251,7 +261,7 @@ def _graded_factor_table(
 
     from skrf.tlineFunctions import surface_impedance
 
-    n = 2 if lo == hi else 48
+    n = 2 if lo == hi else int(np.clip(np.ceil(16 * np.log10(hi / lo)) + 1, 8, 400))
     fgrid = np.geomspace(lo, hi if hi > lo else lo * 1.0001, n)
     mats = [{"ep_r": model.outside_dk}]
     mats += [{"sigma": x.sigma, "mu_r": x.mu_r} for x in model.layers]
@@ -260,5 +270,13 @@ def _graded_factor_table(
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", RuntimeWarning)
         zs = surface_impedance(fgrid, mats, rms_roughness=max(model.rq, 0.0), boundary_loc=locs)
+    # scikit-rf refers Zs to the start of its computation span, 5 rms heights out in the
+    # outside medium (x_start in its source); move it back to the mean plane through that
+    # lossless slab, or the slab's reactance j w mu0 5 rq would be added to the line's
+    # inductance (and shift Z0 and delay) for no physical reason.
+    reach = 5.0 * max(model.rq, 1e-14)
+    eta = ETA0 / np.sqrt(model.outside_dk)
+    t = 1j * np.tan(2 * np.pi * fgrid * np.sqrt(model.outside_dk) / C0 * reach)
+    zs = eta * (zs - eta * t) / (eta - zs * t)
     k = zs / conductor.surface_impedance(fgrid)
     return np.log(fgrid), k

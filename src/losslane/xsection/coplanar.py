@@ -119,7 +119,7 @@ class Coplanar(CrossSection):
         positive(self.kind, "gap", self.gap)
         positive(self.kind, "height", self.height)
         positive(self.kind, "thickness", self.thickness, allow_zero=True)
-        if 2 * self.gap - thickness_delta(self.width, self.thickness) <= 0:
+        if self.gap - thickness_delta(self.width, self.thickness) <= 0:
             raise LossLaneError(
                 f"{self.kind}: thickness = {self.thickness:g} m is too large for gap = "
                 f"{self.gap:g} m (the thickness-widened strip would close the gap); use a "

@@ -82,7 +82,7 @@ def jk_z0(
 ) -> np.ndarray:
     """Jansen-Kirschning dispersive Z0(f); fn = f[GHz] * h[mm]."""
     r1 = 0.03891 * er**1.4
-    r2 = 0.267 * u**7
+    r2 = 0.2671 * u**7
     r3 = 4.766 * np.exp(-3.228 * u**0.641)
     r4 = 0.016 + (0.0514 * er) ** 4.524
     r5 = (fn / 28.843) ** 12
