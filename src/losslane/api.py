@@ -14,18 +14,28 @@ from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
 
 
-def make_section(spec: Mapping, where: str = "line", library: Library | None = None
-                 ) -> CrossSection:
+def make_section(
+    spec: Mapping, where: str = "line", library: Library | None = None
+) -> CrossSection:
     """A cross-section from scenario-style keys, names resolved in the material library."""
     lib = library or load_library()
     return section_from_spec(spec, where, lib.dielectric, lib.foil)
 
 
-def line(kind: str, *, at: str | Iterable[str] = "1GHz,10GHz,28GHz",
-         dk: float | None = None, df: float = 0.0, dk_at: str | None = None,
-         dielectric: str | Dielectric | None = None, dielectric_model: str = "wideband-debye",
-         foil: str | Roughness | None = None, library_files: Iterable[Path | str] = (),
-         where: str | Where = "line", **geometry: str) -> dict:
+def line(
+    kind: str,
+    *,
+    at: str | Iterable[str] = "1GHz,10GHz,28GHz",
+    dk: float | None = None,
+    df: float = 0.0,
+    dk_at: str | None = None,
+    dielectric: str | Dielectric | None = None,
+    dielectric_model: str = "wideband-debye",
+    foil: str | Roughness | None = None,
+    library_files: Iterable[Path | str] = (),
+    where: str | Where = "line",
+    **geometry: str,
+) -> dict:
     """Properties of one line (the result of ``losslane line --json``).
 
     ``geometry`` takes the scenario keys with units, e.g. ``width="6 mil"``.

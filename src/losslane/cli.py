@@ -44,14 +44,26 @@ def cli() -> None:
     """
 
 
-LENGTH_OPTIONS = ("width", "thickness", "height", "below", "above", "gap", "spacing",
-                  "plane_thickness")
+LENGTH_OPTIONS = (
+    "width",
+    "thickness",
+    "height",
+    "below",
+    "above",
+    "gap",
+    "spacing",
+    "plane_thickness",
+)
 
 
 def _geometry_options(func):
     for name in reversed(LENGTH_OPTIONS):
-        func = click.option(f"--{name.replace('_', '-')}", name, metavar="LENGTH",
-                            help=f"{name.replace('_', ' ')} with a unit, e.g. 5mil, 0.127mm")(func)
+        func = click.option(
+            f"--{name.replace('_', '-')}",
+            name,
+            metavar="LENGTH",
+            help=f"{name.replace('_', ' ')} with a unit, e.g. 5mil, 0.127mm",
+        )(func)
     return func
 
 
@@ -60,19 +72,38 @@ def _material_options(func):
         click.option("--dk", type=float, help="relative permittivity of the dielectric"),
         click.option("--df", type=float, help="loss tangent of the dielectric (default 0)"),
         click.option("--dk-at", metavar="FREQ", help="frequency of the --dk/--df values"),
-        click.option("--dielectric-model", type=click.Choice(["wideband-debye", "constant"]),
-                     default="wideband-debye", show_default=True,
-                     help="causal wideband Debye fit, or constant (non-causal)"),
-        click.option("--dielectric", "dielectric_name", metavar="NAME",
-                     help="a dielectric from the library (see `losslane materials`)"),
+        click.option(
+            "--dielectric-model",
+            type=click.Choice(["wideband-debye", "constant"]),
+            default="wideband-debye",
+            show_default=True,
+            help="causal wideband Debye fit, or constant (non-causal)",
+        ),
+        click.option(
+            "--dielectric",
+            "dielectric_name",
+            metavar="NAME",
+            help="a dielectric from the library (see `losslane materials`)",
+        ),
         click.option("--foil", metavar="NAME", help="a copper foil from the library"),
-        click.option("--roughness-model", type=click.Choice(["none", "hammerstad", "groiss"]),
-                     help="roughness model with --rq, instead of --foil"),
+        click.option(
+            "--roughness-model",
+            type=click.Choice(["none", "hammerstad", "groiss"]),
+            help="roughness model with --rq, instead of --foil",
+        ),
         click.option("--rq", metavar="LENGTH", help="RMS roughness for --roughness-model"),
-        click.option("--conductivity", metavar="S/m", help="conductor conductivity "
-                     "(default copper, 5.8e7 S/m)"),
-        click.option("--library", "library_files", multiple=True, metavar="FILE",
-                     help="extra library file(s) with [dielectrics.*] / [foils.*] entries"),
+        click.option(
+            "--conductivity",
+            metavar="S/m",
+            help="conductor conductivity (default copper, 5.8e7 S/m)",
+        ),
+        click.option(
+            "--library",
+            "library_files",
+            multiple=True,
+            metavar="FILE",
+            help="extra library file(s) with [dielectrics.*] / [foils.*] entries",
+        ),
     ]
     for opt in reversed(opts):
         func = opt(func)
@@ -93,17 +124,25 @@ def line_spec(kind: str, options: dict, where) -> dict:
     if dk is not None and name is not None:
         raise LossLaneError("give either --dielectric NAME or --dk/--df/--dk-at, not both")
     if dk is None and name is None:
-        raise LossLaneError("missing dielectric: give --dk (with --df and --dk-at) or "
-                            "--dielectric NAME (see `losslane materials`)")
+        raise LossLaneError(
+            "missing dielectric: give --dk (with --df and --dk-at) or "
+            "--dielectric NAME (see `losslane materials`)"
+        )
     if dk is not None:
         model = options.get("dielectric_model", "wideband-debye")
         at = options.get("dk_at")
         if at is None and model == "wideband-debye":
-            raise LossLaneError("--dk-at is missing: the frequency at which --dk/--df hold "
-                                "(e.g. 10GHz); or use --dielectric-model constant")
-        spec["dielectric"] = make_dielectric(dk, options.get("df") or 0.0,
-                                             parse_frequency(at, "--dk-at") if at else None,
-                                             model, "dielectric")
+            raise LossLaneError(
+                "--dk-at is missing: the frequency at which --dk/--df hold "
+                "(e.g. 10GHz); or use --dielectric-model constant"
+            )
+        spec["dielectric"] = make_dielectric(
+            dk,
+            options.get("df") or 0.0,
+            parse_frequency(at, "--dk-at") if at else None,
+            model,
+            "dielectric",
+        )
     else:
         spec["dielectric"] = name
         if options.get("df") is not None or options.get("dk_at") is not None:
@@ -133,10 +172,21 @@ def line_spec(kind: str, options: dict, where) -> dict:
 @click.argument("kind")
 @_geometry_options
 @_material_options
-@click.option("--solver", type=click.Choice(["closed-form", "field"]), default="closed-form",
-              show_default=True, help="closed-form models or the 2-D field solver")
-@click.option("--at", "at", default="1GHz,10GHz,28GHz", show_default=True, metavar="FREQS",
-              help="frequencies, comma-separated (e.g. 1GHz,10GHz or 1,10,28GHz)")
+@click.option(
+    "--solver",
+    type=click.Choice(["closed-form", "field"]),
+    default="closed-form",
+    show_default=True,
+    help="closed-form models or the 2-D field solver",
+)
+@click.option(
+    "--at",
+    "at",
+    default="1GHz,10GHz,28GHz",
+    show_default=True,
+    metavar="FREQS",
+    help="frequencies, comma-separated (e.g. 1GHz,10GHz or 1,10,28GHz)",
+)
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
 def line_command(kind: str, at: str, as_json: bool, **options) -> None:
     """Impedance, delay, loss per inch and RLGC of one cross-section.

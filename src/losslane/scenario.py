@@ -23,8 +23,18 @@ from losslane.spec import check_keys, quantity, suggest, text
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
 
-TOP_KEYS = ("name", "note", "library", "sweep", "ports", "dielectrics", "foils", "lines",
-            "channel", "budget")
+TOP_KEYS = (
+    "name",
+    "note",
+    "library",
+    "sweep",
+    "ports",
+    "dielectrics",
+    "foils",
+    "lines",
+    "channel",
+    "budget",
+)
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 PORT_ORDERS = ("in-in-out-out", "in-out-in-out")
 MAX_POINTS = 200_001
@@ -131,7 +141,8 @@ def _conductors(channel: list[Segment]) -> int:
             raise LossLaneError(
                 f"{seg.where}: line {seg.line!r} is a {kinds.get(seg.section.n_conductors)} "
                 f"but {first.where} ({first.line!r}) is a {kinds.get(n)}; a channel is either "
-                "all single-ended (2-port) or all pairs (4-port)")
+                "all single-ended (2-port) or all pairs (4-port)"
+            )
     return n or 1
 
 
@@ -160,8 +171,9 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
     if isinstance(libs, str):
         libs = [libs]
     if not isinstance(libs, list) or not all(isinstance(x, str) for x in libs):
-        raise LossLaneError(f"scenario: library = {libs!r}: expected a file name or a list "
-                            "of file names")
+        raise LossLaneError(
+            f"scenario: library = {libs!r}: expected a file name or a list of file names"
+        )
     library = load_library([base / x for x in libs])
 
     dielectrics: dict[str, Dielectric] = {}
@@ -176,29 +188,42 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
             return dielectrics[n]
         if n in library.dielectrics:
             return library.dielectrics[n]
-        raise LossLaneError(f"{where} = {n!r}: unknown dielectric; not in [dielectrics] nor "
-                            f"in the library; {suggest(n, [*dielectrics, *library.dielectrics])}")
+        raise LossLaneError(
+            f"{where} = {n!r}: unknown dielectric; not in [dielectrics] nor "
+            f"in the library; {suggest(n, [*dielectrics, *library.dielectrics])}"
+        )
 
     def resolve_foil(n: str, where: str) -> Roughness:
         if n in foils:
             return foils[n]
         if n in library.foils:
             return library.foils[n]
-        raise LossLaneError(f"{where} = {n!r}: unknown foil; not in [foils] nor in the "
-                            f"library; {suggest(n, [*foils, *library.foils])}")
+        raise LossLaneError(
+            f"{where} = {n!r}: unknown foil; not in [foils] nor in the "
+            f"library; {suggest(n, [*foils, *library.foils])}"
+        )
 
     lines: dict[str, CrossSection] = {}
     for lname, spec in _tables(data, "lines").items():
-        lines[lname] = section_from_spec(spec, f"[lines.{lname}]", resolve_dielectric,
-                                         resolve_foil)
+        lines[lname] = section_from_spec(spec, f"[lines.{lname}]", resolve_dielectric, resolve_foil)
 
     sweep = _sweep(data["sweep"])
     ports = _ports(data.get("ports", {}))
     channel = _channel(data["channel"], lines, base, resolve_dielectric)
     budget = _budget(data["budget"]) if "budget" in data else None
-    sc = Scenario(name=name.strip(), path=path, sweep=sweep, ports=ports, lines=lines,
-                  channel=channel, budget=budget, library=library, dielectrics=dielectrics,
-                  foils=foils, source_text=source)
+    sc = Scenario(
+        name=name.strip(),
+        path=path,
+        sweep=sweep,
+        ports=ports,
+        lines=lines,
+        channel=channel,
+        budget=budget,
+        library=library,
+        dielectrics=dielectrics,
+        foils=foils,
+        source_text=source,
+    )
     _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
     return sc
 
@@ -223,11 +248,13 @@ def _sweep(spec: object) -> Sweep:
     if start < 0:
         raise LossLaneError(f"{where}.start = {spec['start']!r}: must be >= 0 Hz")
     if stop <= start:
-        raise LossLaneError(f"{where}.stop = {spec['stop']!r}: must be above start "
-                            f"({spec['start']!r})")
+        raise LossLaneError(
+            f"{where}.stop = {spec['stop']!r}: must be above start ({spec['start']!r})"
+        )
     if ("step" in spec) == ("points" in spec):
-        raise LossLaneError(f"{where}: give exactly one of step (e.g. \"10 MHz\") or points "
-                            "(e.g. 4001)")
+        raise LossLaneError(
+            f'{where}: give exactly one of step (e.g. "10 MHz") or points (e.g. 4001)'
+        )
     if "step" in spec:
         step = quantity(where, spec, "step", "frequency", required=True)
         if step <= 0:
@@ -235,9 +262,11 @@ def _sweep(spec: object) -> Sweep:
         n = (stop - start) / step
         points = int(np.floor(n + 1e-9)) + 1
         if abs(n - round(n)) > 1e-6 * max(1.0, n):
-            raise LossLaneError(f"{where}.step = {spec['step']!r} does not divide the range "
-                                f"{spec['start']!r}..{spec['stop']!r} into whole steps; "
-                                "adjust stop or step, or give points")
+            raise LossLaneError(
+                f"{where}.step = {spec['step']!r} does not divide the range "
+                f"{spec['start']!r}..{spec['stop']!r} into whole steps; "
+                "adjust stop or step, or give points"
+            )
         points = int(round(n)) + 1
     else:
         pts = spec["points"]
@@ -245,8 +274,10 @@ def _sweep(spec: object) -> Sweep:
             raise LossLaneError(f"{where}.points = {pts!r}: expected a whole number >= 2")
         points, step = pts, None
     if points > MAX_POINTS:
-        raise LossLaneError(f"{where}: {points} frequency points is more than the "
-                            f"{MAX_POINTS} allowed; use a coarser step")
+        raise LossLaneError(
+            f"{where}: {points} frequency points is more than the "
+            f"{MAX_POINTS} allowed; use a coarser step"
+        )
     return Sweep(start, stop, step, points)
 
 
@@ -272,11 +303,13 @@ _SEGMENT_KEYS = {
 }
 
 
-def _channel(entries: object, lines: dict[str, CrossSection], base: Path,
-             resolve_dielectric) -> list[Segment]:
+def _channel(
+    entries: object, lines: dict[str, CrossSection], base: Path, resolve_dielectric
+) -> list[Segment]:
     if not isinstance(entries, list) or not entries:
-        raise LossLaneError("[[channel]]: expected one or more [[channel]] segments, in order "
-                            "from the transmitter")
+        raise LossLaneError(
+            "[[channel]]: expected one or more [[channel]] segments, in order from the transmitter"
+        )
     out = []
     for i, entry in enumerate(entries):
         where = f"[[channel]] #{i + 1}"
@@ -287,8 +320,9 @@ def _channel(entries: object, lines: dict[str, CrossSection], base: Path,
             allowed = ", ".join(SEGMENT_TYPES)
             if not types:
                 check_keys(where, entry, SEGMENT_TYPES + ("length", "name", "order"))
-            raise LossLaneError(f"{where}: give exactly one of {allowed} "
-                                f"(found {', '.join(types) or 'none'})")
+            raise LossLaneError(
+                f"{where}: give exactly one of {allowed} (found {', '.join(types) or 'none'})"
+            )
         kind = types[0]
         check_keys(where, entry, _SEGMENT_KEYS[kind])
         name = entry.get("name")
@@ -304,67 +338,93 @@ def _channel(entries: object, lines: dict[str, CrossSection], base: Path,
     return out
 
 
-def _segment(i: int, kind: str, entry: Mapping, where: str, name: str | None,
-             lines: dict[str, CrossSection], base: Path, resolve_dielectric) -> Segment:
+def _segment(
+    i: int,
+    kind: str,
+    entry: Mapping,
+    where: str,
+    name: str | None,
+    lines: dict[str, CrossSection],
+    base: Path,
+    resolve_dielectric,
+) -> Segment:
     if kind == "line":
         lname = entry["line"]
         if not isinstance(lname, str) or lname not in lines:
-            raise LossLaneError(f"{where}.line = {lname!r}: no such [lines.*] section; "
-                                f"{suggest(str(lname), lines)}")
+            raise LossLaneError(
+                f"{where}.line = {lname!r}: no such [lines.*] section; {suggest(str(lname), lines)}"
+            )
         length = quantity(where, entry, "length", "length", required=True)
         if length <= 0:
             raise LossLaneError(f"{where}.length = {entry['length']!r}: must be > 0")
-        return Segment(i, "line", name or lname, {"length": length}, section=lines[lname],
-                       line=lname)
+        return Segment(
+            i, "line", name or lname, {"length": length}, section=lines[lname], line=lname
+        )
     body = entry[kind]
     w = f"{where}.{kind}"
     if kind == "touchstone":
         if isinstance(body, str):
             fname, order = body, entry.get("order")
         else:
-            raise LossLaneError(f"{w} = {body!r}: expected a file name, e.g. "
-                                "\"models/connector.s4p\"")
+            raise LossLaneError(
+                f'{w} = {body!r}: expected a file name, e.g. "models/connector.s4p"'
+            )
         if order is not None and order not in PORT_ORDERS:
-            raise LossLaneError(f"{where}.order = {order!r}: valid values are "
-                                f"{', '.join(repr(o) for o in PORT_ORDERS)}")
+            raise LossLaneError(
+                f"{where}.order = {order!r}: valid values are "
+                f"{', '.join(repr(o) for o in PORT_ORDERS)}"
+            )
         p = (base / fname).resolve()
         if not p.is_file():
-            raise LossLaneError(f"{w} = {fname!r}: file {str(p)!r} does not exist (paths are "
-                                "relative to the scenario file)")
+            raise LossLaneError(
+                f"{w} = {fname!r}: file {str(p)!r} does not exist (paths are "
+                "relative to the scenario file)"
+            )
         if not re.search(r"\.s\d+p$", p.name, re.IGNORECASE):
             raise LossLaneError(f"{w} = {fname!r}: expected a Touchstone file (.s2p, .s4p)")
         return Segment(i, "touchstone", name or p.stem, path=p, order=order)
     if not isinstance(body, Mapping):
         raise LossLaneError(f"{w} = {body!r}: expected an inline table, e.g. {kind} = {{ ... }}")
     if kind == "via":
-        check_keys(w, body, ("barrel", "stub", "impedance", "dielectric"),
-                   required=("barrel", "impedance", "dielectric"))
-        vals = {"barrel": quantity(w, body, "barrel", "length", required=True),
-                "stub": quantity(w, body, "stub", "length", default=0.0),
-                "impedance": quantity(w, body, "impedance", "resistance", required=True)}
+        check_keys(
+            w,
+            body,
+            ("barrel", "stub", "impedance", "dielectric"),
+            required=("barrel", "impedance", "dielectric"),
+        )
+        vals = {
+            "barrel": quantity(w, body, "barrel", "length", required=True),
+            "stub": quantity(w, body, "stub", "length", default=0.0),
+            "impedance": quantity(w, body, "impedance", "resistance", required=True),
+        }
         if vals["barrel"] <= 0 or vals["stub"] < 0 or vals["impedance"] <= 0:
-            raise LossLaneError(f"{w}: barrel and impedance must be > 0 and stub >= 0 "
-                                f"(got {dict(body)})")
+            raise LossLaneError(
+                f"{w}: barrel and impedance must be > 0 and stub >= 0 (got {dict(body)})"
+            )
         d = body["dielectric"]
         if not isinstance(d, str):
             raise LossLaneError(f"{w}.dielectric = {d!r}: expected a dielectric name")
-        return Segment(i, "via", name or "via", vals,
-                       dielectric=resolve_dielectric(d, f"{w}.dielectric"))
+        return Segment(
+            i, "via", name or "via", vals, dielectric=resolve_dielectric(d, f"{w}.dielectric")
+        )
     if kind == "capacitor":
         check_keys(w, body, ("value", "esl", "esr"), required=("value",))
-        vals = {"value": quantity(w, body, "value", "capacitance", required=True),
-                "esl": quantity(w, body, "esl", "inductance", default=0.0),
-                "esr": quantity(w, body, "esr", "resistance", default=0.0)}
+        vals = {
+            "value": quantity(w, body, "value", "capacitance", required=True),
+            "esl": quantity(w, body, "esl", "inductance", default=0.0),
+            "esr": quantity(w, body, "esr", "resistance", default=0.0),
+        }
         if vals["value"] <= 0 or vals["esl"] < 0 or vals["esr"] < 0:
             raise LossLaneError(f"{w}: value must be > 0, esl and esr >= 0 (got {dict(body)})")
         return Segment(i, "capacitor", name or "capacitor", vals)
     if kind == "series":
         check_keys(w, body, ("resistance", "inductance"))
-        vals = {"resistance": quantity(w, body, "resistance", "resistance", default=0.0),
-                "inductance": quantity(w, body, "inductance", "inductance", default=0.0)}
+        vals = {
+            "resistance": quantity(w, body, "resistance", "resistance", default=0.0),
+            "inductance": quantity(w, body, "inductance", "inductance", default=0.0),
+        }
         if vals["resistance"] < 0 or vals["inductance"] < 0 or not any(vals.values()):
-            raise LossLaneError(f"{w}: give resistance and/or inductance, >= 0 "
-                                f"(got {dict(body)})")
+            raise LossLaneError(f"{w}: give resistance and/or inductance, >= 0 (got {dict(body)})")
         return Segment(i, "series", name or "series part", vals)
     check_keys(w, body, ("capacitance",), required=("capacitance",))
     vals = {"capacitance": quantity(w, body, "capacitance", "capacitance", required=True)}
@@ -377,16 +437,18 @@ def _budget(spec: object) -> Budget:
     where = "[budget]"
     if not isinstance(spec, Mapping):
         raise LossLaneError(f"{where}: expected a table")
-    check_keys(where, spec, ("data_rate", "modulation", "max_loss", "check", "fit_start",
-                             "fit_stop"))
+    check_keys(
+        where, spec, ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop")
+    )
     rate = quantity(where, spec, "data_rate", "data rate")
     if rate is not None and rate <= 0:
         raise LossLaneError(f"{where}.data_rate = {spec['data_rate']!r}: must be > 0")
     modulation = text(where, spec, "modulation", ("nrz", "pam4"), "nrz")
     max_loss = quantity(where, spec, "max_loss", "decibel")
     if max_loss is not None and rate is None:
-        raise LossLaneError(f"{where}: max_loss is the allowance at Nyquist and needs "
-                            "data_rate (e.g. \"32 Gb/s\")")
+        raise LossLaneError(
+            f'{where}: max_loss is the allowance at Nyquist and needs data_rate (e.g. "32 Gb/s")'
+        )
     checks = []
     raw = spec.get("check", [])
     if not isinstance(raw, list):
@@ -396,9 +458,11 @@ def _budget(spec: object) -> Budget:
         if not isinstance(c, Mapping):
             raise LossLaneError(f"{w}: expected a table")
         check_keys(w, c, ("at", "max_loss", "min_return_loss"), required=("at",))
-        chk = Check(quantity(w, c, "at", "frequency", required=True),
-                    quantity(w, c, "max_loss", "decibel"),
-                    quantity(w, c, "min_return_loss", "decibel"))
+        chk = Check(
+            quantity(w, c, "at", "frequency", required=True),
+            quantity(w, c, "max_loss", "decibel"),
+            quantity(w, c, "min_return_loss", "decibel"),
+        )
         if chk.max_loss is None and chk.min_return_loss is None:
             raise LossLaneError(f"{w}: give max_loss and/or min_return_loss")
         checks.append(chk)
@@ -407,5 +471,13 @@ def _budget(spec: object) -> Budget:
     return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop)
 
 
-__all__ = ["Budget", "Check", "Ports", "Scenario", "Segment", "Sweep", "load_scenario",
-           "parse_scenario"]
+__all__ = [
+    "Budget",
+    "Check",
+    "Ports",
+    "Scenario",
+    "Segment",
+    "Sweep",
+    "load_scenario",
+    "parse_scenario",
+]

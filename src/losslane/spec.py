@@ -32,17 +32,20 @@ def key_name(where: str, key: str) -> str:
     return where.key(key) if isinstance(where, Where) else (f"{where}.{key}" if where else key)
 
 
-def check_keys(where: str, table: Mapping, allowed: Iterable[str],
-               required: Iterable[str] = ()) -> None:
+def check_keys(
+    where: str, table: Mapping, allowed: Iterable[str], required: Iterable[str] = ()
+) -> None:
     allowed = list(allowed)
     for key in table:
         if key not in allowed:
             close = difflib.get_close_matches(str(key), allowed, n=1, cutoff=0.5)
             hint = f"did you mean {close[0]!r}? " if close else ""
-            shown = [key_name(where, k) if isinstance(where, Where) and where.cli else k
-                     for k in allowed]
-            raise LossLaneError(f"{where}: unknown key {key!r}; {hint}valid keys: "
-                                f"{', '.join(shown)}")
+            shown = [
+                key_name(where, k) if isinstance(where, Where) and where.cli else k for k in allowed
+            ]
+            raise LossLaneError(
+                f"{where}: unknown key {key!r}; {hint}valid keys: {', '.join(shown)}"
+            )
     for key in required:
         if key not in table:
             raise LossLaneError(f"{where}: missing {key_name(where, key)}")
@@ -55,19 +58,32 @@ def suggest(name: str, known: Iterable[str]) -> str:
     return f"{hint}known: {', '.join(known)}"
 
 
-def quantity(where: str, table: Mapping, key: str, kind: str, default: float | None = None,
-             required: bool = False) -> float | None:
+def quantity(
+    where: str,
+    table: Mapping,
+    key: str,
+    kind: str,
+    default: float | None = None,
+    required: bool = False,
+) -> float | None:
     if key not in table:
         if required:
-            raise LossLaneError(f"{where}: missing {key_name(where, key)} (a {kind} with a "
-                                "unit)")
+            raise LossLaneError(f"{where}: missing {key_name(where, key)} (a {kind} with a unit)")
         return default
     return parse_quantity(table[key], kind, key_name(where, key))
 
 
-def number(where: str, table: Mapping, key: str, default: float | None = None,
-           required: bool = False, low: float | None = None, high: float | None = None,
-           low_open: bool = False, high_open: bool = False) -> float | None:
+def number(
+    where: str,
+    table: Mapping,
+    key: str,
+    default: float | None = None,
+    required: bool = False,
+    low: float | None = None,
+    high: float | None = None,
+    low_open: bool = False,
+    high_open: bool = False,
+) -> float | None:
     if key not in table:
         if required:
             raise LossLaneError(f"{where}: missing {key_name(where, key)} (a number)")
@@ -81,8 +97,9 @@ def number(where: str, table: Mapping, key: str, default: float | None = None,
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         raise LossLaneError(f"{key_name(where, key)} = {value!r}: expected a plain number")
     v = float(value)
-    bad = ((low is not None and (v <= low if low_open else v < low))
-           or (high is not None and (v >= high if high_open else v > high)))
+    bad = (low is not None and (v <= low if low_open else v < low)) or (
+        high is not None and (v >= high if high_open else v > high)
+    )
     if bad:
         lo = "" if low is None else (f"> {low:g}" if low_open else f">= {low:g}")
         hi = "" if high is None else (f"< {high:g}" if high_open else f"<= {high:g}")
@@ -91,8 +108,14 @@ def number(where: str, table: Mapping, key: str, default: float | None = None,
     return v
 
 
-def text(where: str, table: Mapping, key: str, choices: Iterable[str] | None = None,
-         default: str | None = None, required: bool = False) -> str | None:
+def text(
+    where: str,
+    table: Mapping,
+    key: str,
+    choices: Iterable[str] | None = None,
+    default: str | None = None,
+    required: bool = False,
+) -> str | None:
     if key not in table:
         if required:
             raise LossLaneError(f"{where}: missing {key_name(where, key)}")
@@ -103,6 +126,8 @@ def text(where: str, table: Mapping, key: str, choices: Iterable[str] | None = N
     if choices is not None:
         choices = list(choices)
         if value not in choices:
-            raise LossLaneError(f"{key_name(where, key)} = {value!r}: valid values are "
-                                f"{', '.join(repr(c) for c in choices)}")
+            raise LossLaneError(
+                f"{key_name(where, key)} = {value!r}: valid values are "
+                f"{', '.join(repr(c) for c in choices)}"
+            )
     return value

@@ -24,8 +24,19 @@ from losslane.spec import check_keys, number, quantity, suggest, text
 
 DIELECTRIC_KEYS = ("dk", "df", "at", "model", "class", "note")
 FOIL_MODELS = ("none", "hammerstad", "groiss", "huray", "graded")
-FOIL_KEYS = ("model", "rq", "radius", "surface_ratio", "count", "tile_area", "matte_ratio",
-             "spheres", "layers", "outside_dk", "note")
+FOIL_KEYS = (
+    "model",
+    "rq",
+    "radius",
+    "surface_ratio",
+    "count",
+    "tile_area",
+    "matte_ratio",
+    "spheres",
+    "layers",
+    "outside_dk",
+    "note",
+)
 
 
 def dielectric_from_spec(name: str, spec: Mapping, where: str) -> Dielectric:
@@ -35,8 +46,10 @@ def dielectric_from_spec(name: str, spec: Mapping, where: str) -> Dielectric:
     model = text(where, spec, "model", ("wideband-debye", "constant"), "wideband-debye")
     at = quantity(where, spec, "at", "frequency")
     if model == "wideband-debye" and at is None:
-        raise LossLaneError(f"{where}: missing key 'at' (the frequency of dk and df, e.g. "
-                            "\"10 GHz\"); or set model = \"constant\"")
+        raise LossLaneError(
+            f"{where}: missing key 'at' (the frequency of dk and df, e.g. "
+            '"10 GHz"); or set model = "constant"'
+        )
     try:
         return make_dielectric(dk, df, at, model, name)
     except LossLaneError as exc:
@@ -50,8 +63,16 @@ def foil_from_spec(name: str, spec: Mapping, where: str) -> Roughness:
         "none": ("model", "note"),
         "hammerstad": ("model", "rq", "note"),
         "groiss": ("model", "rq", "note"),
-        "huray": ("model", "radius", "surface_ratio", "count", "tile_area", "matte_ratio",
-                  "spheres", "note"),
+        "huray": (
+            "model",
+            "radius",
+            "surface_ratio",
+            "count",
+            "tile_area",
+            "matte_ratio",
+            "spheres",
+            "note",
+        ),
         "graded": ("model", "rq", "layers", "outside_dk", "note"),
     }[model]
     check_keys(f"{where} (model {model!r})", spec, allowed)
@@ -67,22 +88,29 @@ def foil_from_spec(name: str, spec: Mapping, where: str) -> Roughness:
             for i, item in enumerate(spec["spheres"]):
                 w = f"{where}.spheres[{i}]"
                 if not isinstance(item, Mapping):
-                    raise LossLaneError(f"{w}: expected a table {{radius = ..., "
-                                        "surface_ratio = ...}}")
-                check_keys(w, item, ("radius", "surface_ratio"), required=("radius",
-                                                                           "surface_ratio"))
-                spheres.append((quantity(w, item, "radius", "length", required=True),
-                                number(w, item, "surface_ratio", required=True, low=0.0)))
+                    raise LossLaneError(
+                        f"{w}: expected a table {{radius = ..., surface_ratio = ...}}}}"
+                    )
+                check_keys(
+                    w, item, ("radius", "surface_ratio"), required=("radius", "surface_ratio")
+                )
+                spheres.append(
+                    (
+                        quantity(w, item, "radius", "length", required=True),
+                        number(w, item, "surface_ratio", required=True, low=0.0),
+                    )
+                )
             return Huray(tuple(spheres), matte)
         radius = quantity(where, spec, "radius", "length", required=True)
         if "count" in spec:
             count = number(where, spec, "count", required=True, low=0.0)
             tile = spec.get("tile_area")
             if not isinstance(tile, str):
-                raise LossLaneError(f"{where}.tile_area = {tile!r}: give the flat tile area "
-                                    "that holds 'count' spheres, e.g. \"100 um^2\"")
-            return Huray.from_counts(radius, count, parse_area(tile, f"{where}.tile_area"),
-                                     matte)
+                raise LossLaneError(
+                    f"{where}.tile_area = {tile!r}: give the flat tile area "
+                    "that holds 'count' spheres, e.g. \"100 um^2\""
+                )
+            return Huray.from_counts(radius, count, parse_area(tile, f"{where}.tile_area"), matte)
         ratio = number(where, spec, "surface_ratio", required=True, low=0.0)
         return Huray.from_surface_ratio(radius, ratio, matte)
     rq = quantity(where, spec, "rq", "length", default=0.0)
@@ -90,17 +118,23 @@ def foil_from_spec(name: str, spec: Mapping, where: str) -> Roughness:
     for i, item in enumerate(spec.get("layers", [])):
         w = f"{where}.layers[{i}]"
         if not isinstance(item, Mapping):
-            raise LossLaneError(f"{w}: expected a table {{name, conductivity, thickness, "
-                                "mu_r}}")
-        check_keys(w, item, ("name", "conductivity", "thickness", "mu_r"),
-                   required=("conductivity", "thickness"))
+            raise LossLaneError(f"{w}: expected a table {{name, conductivity, thickness, mu_r}}}}")
+        check_keys(
+            w,
+            item,
+            ("name", "conductivity", "thickness", "mu_r"),
+            required=("conductivity", "thickness"),
+        )
         from losslane.units import parse_conductivity
 
-        layers.append(FinishLayer(
-            sigma=parse_conductivity(item["conductivity"], f"{w}.conductivity"),
-            thickness=quantity(w, item, "thickness", "length", required=True),
-            mu_r=number(w, item, "mu_r", default=1.0, low=1.0),
-            name=str(item.get("name", f"layer {i + 1}"))))
+        layers.append(
+            FinishLayer(
+                sigma=parse_conductivity(item["conductivity"], f"{w}.conductivity"),
+                thickness=quantity(w, item, "thickness", "length", required=True),
+                mu_r=number(w, item, "mu_r", default=1.0, low=1.0),
+                name=str(item.get("name", f"layer {i + 1}")),
+            )
+        )
     outside = number(where, spec, "outside_dk", default=1.0, low=1.0)
     return Graded(rq, tuple(layers), outside)
 
@@ -113,7 +147,7 @@ def parse_area(value: str, key: str) -> float:
 
     m = re.match(r"^\s*([0-9.eE+-]+)\s*([^\s^²]+)\s*(\^2|²)\s*$", value)
     if not m:
-        raise LossLaneError(f"{key} = {value!r}: expected an area such as \"100 um^2\"")
+        raise LossLaneError(f'{key} = {value!r}: expected an area such as "100 um^2"')
     unit = parse_length(f"1 {m.group(2)}", key)
     return float(m.group(1)) * unit * unit
 
@@ -129,8 +163,9 @@ class Library:
 
     def dielectric(self, name: str, where: str = "dielectric") -> Dielectric:
         if name not in self.dielectrics:
-            raise LossLaneError(f"{where} = {name!r}: unknown dielectric; "
-                                f"{suggest(name, self.dielectrics)}")
+            raise LossLaneError(
+                f"{where} = {name!r}: unknown dielectric; {suggest(name, self.dielectrics)}"
+            )
         return self.dielectrics[name]
 
     def foil(self, name: str, where: str = "foil") -> Roughness:

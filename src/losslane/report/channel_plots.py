@@ -41,9 +41,16 @@ def _figure():
     return plt, fig, ax
 
 
-def db_plot(path: Path, f: np.ndarray, curves: Sequence[Curve], title: str, ylabel: str,
-            markers: Sequence[Marker] = (), limit_sign: float = -1.0,
-            floor_db: float | None = None) -> Path:
+def db_plot(
+    path: Path,
+    f: np.ndarray,
+    curves: Sequence[Curve],
+    title: str,
+    ylabel: str,
+    markers: Sequence[Marker] = (),
+    limit_sign: float = -1.0,
+    floor_db: float | None = None,
+) -> Path:
     """Plot dB curves against GHz and save a PNG at ``path``."""
     plt, fig, ax = _figure()
     ghz = np.asarray(f) / 1e9
@@ -57,19 +64,40 @@ def db_plot(path: Path, f: np.ndarray, curves: Sequence[Curve], title: str, ylab
     ax.set_ylim(lo - 0.05 * span, hi + 0.08 * span)
     for m in markers:
         ax.axvline(m.at_hz / 1e9, color="0.35", lw=0.9, ls=":")
-        ax.annotate(m.label, (m.at_hz / 1e9, 0.02), xycoords=("data", "axes fraction"),
-                    rotation=90, fontsize=8, color="0.25", ha="right", va="bottom")
+        ax.annotate(
+            m.label,
+            (m.at_hz / 1e9, 0.02),
+            xycoords=("data", "axes fraction"),
+            rotation=90,
+            fontsize=8,
+            color="0.25",
+            ha="right",
+            va="bottom",
+        )
         if m.limit_db is not None:
             y = limit_sign * m.limit_db
-            ax.plot([m.at_hz / 1e9], [y], marker="v" if limit_sign < 0 else "^",
-                    color="crimson", ms=8, zorder=5)
+            ax.plot(
+                [m.at_hz / 1e9],
+                [y],
+                marker="v" if limit_sign < 0 else "^",
+                color="crimson",
+                ms=8,
+                zorder=5,
+            )
     ax.set_xlim(ghz[0], ghz[-1])
     ax.set_xlabel("frequency (GHz)")
     ax.set_ylabel(ylabel)
     ax.set_title(title, fontsize=11)
     ax.legend(fontsize=8, loc="best", framealpha=0.85)
-    fig.text(0.995, 0.005, "estimate - confirm with measured coupons", ha="right",
-             va="bottom", fontsize=7, color="0.45")
+    fig.text(
+        0.995,
+        0.005,
+        "estimate - confirm with measured coupons",
+        ha="right",
+        va="bottom",
+        fontsize=7,
+        color="0.45",
+    )
     fig.tight_layout()
     return save_png(fig, path, plt)
 

@@ -22,8 +22,17 @@ from losslane.xsection.microstrip import Microstrip
 from losslane.xsection.stripline import Stripline
 
 #: keys every line spec may carry besides its geometry
-COMMON_KEYS = ("kind", "thickness", "dielectric", "foil", "plane_foil", "plane_thickness",
-               "conductivity", "solver", "note")
+COMMON_KEYS = (
+    "kind",
+    "thickness",
+    "dielectric",
+    "foil",
+    "plane_foil",
+    "plane_thickness",
+    "conductivity",
+    "solver",
+    "note",
+)
 SOLVERS = ("closed-form", "field")
 
 
@@ -38,14 +47,26 @@ class KindSpec:
 
 
 KINDS: dict[str, KindSpec] = {
-    "microstrip": KindSpec(("width", "height"), (), lambda g, d, m: Microstrip(
-        g["width"], g["height"], g["thickness"], d, m)),
-    "stripline": KindSpec(("width", "below", "above"), (), lambda g, d, m: Stripline(
-        g["width"], g["below"], g["above"], g["thickness"], d, m)),
-    "cpw": KindSpec(("width", "gap", "height"), (), lambda g, d, m: Coplanar(
-        g["width"], g["gap"], g["height"], g["thickness"], d, False, m)),
-    "gcpw": KindSpec(("width", "gap", "height"), (), lambda g, d, m: Coplanar(
-        g["width"], g["gap"], g["height"], g["thickness"], d, True, m)),
+    "microstrip": KindSpec(
+        ("width", "height"),
+        (),
+        lambda g, d, m: Microstrip(g["width"], g["height"], g["thickness"], d, m),
+    ),
+    "stripline": KindSpec(
+        ("width", "below", "above"),
+        (),
+        lambda g, d, m: Stripline(g["width"], g["below"], g["above"], g["thickness"], d, m),
+    ),
+    "cpw": KindSpec(
+        ("width", "gap", "height"),
+        (),
+        lambda g, d, m: Coplanar(g["width"], g["gap"], g["height"], g["thickness"], d, False, m),
+    ),
+    "gcpw": KindSpec(
+        ("width", "gap", "height"),
+        (),
+        lambda g, d, m: Coplanar(g["width"], g["gap"], g["height"], g["thickness"], d, True, m),
+    ),
 }
 
 #: builders for ``solver = "field"``: kind -> same signature as KindSpec.build
@@ -54,9 +75,12 @@ FIELD_BUILDERS: dict[str, Callable[..., CrossSection]] = {}
 FIELD_KEYS: tuple[str, ...] = ()
 
 
-def section_from_spec(spec: Mapping, where: str,
-                      dielectric: Callable[[str, str], Dielectric],
-                      foil: Callable[[str, str], Roughness]) -> CrossSection:
+def section_from_spec(
+    spec: Mapping,
+    where: str,
+    dielectric: Callable[[str, str], Dielectric],
+    foil: Callable[[str, str], Roughness],
+) -> CrossSection:
     """Build a cross-section from ``spec``.
 
     ``dielectric(name, where)`` and ``foil(name, where)`` resolve material names (scenario
@@ -65,46 +89,58 @@ def section_from_spec(spec: Mapping, where: str,
     """
     kind = text(where, spec, "kind", required=True)
     if kind not in KINDS:
-        raise LossLaneError(f"{key_name(where, 'kind')} = {kind!r}: unknown line kind; "
-                            f"{suggest(kind, KINDS)}")
+        raise LossLaneError(
+            f"{key_name(where, 'kind')} = {kind!r}: unknown line kind; {suggest(kind, KINDS)}"
+        )
     ks = KINDS[kind]
     solver = text(where, spec, "solver", SOLVERS, "closed-form")
     extra = FIELD_KEYS if solver == "field" else ()
-    check_keys(where, spec, COMMON_KEYS + ks.required + ks.optional + extra,
-               required=ks.required + ("thickness", "dielectric"))
+    check_keys(
+        where,
+        spec,
+        COMMON_KEYS + ks.required + ks.optional + extra,
+        required=ks.required + ("thickness", "dielectric"),
+    )
     geometry: dict[str, float] = {}
     for key in ks.required + ks.optional:
         if key in spec:
             geometry[key] = quantity(where, spec, key, "length")
     geometry["thickness"] = quantity(where, spec, "thickness", "length", required=True)
     diel = spec["dielectric"]
-    d = diel if isinstance(diel, Dielectric) else dielectric(
-        _name(where, spec, "dielectric"), key_name(where, "dielectric"))
+    d = (
+        diel
+        if isinstance(diel, Dielectric)
+        else dielectric(_name(where, spec, "dielectric"), key_name(where, "dielectric"))
+    )
     metal = metal_from_spec(spec, where, foil)
     if solver == "field":
         if kind not in FIELD_BUILDERS:
-            raise LossLaneError(f"{key_name(where, 'solver')} = 'field': the field solver is "
-                                f"not available for kind {kind!r}")
+            raise LossLaneError(
+                f"{key_name(where, 'solver')} = 'field': the field solver is "
+                f"not available for kind {kind!r}"
+            )
         return FIELD_BUILDERS[kind](geometry, d, metal, spec, where)
     return ks.build(geometry, d, metal)
 
 
-def metal_from_spec(spec: Mapping, where: str,
-                    foil: Callable[[str, str], Roughness]) -> Metal:
+def metal_from_spec(spec: Mapping, where: str, foil: Callable[[str, str], Roughness]) -> Metal:
     def rough(key: str) -> Roughness | None:
         if key not in spec:
             return None
         v = spec[key]
-        return v if isinstance(v, Roughness) else foil(_name(where, spec, key),
-                                                       key_name(where, key))
+        return (
+            v if isinstance(v, Roughness) else foil(_name(where, spec, key), key_name(where, key))
+        )
 
     sigma = 5.8e7
     if "conductivity" in spec:
         sigma = parse_conductivity(spec["conductivity"], key_name(where, "conductivity"))
     foil_ = rough("foil")
-    kwargs = {"conductor": Conductor(sigma=sigma), "plane_foil": rough("plane_foil"),
-              "plane_thickness": quantity(where, spec, "plane_thickness", "length",
-                                          default=OZ_COPPER)}
+    kwargs = {
+        "conductor": Conductor(sigma=sigma),
+        "plane_foil": rough("plane_foil"),
+        "plane_thickness": quantity(where, spec, "plane_thickness", "length", default=OZ_COPPER),
+    }
     if foil_ is not None:
         kwargs["foil"] = foil_
     try:
