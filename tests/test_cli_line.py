@@ -177,7 +177,7 @@ BAD = [
             "1.4mil",
             *MATERIAL,
         ],
-        ["width", "-0.0001524", "> 0"],
+        ["--width", "-6mil", "> 0"],
     ),
     (
         ["line", "microstrip", *GOOD, "--dk", "0.5", "--df", "0.009", "--dk-at", "10GHz"],

@@ -129,6 +129,15 @@ def line_spec(kind: str, options: dict, where) -> dict:
             "--dielectric NAME (see `losslane materials`)"
         )
     if dk is not None:
+        df = options.get("df") or 0.0
+        if not dk >= 1.0:
+            raise LossLaneError(
+                f"--dk = {dk!r}: a relative permittivity is >= 1 (air 1, board laminates 2.5..5)"
+            )
+        if not 0.0 <= df < 1.0:
+            raise LossLaneError(
+                f"--df = {df!r}: a loss tangent lies in 0 <= df < 1 (laminates 0.001..0.03)"
+            )
         model = options.get("dielectric_model", "wideband-debye")
         at = options.get("dk_at")
         if at is None and model == "wideband-debye":

@@ -18,7 +18,7 @@ class Where(str):
 
     def key(self, key: str) -> str:
         if self.cli:
-            return "--" + key.replace("_", "-")
+            return "KIND" if key == "kind" else "--" + key.replace("_", "-")
         return f"{self}.{key}" if self else key
 
 

@@ -102,10 +102,15 @@ def section_from_spec(
         required=ks.required + ("thickness", "dielectric"),
     )
     geometry: dict[str, float] = {}
-    for key in ks.required + ks.optional:
+    for key in ks.required + ks.optional + ("thickness",):
         if key in spec:
             geometry[key] = quantity(where, spec, key, "length")
-    geometry["thickness"] = quantity(where, spec, "thickness", "length", required=True)
+            bad = geometry[key] < 0 if key == "thickness" else geometry[key] <= 0
+            if bad:
+                bound = ">= 0" if key == "thickness" else "> 0"
+                raise LossLaneError(
+                    f"{key_name(where, key)} = {spec[key]!r}: a {kind} needs {key} {bound}"
+                )
     diel = spec["dielectric"]
     d = (
         diel
