@@ -90,10 +90,13 @@ def scaled_dielectric(d: Dielectric, scale: float) -> Dielectric:
 
 
 def nominal_geometry(section: CrossSection) -> dict[str, float]:
-    """The section's geometry as {scenario key: metres}."""
+    """The section's geometry as {scenario key: metres} (its dataclass fields only, so a
+    derived property such as a stripline's plane spacing is not taken for a dimension)."""
+    fields = {f.name for f in dataclasses.fields(section)} if dataclasses.is_dataclass(
+        section) else set()
     out = {}
     for key in GEOMETRY_KEYS:
-        v = getattr(section, key, None)
+        v = getattr(section, key, None) if key in fields else None
         if isinstance(v, (int, float)) and not isinstance(v, bool):
             out[key] = float(v)
     return out
