@@ -258,7 +258,7 @@ def size_command(kind: str, target: str, vary: str, at: str, loss_at: str | None
     from losslane.report.design_tables import size_table
     from losslane.spec import cli_where
     from losslane.units import parse_frequency, parse_frequency_list
-    from losslane.xsection.factory import section_from_spec
+    from losslane.xsection.factory import KINDS, section_from_spec
 
     where = cli_where("losslane size")
     with _warnings_to_stderr():
@@ -266,6 +266,10 @@ def size_command(kind: str, target: str, vary: str, at: str, loss_at: str | None
         f0 = parse_frequency(at, "--at")
         floss = parse_frequency_list(loss_at, "--loss-at") if loss_at else None
         lib = load_library(options.pop("library_files"))
+        ks = KINDS.get(kind)
+        if ks is not None and vary not in ks.required + ks.optional:
+            raise LossLaneError(f"--vary {vary}: {kind} has no {vary}; the spacing is solved "
+                                "only for pairs (microstrip-pair, stripline-pair)")
         _placeholder(options, vary, "losslane size")
         section = section_from_spec(line_spec(kind, options, where), where, lib.dielectric,
                                     lib.foil)
@@ -353,7 +357,9 @@ def compare_command(kind: str, materials: str, foils: str | None, target: str, a
                      f"at {f0 / 1e9:g} GHz")
             curves = [(f"{c.material} / {c.foil} (w {c.section.width / 25.4e-6:.3g} mil)",
                        c.curve_f, c.curve_db_per_in) for c in result.candidates]
-            out["plot"] = str(loss_comparison_chart(curves, plot, title, freqs))
+            out["plot"] = str(loss_comparison_chart(
+                curves, plot, title, freqs, [c.material for c in result.candidates],
+                [c.foil for c in result.candidates]))
         if as_json:
             click.echo(json.dumps(out))
         else:

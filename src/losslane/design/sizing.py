@@ -83,10 +83,17 @@ def search_range(section: CrossSection, vary: str = "width") -> SearchRange:
                            "offset stripline (parallel combination), Wheeler's thickness "
                            "correction")
     if kind in ("cpw", "gcpw") and vary == "width":
-        gap, h = geo["gap"], geo["height"]
-        return SearchRange("width", "width/gap", gap, max(0.1, 0.1 * h / gap),
-                           min(5.0, 5.0 * h / gap),
-                           "Frankel dispersion fit (width/gap and width/height 0.1..5)")
+        gap, h, t = geo["gap"], geo["height"], geo["thickness"]
+        hi = min(5.0, 5.0 * h / gap)
+        source = "Frankel dispersion fit (width/gap and width/height 0.1..5)"
+        if t > 0:
+            # Gupta's thickness widening D = (1.25 t/pi)(1 + ln(4 pi w/t)) must stay below
+            # the gap: w < t/(4 pi) exp(pi gap/(1.25 t) - 1)
+            w_max = t / (4 * np.pi) * np.exp(min(np.pi * gap / (1.25 * t) - 1.0, 700.0))
+            if 0.999 * w_max / gap < hi:
+                hi = 0.999 * w_max / gap
+                source += "; Gupta thickness correction (widening below the gap)"
+        return SearchRange("width", "width/gap", gap, max(0.1, 0.1 * h / gap), hi, source)
     if kind == "microstrip-pair":
         return SearchRange(vary, f"{vary}/height", geo["height"], 0.1, 10.0,
                            "Kirschning-Jansen coupled microstrip")
@@ -180,8 +187,8 @@ def solve(section: CrossSection, target: float, at: float = DEFAULT_SIZE_AT,
         side = "<" if at_lo else ">"
         what = "Z_diff" if section.n_conductors == 2 else "Z0"
         raise LossLaneError(
-            f"{section.kind}: {what} = {target:g} ohm needs {rng.ratio} {side} {bound:g}, "
-            f"outside the model's validity range {rng.lo:g}..{rng.hi:g} ({rng.source}), "
+            f"{section.kind}: {what} = {target:g} ohm needs {rng.ratio} {side} {bound:.3g}, "
+            f"outside the model's validity range {rng.lo:.3g}..{rng.hi:.3g} ({rng.source}), "
             f"which spans {zmin:.1f}..{zmax:.1f} ohm here; use "
             f"{_hints(section, vary, lower)}, or a {'higher' if lower else 'lower'} target"
         )

@@ -24,7 +24,7 @@ def size_table(res: dict, title: str) -> str:
     solved = res["vary"]
     value = geo[solved]
     lines.append(f"solved {solved}: {value / MIL:.4g} mil ({value * 1e3:.4g} mm), "
-                 f"{r['name']} = {r['value']:.4g} (model range {r['valid_from']:g}..{r['valid_to']:g})")
+                 f"{r['name']} = {r['value']:.4g} (model range {r['valid_from']:.3g}..{r['valid_to']:.3g})")
     lines.append(f"{what} at {_ghz(res['frequency_hz'])} GHz: {res['achieved_ohm']:.3f} ohm "
                  f"(target {res['target_ohm']:g} ohm)")
     lines.append(f"effective permittivity: {res['eps_eff']:.4g}")

@@ -43,15 +43,25 @@ def loss_comparison_chart(
     path: Path | str,
     title: str,
     marks: Sequence[float] = (),
+    colour_by: Sequence[str] | None = None,
+    style_by: Sequence[str] | None = None,
 ) -> Path:
     """dB/in against frequency, one line per candidate (``(label, f_hz, db_per_in)``), in
-    the given order; ``marks`` are frequencies drawn as thin vertical lines."""
+    the given order. ``colour_by``/``style_by`` (one key per curve, e.g. the material and
+    the foil) give curves sharing a key the same colour / line style; ``marks`` are
+    frequencies drawn as thin vertical lines."""
     plt = _pyplot()
-    fig, ax = plt.subplots(figsize=(8.0, 5.0))
+    fig, ax = plt.subplots(figsize=(10.0, 5.2))
     try:
-        styles = ["-", "--", "-.", ":"]
+        palette = plt.rcParams["axes.prop_cycle"].by_key()["color"]
+        styles = ["-", "--", ":", "-."]
+        ckeys = list(dict.fromkeys(colour_by)) if colour_by else []
+        skeys = list(dict.fromkeys(style_by)) if style_by else []
         for i, (label, f, y) in enumerate(curves):
-            ax.plot(np.asarray(f) / 1e9, y, styles[(i // 10) % len(styles)], lw=1.6, label=label)
+            colour = palette[(ckeys.index(colour_by[i]) if colour_by else i) % len(palette)]
+            style = styles[(skeys.index(style_by[i]) if style_by else i // len(palette))
+                           % len(styles)]
+            ax.plot(np.asarray(f) / 1e9, y, style, color=colour, lw=1.6, label=label)
         for m in marks:
             ax.axvline(m / 1e9, color="0.75", lw=0.8, zorder=0)
         ax.set_xlabel("frequency (GHz)")
@@ -60,8 +70,8 @@ def loss_comparison_chart(
         ax.set_xlim(left=0)
         ax.set_ylim(bottom=0)
         ax.grid(True, alpha=0.3)
-        ax.legend(fontsize=7, ncol=2 if len(curves) > 8 else 1, loc="upper left",
-                  title="lowest loss first", title_fontsize=7)
+        ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0),
+                  title="lowest loss first", title_fontsize=7, frameon=False)
         fig.text(0.99, 0.005, CAPTION, ha="right", va="bottom", fontsize=6, color="0.4")
         fig.tight_layout()
         return save_figure(fig, path)

@@ -414,9 +414,12 @@ def _coplanar(sec, f: np.ndarray, g: dict, scale: np.ndarray) -> LineArrays:
     w, s, t, h = g["width"], g["gap"], g["thickness"], g["height"]
     grounded = sec.grounded
     kind = sec.kind
-    if np.any(2 * s - _delta(w, t) <= 0):
-        raise LossLaneError(f"{kind}: a thickness sample is too large for its gap (the "
-                            "thickness-widened strip would close the gap); use a wider gap")
+    # Gupta's widened strip needs its modulus k0 = (w + D)/(w + 2 gap - D) below 1, i.e.
+    # D < gap (the scalar model checks only D < 2 gap and returns NaN in between)
+    if np.any(_delta(w, t) >= s):
+        raise LossLaneError(f"{kind}: the copper is too thick for the gap: the thickness "
+                            "correction (Gupta et al.) widens the strip by more than the gap; "
+                            "use a wider --gap, thinner copper or a narrower strip")
     eps_r = sec.dielectric.eps(f)[None, :] * scale
     er = eps_r.real
     check_range(f"{kind} (conformal mapping)", "thickness/gap", t / s, 0, 0.5)
