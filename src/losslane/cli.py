@@ -220,9 +220,14 @@ def _stackup(section, skip: tuple[str, ...] = ()) -> str:
     return ", ".join(parts)
 
 
+#: spread shows a progress bar above this many sample-frequency evaluations (about 1.5 s
+#: of the vectorized models; the per-sample path counts 10 000 per sample)
+PROGRESS_WORK = 1_000_000
+
+
 def _progress(samples: int, work: int):
     """A stderr progress bar for long runs (never on stdout), else a no-op context."""
-    if work < 1_000_000:
+    if work < PROGRESS_WORK:
         return contextlib.nullcontext(None)
     return click.progressbar(length=samples, label="sampling", file=sys.stderr)
 
