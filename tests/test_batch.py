@@ -60,17 +60,24 @@ def test_batch_equals_scalar_models(foil: str) -> None:
             total, cond, diel = res.loss_db_per_in()
             for i in range(n):
                 d = dataclasses.replace(sec.dielectric, dk=sec.dielectric.dk * scale[i])
-                one = dataclasses.replace(sec, dielectric=d,
-                                          **{k: float(v[i]) for k, v in samples.items()})
+                one = dataclasses.replace(
+                    sec, dielectric=d, **{k: float(v[i]) for k, v in samples.items()}
+                )
                 mode, nums = scalar(one, F)
-                for got, want in ((res.r[i], mode.r), (res.l[i], mode.l), (res.g[i], mode.g),
-                                  (res.c[i], mode.c), (res.eps_eff[i], mode.eps_eff),
-                                  (res.impedance[i], nums["z0_ohm"]),
-                                  (total[i], nums["loss_db_per_in"]),
-                                  (cond[i], nums["conductor_db_per_in"]),
-                                  (diel[i], nums["dielectric_db_per_in"])):
-                    np.testing.assert_allclose(got, want, rtol=1e-9, atol=1e-15,
-                                               err_msg=f"{sec.kind} {foil} sample {i}")
+                for got, want in (
+                    (res.r[i], mode.r),
+                    (res.l[i], mode.l),
+                    (res.g[i], mode.g),
+                    (res.c[i], mode.c),
+                    (res.eps_eff[i], mode.eps_eff),
+                    (res.impedance[i], nums["z0_ohm"]),
+                    (total[i], nums["loss_db_per_in"]),
+                    (cond[i], nums["conductor_db_per_in"]),
+                    (diel[i], nums["dielectric_db_per_in"]),
+                ):
+                    np.testing.assert_allclose(
+                        got, want, rtol=1e-9, atol=1e-15, err_msg=f"{sec.kind} {foil} sample {i}"
+                    )
 
 
 def test_dk_scale_equals_a_refit_at_the_scaled_dk() -> None:

@@ -12,10 +12,22 @@ from losslane.cli import main
 from losslane.xsection.factory import KINDS
 
 MIL = 25.4e-6
-MATERIALS = ["epoxy-glass-standard", "epoxy-glass-midloss", "low-loss", "very-low-loss",
-             "ultra-low-loss", "ptfe-ceramic"]
-DF = {"epoxy-glass-standard": 0.020, "epoxy-glass-midloss": 0.010, "low-loss": 0.006,
-      "very-low-loss": 0.0035, "ultra-low-loss": 0.0018, "ptfe-ceramic": 0.0013}
+MATERIALS = [
+    "epoxy-glass-standard",
+    "epoxy-glass-midloss",
+    "low-loss",
+    "very-low-loss",
+    "ultra-low-loss",
+    "ptfe-ceramic",
+]
+DF = {
+    "epoxy-glass-standard": 0.020,
+    "epoxy-glass-midloss": 0.010,
+    "low-loss": 0.006,
+    "very-low-loss": 0.0035,
+    "ultra-low-loss": 0.0018,
+    "ptfe-ceramic": 0.0013,
+}
 # rough to smooth (bundled Huray classes; smooth is ideal copper)
 FOILS = ["standard-ed", "reverse-treated", "very-low-profile", "hyper-low-profile", "smooth"]
 MICROSTRIP = ["microstrip", "--height", "4mil", "--thickness", "1.4mil"]
@@ -41,9 +53,22 @@ def grid(tmp_path_factory) -> dict:
 
     buf = io.StringIO()
     with contextlib.redirect_stdout(buf):
-        rc = main(["compare", *MICROSTRIP, "--materials", ",".join(MATERIALS), "--foils",
-                   ",".join(FOILS), "--target", "50", "--at", "1GHz,14GHz,28GHz", "--json",
-                   "--no-plot"])
+        rc = main(
+            [
+                "compare",
+                *MICROSTRIP,
+                "--materials",
+                ",".join(MATERIALS),
+                "--foils",
+                ",".join(FOILS),
+                "--target",
+                "50",
+                "--at",
+                "1GHz,14GHz,28GHz",
+                "--json",
+                "--no-plot",
+            ]
+        )
     assert rc == 0
     return json.loads(buf.getvalue())
 
@@ -87,16 +112,23 @@ def test_rows_sorted_and_split_adds_up(grid: dict) -> None:
     assert len(grid["rows"]) == len(MATERIALS) * len(FOILS)
     for r in grid["rows"]:
         assert abs(r["achieved_ohm"] - 50.0) < 1e-6
-        for t, c, d in zip(r["loss_db_per_in"], r["conductor_db_per_in"],
-                           r["dielectric_db_per_in"], strict=True):
+        for t, c, d in zip(
+            r["loss_db_per_in"], r["conductor_db_per_in"], r["dielectric_db_per_in"], strict=True
+        ):
             assert t == pytest.approx(c + d, rel=1e-12)
 
 
 def test_json_contract(grid: dict) -> None:
     assert grid["frequencies_hz"] == [1e9, 14e9, 28e9]
     for r in grid["rows"]:
-        for key in ("material", "foil", "width_m", "loss_db_per_in", "conductor_db_per_in",
-                    "dielectric_db_per_in"):
+        for key in (
+            "material",
+            "foil",
+            "width_m",
+            "loss_db_per_in",
+            "conductor_db_per_in",
+            "dielectric_db_per_in",
+        ):
             assert key in r
         assert len(r["loss_db_per_in"]) == 3
 
@@ -104,9 +136,20 @@ def test_json_contract(grid: dict) -> None:
 def test_row_round_trips_through_line(capsys, grid: dict) -> None:
     # Source: round trip through `losslane line` with the row's width.
     r = grid["rows"][0]
-    rc, out, err = run(capsys, "line", *MICROSTRIP, "--width", f"{r['width_m']!r}m",
-                       "--dielectric", r["material"], "--foil", r["foil"], "--at",
-                       "1GHz,14GHz,28GHz", "--json")
+    rc, out, err = run(
+        capsys,
+        "line",
+        *MICROSTRIP,
+        "--width",
+        f"{r['width_m']!r}m",
+        "--dielectric",
+        r["material"],
+        "--foil",
+        r["foil"],
+        "--at",
+        "1GHz,14GHz,28GHz",
+        "--json",
+    )
     assert rc == 0, err
     p = json.loads(out)
     assert abs(p["z0_ohm"][0] - 50.0) < 0.05
@@ -118,12 +161,28 @@ def test_stripline_dielectric_loss_matches_tem_formula(capsys, tmp_path: Path) -
     # for a homogeneous dielectric), i.e. about 2.3 f[GHz] Df sqrt(Dk) dB/in (common
     # practice). At the dk/df frequency (10 GHz) the causal model has exactly that Dk, Df.
     lib = tmp_path / "lib.toml"
-    lib.write_text("".join(
-        f'[dielectrics.test-{i}]\ndk = 3.6\ndf = {df}\nat = "10 GHz"\nnote = "test"\n'
-        for i, df in enumerate((0.002, 0.005, 0.010, 0.020))))
-    res = compare_json(capsys, *STRIPLINE, "--materials", "test-0,test-1,test-2,test-3",
-                       "--foils", "smooth", "--target", "50", "--at", "10GHz", "--size-at",
-                       "10GHz", "--library", str(lib))
+    lib.write_text(
+        "".join(
+            f'[dielectrics.test-{i}]\ndk = 3.6\ndf = {df}\nat = "10 GHz"\nnote = "test"\n'
+            for i, df in enumerate((0.002, 0.005, 0.010, 0.020))
+        )
+    )
+    res = compare_json(
+        capsys,
+        *STRIPLINE,
+        "--materials",
+        "test-0,test-1,test-2,test-3",
+        "--foils",
+        "smooth",
+        "--target",
+        "50",
+        "--at",
+        "10GHz",
+        "--size-at",
+        "10GHz",
+        "--library",
+        str(lib),
+    )
     widths = {r["width_m"] for r in res["rows"]}
     # sized where all four have Dk 3.6 (below it the causal model's Dk rises with Df), so
     # the widths agree to the small Df-dependence of the loss terms
@@ -137,9 +196,20 @@ def test_stripline_dielectric_loss_matches_tem_formula(capsys, tmp_path: Path) -
 
 def test_chart_is_written(capsys, tmp_path: Path) -> None:
     png = tmp_path / "out" / "cmp.png"
-    rc, out, err = run(capsys, "compare", *MICROSTRIP, "--materials", "low-loss,ptfe-ceramic",
-                       "--foils", "smooth,standard-ed", "--target", "50", "--plot", str(png),
-                       "--json")
+    rc, out, err = run(
+        capsys,
+        "compare",
+        *MICROSTRIP,
+        "--materials",
+        "low-loss,ptfe-ceramic",
+        "--foils",
+        "smooth,standard-ed",
+        "--target",
+        "50",
+        "--plot",
+        str(png),
+        "--json",
+    )
     assert rc == 0, err
     assert json.loads(out)["plot"] == str(png)
     assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
@@ -147,20 +217,31 @@ def test_chart_is_written(capsys, tmp_path: Path) -> None:
 
 
 def test_text_table(capsys, tmp_path: Path) -> None:
-    rc, out, _ = run(capsys, "compare", *MICROSTRIP, "--materials", "low-loss,ptfe-ceramic",
-                     "--target", "50", "--no-plot")
+    rc, out, _ = run(
+        capsys,
+        "compare",
+        *MICROSTRIP,
+        "--materials",
+        "low-loss,ptfe-ceramic",
+        "--target",
+        "50",
+        "--no-plot",
+    )
     assert rc == 0
     assert "re-sized to Z0 = 50 ohm" in out and "ptfe-ceramic" in out
     assert out.index("ptfe-ceramic") < out.index("low-loss")  # lowest loss first
 
 
-@pytest.mark.parametrize("argv, words", [
-    (["--materials", "no-such-laminate"], ("--materials", "unknown dielectric")),
-    (["--materials", "low-loss", "--foils", "mirror"], ("--foils", "unknown foil")),
-    (["--materials", "low-loss", "--dk", "3.5"], ("--materials",)),
-    (["--materials", "low-loss", "--width", "5mil"], ("--width",)),
-    (["--materials", "low-loss,", "--target", "50"], ("--materials",)),
-])
+@pytest.mark.parametrize(
+    "argv, words",
+    [
+        (["--materials", "no-such-laminate"], ("--materials", "unknown dielectric")),
+        (["--materials", "low-loss", "--foils", "mirror"], ("--foils", "unknown foil")),
+        (["--materials", "low-loss", "--dk", "3.5"], ("--materials",)),
+        (["--materials", "low-loss", "--width", "5mil"], ("--width",)),
+        (["--materials", "low-loss,", "--target", "50"], ("--materials",)),
+    ],
+)
 def test_bad_requests_are_exit_2(capsys, argv, words) -> None:
     args = ["compare", *MICROSTRIP, *argv]
     if "--target" not in argv:
@@ -172,16 +253,35 @@ def test_bad_requests_are_exit_2(capsys, argv, words) -> None:
 
 
 def test_impossible_target_names_the_candidate(capsys) -> None:
-    rc, _, err = run(capsys, "compare", *MICROSTRIP, "--materials", "low-loss,ptfe-ceramic",
-                     "--target", "300", "--no-plot")
+    rc, _, err = run(
+        capsys,
+        "compare",
+        *MICROSTRIP,
+        "--materials",
+        "low-loss,ptfe-ceramic",
+        "--target",
+        "300",
+        "--no-plot",
+    )
     assert rc == 2 and "material 'low-loss'" in err and "thicker dielectric" in err
 
 
 def test_pairs_compare_at_equal_z_diff(capsys) -> None:
     if "microstrip-pair" not in KINDS:
         pytest.skip("microstrip-pair is not a registered line kind in this build")
-    res = compare_json(capsys, "microstrip-pair", "--height", "4mil", "--thickness", "1.4mil",
-                       "--spacing", "6mil", "--materials", "low-loss,ptfe-ceramic",
-                       "--target", "100")
+    res = compare_json(
+        capsys,
+        "microstrip-pair",
+        "--height",
+        "4mil",
+        "--thickness",
+        "1.4mil",
+        "--spacing",
+        "6mil",
+        "--materials",
+        "low-loss,ptfe-ceramic",
+        "--target",
+        "100",
+    )
     widths = {r["material"]: r["width_m"] for r in res["rows"]}
     assert widths["ptfe-ceramic"] > widths["low-loss"]

@@ -68,8 +68,17 @@ def test_bundled_values_are_marked_typical(capsys) -> None:
 def test_text_table(capsys) -> None:
     rc, out, _ = run(capsys, "materials")
     assert rc == 0
-    for word in ("dielectrics", "foils", "low-loss", "very-low-profile", "huray", "typical",
-                 "Dk", "Df", "at GHz"):
+    for word in (
+        "dielectrics",
+        "foils",
+        "low-loss",
+        "very-low-profile",
+        "huray",
+        "typical",
+        "Dk",
+        "Df",
+        "at GHz",
+    ):
         assert word in out
 
 
@@ -79,7 +88,8 @@ def test_library_file_extends_and_overrides(capsys, tmp_path: Path) -> None:
         '[dielectrics.house-core]\nclass = "our core"\ndk = 3.45\ndf = 0.004\nat = "5 GHz"\n'
         'note = "measured on our coupons"\n'
         '[dielectrics.low-loss]\ndk = 3.55\ndf = 0.0055\nat = "10 GHz"\n'
-        '[foils.house-foil]\nmodel = "groiss"\nrq = "0.45 um"\n')
+        '[foils.house-foil]\nmodel = "groiss"\nrq = "0.45 um"\n'
+    )
     rc, out, err = run(capsys, "materials", "--library", str(lib), "--json")
     assert rc == 0, err
     res = json.loads(out)
@@ -95,20 +105,25 @@ def test_library_file_extends_and_overrides(capsys, tmp_path: Path) -> None:
 
 def test_scenario_entries_are_listed(capsys, tmp_path: Path) -> None:
     sc = tmp_path / "lane.toml"
-    sc.write_text('name = "x"\n[dielectrics.core]\ndk = 3.7\ndf = 0.009\nat = "10 GHz"\n'
-                  '[lines.host]\nkind = "microstrip"\n')
+    sc.write_text(
+        'name = "x"\n[dielectrics.core]\ndk = 3.7\ndf = 0.009\nat = "10 GHz"\n'
+        '[lines.host]\nkind = "microstrip"\n'
+    )
     rc, out, err = run(capsys, "materials", "--scenario", str(sc), "--json")
     assert rc == 0, err
     names = [d["name"] for d in json.loads(out)["dielectrics"]]
     assert "core" in names
 
 
-@pytest.mark.parametrize("content, words", [
-    ("[dielectrics.bad]\ndk = 0.5\n", ("dk",)),
-    ("[dielectrics.bad]\ndk = 3.5\ndf = 0.01\n", ("'at'",)),
-    ("[foils.bad]\nmodel = \"velvet\"\n", ("model",)),
-    ("not toml = = 3\n", ("not valid TOML",)),
-])
+@pytest.mark.parametrize(
+    "content, words",
+    [
+        ("[dielectrics.bad]\ndk = 0.5\n", ("dk",)),
+        ("[dielectrics.bad]\ndk = 3.5\ndf = 0.01\n", ("'at'",)),
+        ('[foils.bad]\nmodel = "velvet"\n', ("model",)),
+        ("not toml = = 3\n", ("not valid TOML",)),
+    ],
+)
 def test_bad_library_file_is_exit_2(capsys, tmp_path: Path, content: str, words) -> None:
     lib = tmp_path / "bad.toml"
     lib.write_text(content)

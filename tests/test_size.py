@@ -32,16 +32,69 @@ def size_json(capsys, *argv: str) -> dict:
 
 
 CASES = {
-    "microstrip": ["microstrip", "--height", "3.5mil", "--thickness", "1.4mil", "--dk", "3.7",
-                   "--df", "0.009", "--dk-at", "10GHz", "--foil", "very-low-profile"],
-    "stripline": ["stripline", "--below", "5mil", "--above", "5mil", "--thickness", "0.6mil",
-                  "--dielectric", "low-loss", "--foil", "standard-ed"],
-    "offset stripline": ["stripline", "--below", "4mil", "--above", "9mil", "--thickness",
-                         "0.6mil", "--dielectric", "very-low-loss"],
-    "cpw": ["cpw", "--gap", "4mil", "--height", "20mil", "--thickness", "1.4mil",
-            "--dielectric", "epoxy-glass-standard"],
-    "gcpw": ["gcpw", "--gap", "5mil", "--height", "4mil", "--thickness", "1.4mil",
-             "--dielectric", "low-loss", "--foil", "reverse-treated"],
+    "microstrip": [
+        "microstrip",
+        "--height",
+        "3.5mil",
+        "--thickness",
+        "1.4mil",
+        "--dk",
+        "3.7",
+        "--df",
+        "0.009",
+        "--dk-at",
+        "10GHz",
+        "--foil",
+        "very-low-profile",
+    ],
+    "stripline": [
+        "stripline",
+        "--below",
+        "5mil",
+        "--above",
+        "5mil",
+        "--thickness",
+        "0.6mil",
+        "--dielectric",
+        "low-loss",
+        "--foil",
+        "standard-ed",
+    ],
+    "offset stripline": [
+        "stripline",
+        "--below",
+        "4mil",
+        "--above",
+        "9mil",
+        "--thickness",
+        "0.6mil",
+        "--dielectric",
+        "very-low-loss",
+    ],
+    "cpw": [
+        "cpw",
+        "--gap",
+        "4mil",
+        "--height",
+        "20mil",
+        "--thickness",
+        "1.4mil",
+        "--dielectric",
+        "epoxy-glass-standard",
+    ],
+    "gcpw": [
+        "gcpw",
+        "--gap",
+        "5mil",
+        "--height",
+        "4mil",
+        "--thickness",
+        "1.4mil",
+        "--dielectric",
+        "low-loss",
+        "--foil",
+        "reverse-treated",
+    ],
 }
 
 
@@ -52,8 +105,9 @@ def test_round_trip_through_line(capsys, case: str, target: str, at: str) -> Non
     # must report the target impedance (issue 6: within 0.05 ohm).
     args = CASES[case]
     res = size_json(capsys, *args, "--target", target, "--at", at)
-    rc, out, err = run(capsys, "line", *args, "--width", f"{res['width_m']!r}m", "--at", at,
-                       "--json")
+    rc, out, err = run(
+        capsys, "line", *args, "--width", f"{res['width_m']!r}m", "--at", at, "--json"
+    )
     assert rc == 0, err
     z = json.loads(out)["z0_ohm"][0]
     want = float(target.removesuffix("ohm"))
@@ -64,8 +118,20 @@ def test_round_trip_through_line(capsys, case: str, target: str, at: str) -> Non
 def test_microstrip_rule_of_thumb_and_scikit_rf(capsys) -> None:
     # Source: common practice -- a 50 ohm zero-thickness surface microstrip on Dk ~ 4.2 has
     # w/h about 1.9-2.0.
-    res = size_json(capsys, "microstrip", "--height", "5mil", "--thickness", "0mil", "--dk",
-                    "4.2", "--dielectric-model", "constant", "--target", "50")
+    res = size_json(
+        capsys,
+        "microstrip",
+        "--height",
+        "5mil",
+        "--thickness",
+        "0mil",
+        "--dk",
+        "4.2",
+        "--dielectric-model",
+        "constant",
+        "--target",
+        "50",
+    )
     ratio = res["width_m"] / (5 * MIL)
     assert 1.9 <= ratio <= 2.0
     # Source: scikit-rf's independent Hammerstad-Jensen / Kirschning-Jansen microstrip
@@ -76,9 +142,18 @@ def test_microstrip_rule_of_thumb_and_scikit_rf(capsys) -> None:
     freq = Frequency(1, 1, 1, unit="GHz")
 
     def z_skrf(w: float) -> float:
-        m = MLine(freq, w=w, h=5 * MIL, t=None, ep_r=4.2, tand=0.0, rho=None,
-                  diel="frequencyinvariant", disp="kirschningjansen",
-                  compatibility_mode="qucs")
+        m = MLine(
+            freq,
+            w=w,
+            h=5 * MIL,
+            t=None,
+            ep_r=4.2,
+            tand=0.0,
+            rho=None,
+            diel="frequencyinvariant",
+            disp="kirschningjansen",
+            compatibility_mode="qucs",
+        )
         return float(np.real(m.z0_characteristic[0]))
 
     w_skrf = brentq(lambda w: z_skrf(w) - 50.0, 1 * MIL, 20 * MIL, xtol=1e-12)
@@ -86,8 +161,22 @@ def test_microstrip_rule_of_thumb_and_scikit_rf(capsys) -> None:
 
 
 def test_stripline_cohn_exact_inverted(capsys) -> None:
-    res = size_json(capsys, "stripline", "--below", "5mil", "--above", "5mil", "--thickness",
-                    "0mil", "--dk", "4.0", "--dielectric-model", "constant", "--target", "50")
+    res = size_json(
+        capsys,
+        "stripline",
+        "--below",
+        "5mil",
+        "--above",
+        "5mil",
+        "--thickness",
+        "0mil",
+        "--dk",
+        "4.0",
+        "--dielectric-model",
+        "constant",
+        "--target",
+        "50",
+    )
     b = 10 * MIL
     ratio = res["width_m"] / b
 
@@ -114,8 +203,9 @@ def test_sensitivity_matches_line_finite_differences(capsys, case: str) -> None:
     w = res["width_m"]
 
     def z_line(width: float, argv: list[str]) -> float:
-        rc, out, err = run(capsys, "line", *argv, "--width", f"{width!r}m", "--at", "1GHz",
-                           "--json")
+        rc, out, err = run(
+            capsys, "line", *argv, "--width", f"{width!r}m", "--at", "1GHz", "--json"
+        )
         assert rc == 0, err
         return json.loads(out)["z0_ohm"][0]
 
@@ -135,8 +225,10 @@ def test_sensitivity_matches_line_finite_differences(capsys, case: str) -> None:
             a[j + 1] = f"{float(args[j + 1].removesuffix('mil')) + delta}mil"
         return a
 
-    slope_h = (z_line(w, with_height(0.025 if key == "--below" else 0.05))
-               - z_line(w, with_height(-0.025 if key == "--below" else -0.05))) / 0.1
+    slope_h = (
+        z_line(w, with_height(0.025 if key == "--below" else 0.05))
+        - z_line(w, with_height(-0.025 if key == "--below" else -0.05))
+    ) / 0.1
     assert res["sensitivity"]["ohm_per_mil_height"] == pytest.approx(slope_h, rel=1e-2)
     assert slope_h > 0
 
@@ -153,15 +245,15 @@ def test_dk_sensitivity_of_stripline_is_analytic() -> None:
 
 
 def test_json_contract(capsys) -> None:
-    res = size_json(capsys, *CASES["microstrip"], "--target", "50", "--loss-at",
-                    "1GHz,10GHz")
+    res = size_json(capsys, *CASES["microstrip"], "--target", "50", "--loss-at", "1GHz,10GHz")
     for key in ("kind", "target_ohm", "achieved_ohm", "width_m", "sensitivity"):
         assert key in res
     for key in ("ohm_per_mil_width", "ohm_per_mil_height", "ohm_per_0p1_dk"):
         assert isinstance(res["sensitivity"][key], float)
     assert res["loss_frequencies_hz"] == [1e9, 10e9]
-    for t, c, d in zip(res["loss_db_per_in"], res["conductor_db_per_in"],
-                       res["dielectric_db_per_in"], strict=True):
+    for t, c, d in zip(
+        res["loss_db_per_in"], res["conductor_db_per_in"], res["dielectric_db_per_in"], strict=True
+    ):
         assert t == pytest.approx(c + d, rel=1e-12) and c > 0 and d > 0
 
 
@@ -171,10 +263,13 @@ def test_text_output_says_the_frequency(capsys) -> None:
     assert "solved width" in out and "at 1 GHz" in out and "dB/in" in out
 
 
-@pytest.mark.parametrize("target, words", [
-    ("200", ("width/height < 0.1", "thicker dielectric", "lower target")),
-    ("1", ("width/height > 100", "thinner dielectric", "higher target")),
-])
+@pytest.mark.parametrize(
+    "target, words",
+    [
+        ("200", ("width/height < 0.1", "thicker dielectric", "lower target")),
+        ("1", ("width/height > 100", "thinner dielectric", "higher target")),
+    ],
+)
 def test_impossible_targets_say_which_way_to_move(capsys, target: str, words) -> None:
     # Source: issue 6 -- no solution inside the validity range is exit 2 with a message
     # saying which way to move, not a silent clamp.
@@ -186,16 +281,32 @@ def test_impossible_targets_say_which_way_to_move(capsys, target: str, words) ->
 
 
 def test_cpw_out_of_range_names_the_gap(capsys) -> None:
-    rc, _, err = run(capsys, "size", "cpw", "--gap", "5mil", "--height", "30mil",
-                     "--thickness", "1.4mil", "--dielectric", "ptfe-ceramic", "--target", "50")
+    rc, _, err = run(
+        capsys,
+        "size",
+        "cpw",
+        "--gap",
+        "5mil",
+        "--height",
+        "30mil",
+        "--thickness",
+        "1.4mil",
+        "--dielectric",
+        "ptfe-ceramic",
+        "--target",
+        "50",
+    )
     assert rc == 2 and "width/gap > 5" in err and "narrower --gap" in err
 
 
-@pytest.mark.parametrize("argv, words", [
-    (["--width", "5mil"], ("--width", "solves for")),
-    (["--vary", "spacing"], ("spacing", "pairs")),
-    (["--at", "0Hz"], ("above 0 Hz",)),
-])
+@pytest.mark.parametrize(
+    "argv, words",
+    [
+        (["--width", "5mil"], ("--width", "solves for")),
+        (["--vary", "spacing"], ("spacing", "pairs")),
+        (["--at", "0Hz"], ("above 0 Hz",)),
+    ],
+)
 def test_bad_requests_are_exit_2(capsys, argv, words) -> None:
     rc, _, err = run(capsys, "size", *CASES["microstrip"], "--target", "50", *argv)
     assert rc == 2
@@ -218,16 +329,24 @@ def test_search_range_for_microstrip_is_the_models_range() -> None:
 
 
 PAIRS = {
-    "microstrip-pair": ["--height", "4mil", "--thickness", "1.4mil", "--dielectric",
-                        "low-loss"],
-    "stripline-pair": ["--below", "5mil", "--above", "5mil", "--thickness", "0.6mil",
-                       "--dielectric", "low-loss"],
+    "microstrip-pair": ["--height", "4mil", "--thickness", "1.4mil", "--dielectric", "low-loss"],
+    "stripline-pair": [
+        "--below",
+        "5mil",
+        "--above",
+        "5mil",
+        "--thickness",
+        "0.6mil",
+        "--dielectric",
+        "low-loss",
+    ],
 }
 
 
 @pytest.mark.parametrize("kind", sorted(PAIRS))
-@pytest.mark.parametrize("vary, given", [("width", ("--spacing", "6mil")),
-                                         ("spacing", ("--width", "5mil"))])
+@pytest.mark.parametrize(
+    "vary, given", [("width", ("--spacing", "6mil")), ("spacing", ("--width", "5mil"))]
+)
 def test_pair_round_trip(capsys, kind: str, vary: str, given: tuple[str, str]) -> None:
     if kind not in KINDS:
         pytest.skip(f"{kind} is not a registered line kind in this build")
@@ -235,7 +354,17 @@ def test_pair_round_trip(capsys, kind: str, vary: str, given: tuple[str, str]) -
     res = size_json(capsys, kind, *PAIRS[kind], *given, "--vary", vary, "--target", "100")
     assert "spacing_m" in res
     value = res["width_m"] if vary == "width" else res["spacing_m"]
-    rc, out, err = run(capsys, "line", kind, *PAIRS[kind], *given, f"--{vary}",
-                       f"{value!r}m", "--at", "1GHz", "--json")
+    rc, out, err = run(
+        capsys,
+        "line",
+        kind,
+        *PAIRS[kind],
+        *given,
+        f"--{vary}",
+        f"{value!r}m",
+        "--at",
+        "1GHz",
+        "--json",
+    )
     assert rc == 0, err
     assert abs(json.loads(out)["z_diff_ohm"][0] - 100.0) < 0.05

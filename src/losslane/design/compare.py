@@ -14,12 +14,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from losslane.design.sizing import DEFAULT_SIZE_AT, size
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness
 from losslane.xsection.base import CrossSection
 from losslane.xsection.batch import evaluate
-from losslane.design.sizing import DEFAULT_SIZE_AT, size
 
 
 @dataclass(frozen=True)
@@ -75,10 +75,16 @@ class CompareResult:
         }
 
 
-def compare(section: CrossSection, materials: Mapping[str, Dielectric],
-            foils: Mapping[str, Roughness] | None, target: float,
-            frequencies: Sequence[float], *, size_at: float = DEFAULT_SIZE_AT,
-            curve_points: int = 121) -> CompareResult:
+def compare(
+    section: CrossSection,
+    materials: Mapping[str, Dielectric],
+    foils: Mapping[str, Roughness] | None,
+    target: float,
+    frequencies: Sequence[float],
+    *,
+    size_at: float = DEFAULT_SIZE_AT,
+    curve_points: int = 121,
+) -> CompareResult:
     """Re-size ``section`` to ``target`` ohm for every material x foil and tabulate loss.
 
     ``section`` gives the stackup dimensions (its width is a placeholder); ``foils`` None
@@ -105,9 +111,19 @@ def compare(section: CrossSection, materials: Mapping[str, Dielectric],
                 raise LossLaneError(f"material {mname!r} with foil {fname!r}: {exc}") from None
             p = res.properties
             curve = evaluate(res.section, curve_f).loss_db_per_in()[0][0]
-            out.append(Candidate(mname, fname, res.section, res.achieved,
-                                 p["loss_db_per_in"][1:], p["conductor_db_per_in"][1:],
-                                 p["dielectric_db_per_in"][1:], curve_f, curve))
+            out.append(
+                Candidate(
+                    mname,
+                    fname,
+                    res.section,
+                    res.achieved,
+                    p["loss_db_per_in"][1:],
+                    p["conductor_db_per_in"][1:],
+                    p["dielectric_db_per_in"][1:],
+                    curve_f,
+                    curve,
+                )
+            )
     top = int(np.argmax(freqs))
     out.sort(key=lambda c: c.loss[top])
     return CompareResult(section.kind, target, size_at, freqs, out)

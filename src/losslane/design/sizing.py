@@ -64,24 +64,45 @@ def search_range(section: CrossSection, vary: str = "width") -> SearchRange:
     geo = nominal_geometry(section)
     kind = section.kind
     if vary not in geo:
-        raise LossLaneError(f"--vary {vary}: {kind} has no {vary}; it has "
-                            f"{', '.join(k for k in geo if k != 'thickness')}")
+        raise LossLaneError(
+            f"--vary {vary}: {kind} has no {vary}; it has "
+            f"{', '.join(k for k in geo if k != 'thickness')}"
+        )
     pair = section.n_conductors == 2
     if vary == "spacing" and not pair:
-        raise LossLaneError(f"--vary spacing: {kind} is a single line; spacing is varied "
-                            "only for pairs (microstrip-pair, stripline-pair)")
+        raise LossLaneError(
+            f"--vary spacing: {kind} is a single line; spacing is varied "
+            "only for pairs (microstrip-pair, stripline-pair)"
+        )
     if kind == "microstrip" and vary == "width":
-        return SearchRange("width", "width/height", geo["height"], 0.1, 100.0,
-                           "Hammerstad-Jensen with Kirschning-Jansen dispersion")
+        return SearchRange(
+            "width",
+            "width/height",
+            geo["height"],
+            0.1,
+            100.0,
+            "Hammerstad-Jensen with Kirschning-Jansen dispersion",
+        )
     if kind == "stripline" and vary == "width":
         ref = geo["below"] + geo["above"]
         centred = abs(geo["below"] - geo["above"]) <= 1e-9 * (ref + geo["thickness"])
         if centred:
-            return SearchRange("width", "width/(below + above)", ref, 0.01, 10.0,
-                               "Cohn's exact solution with Wheeler's thickness correction")
-        return SearchRange("width", "width/(below + above)", ref, 0.35, 10.0,
-                           "offset stripline (parallel combination), Wheeler's thickness "
-                           "correction")
+            return SearchRange(
+                "width",
+                "width/(below + above)",
+                ref,
+                0.01,
+                10.0,
+                "Cohn's exact solution with Wheeler's thickness correction",
+            )
+        return SearchRange(
+            "width",
+            "width/(below + above)",
+            ref,
+            0.35,
+            10.0,
+            "offset stripline (parallel combination), Wheeler's thickness correction",
+        )
     if kind in ("cpw", "gcpw") and vary == "width":
         gap, h, t = geo["gap"], geo["height"], geo["thickness"]
         hi = min(5.0, 5.0 * h / gap)
@@ -95,17 +116,23 @@ def search_range(section: CrossSection, vary: str = "width") -> SearchRange:
                 source += "; Gupta thickness correction (widening below the gap)"
         return SearchRange("width", "width/gap", gap, max(0.1, 0.1 * h / gap), hi, source)
     if kind == "microstrip-pair":
-        return SearchRange(vary, f"{vary}/height", geo["height"], 0.1, 10.0,
-                           "Kirschning-Jansen coupled microstrip")
+        return SearchRange(
+            vary, f"{vary}/height", geo["height"], 0.1, 10.0, "Kirschning-Jansen coupled microstrip"
+        )
     if kind == "stripline-pair":
         ref = geo["below"] + geo["above"]
-        return SearchRange(vary, f"{vary}/(below + above)", ref, 0.01, 10.0,
-                           "Cohn's coupled stripline (search bounds)")
+        return SearchRange(
+            vary,
+            f"{vary}/(below + above)",
+            ref,
+            0.01,
+            10.0,
+            "Cohn's coupled stripline (search bounds)",
+        )
     for key, label in (("height", "height"), ("below", "below + above"), ("gap", "gap")):
         if key in geo:
             ref = geo["below"] + geo["above"] if key == "below" else geo[key]
-            return SearchRange(vary, f"{vary}/{label}", ref, 0.01, 100.0,
-                               f"{kind} (search bounds)")
+            return SearchRange(vary, f"{vary}/{label}", ref, 0.01, 100.0, f"{kind} (search bounds)")
     raise LossLaneError(f"size: no search range is known for kind {kind!r}")
 
 
@@ -135,25 +162,43 @@ def _hints(section: CrossSection, vary: str, lower: bool) -> str:
     """How to move the stackup so that a lower (``lower``) or higher impedance fits."""
     kind = section.kind
     if vary == "spacing":
-        return ("wider traces (larger --width) or a thinner dielectric" if lower
-                else "narrower traces (smaller --width) or a thicker dielectric")
+        return (
+            "wider traces (larger --width) or a thinner dielectric"
+            if lower
+            else "narrower traces (smaller --width) or a thicker dielectric"
+        )
     if kind.startswith("stripline"):
-        return ("thinner dielectric layers (smaller --below/--above) or a higher-Dk material"
-                if lower else
-                "thicker dielectric layers (larger --below/--above) or a lower-Dk material")
+        return (
+            "thinner dielectric layers (smaller --below/--above) or a higher-Dk material"
+            if lower
+            else "thicker dielectric layers (larger --below/--above) or a lower-Dk material"
+        )
     if kind == "cpw":
-        return ("a narrower --gap or a higher-Dk material" if lower
-                else "a wider --gap or a lower-Dk material")
+        return (
+            "a narrower --gap or a higher-Dk material"
+            if lower
+            else "a wider --gap or a lower-Dk material"
+        )
     if kind == "gcpw":
-        return ("a narrower --gap, a thinner dielectric (smaller --height) or a higher-Dk "
-                "material" if lower else
-                "a wider --gap, a thicker dielectric (larger --height) or a lower-Dk material")
-    return ("a thinner dielectric (smaller --height) or a higher-Dk material" if lower
-            else "a thicker dielectric (larger --height) or a lower-Dk material")
+        return (
+            "a narrower --gap, a thinner dielectric (smaller --height) or a higher-Dk material"
+            if lower
+            else "a wider --gap, a thicker dielectric (larger --height) or a lower-Dk material"
+        )
+    return (
+        "a thinner dielectric (smaller --height) or a higher-Dk material"
+        if lower
+        else "a thicker dielectric (larger --height) or a lower-Dk material"
+    )
 
 
-def solve(section: CrossSection, target: float, at: float = DEFAULT_SIZE_AT,
-          vary: str = "width", points: int = 33) -> tuple[float, SearchRange]:
+def solve(
+    section: CrossSection,
+    target: float,
+    at: float = DEFAULT_SIZE_AT,
+    vary: str = "width",
+    points: int = 33,
+) -> tuple[float, SearchRange]:
     """The value of ``vary`` (m) at which ``section`` has impedance ``target`` at ``at`` Hz.
 
     Raises a LossLaneError naming the direction to move when no value inside the model's
@@ -164,19 +209,25 @@ def solve(section: CrossSection, target: float, at: float = DEFAULT_SIZE_AT,
     if not math.isfinite(target) or target <= 0:
         raise LossLaneError(f"target = {target!r} ohm: must be > 0")
     if not math.isfinite(at) or at <= 0:
-        raise LossLaneError(f"--at = {at!r} Hz: size at a frequency above 0 Hz (e.g. 1GHz); "
-                            "at DC the impedance carries the full internal inductance")
+        raise LossLaneError(
+            f"--at = {at!r} Hz: size at a frequency above 0 Hz (e.g. 1GHz); "
+            "at DC the impedance carries the full internal inductance"
+        )
     rng = search_range(section, vary)
     lo, hi = rng.bounds
     if not lo < hi:
-        raise LossLaneError(f"{section.kind}: the model's validity ranges leave no {vary} "
-                            f"to search ({rng.source}); change the other dimensions")
+        raise LossLaneError(
+            f"{section.kind}: the model's validity ranges leave no {vary} "
+            f"to search ({rng.source}); change the other dimensions"
+        )
     grid = np.geomspace(lo, hi, points)
     z = _quiet_impedance(section, at, **{vary: grid})
     d = z - target
     if not np.all(np.isfinite(d)):
-        raise LossLaneError(f"{section.kind}: the model gives no finite impedance over "
-                            f"{rng.ratio} {rng.lo:g}..{rng.hi:g}")
+        raise LossLaneError(
+            f"{section.kind}: the model gives no finite impedance over "
+            f"{rng.ratio} {rng.lo:g}..{rng.hi:g}"
+        )
     hit = np.nonzero(np.sign(d[:-1]) * np.sign(d[1:]) <= 0)[0]
     if hit.size == 0:
         zmin, zmax = float(z.min()), float(z.max())
@@ -221,8 +272,9 @@ def sensitivity(section: CrossSection, at: float = DEFAULT_SIZE_AT) -> dict[str,
             cases.append((f"ohm_per_mil_{key}", {key: 1e-3 * v}, 1e-3 * v / MIL))
     if "height" not in geo and "below" in geo:
         h = geo["below"] + geo["above"]
-        cases.append(("ohm_per_mil_height", {"below": 0.5e-3 * h, "above": 0.5e-3 * h},
-                      1e-3 * h / MIL))
+        cases.append(
+            ("ohm_per_mil_height", {"below": 0.5e-3 * h, "above": 0.5e-3 * h}, 1e-3 * h / MIL)
+        )
     dk = section.dielectric.dk
     rows = {k: [] for k in geo}
     scales = []
@@ -235,8 +287,9 @@ def sensitivity(section: CrossSection, at: float = DEFAULT_SIZE_AT) -> dict[str,
         for k in geo:
             rows[k].append(geo[k])
         scales.append(1.0 + sign * 0.01 / dk)
-    z = _quiet_impedance(section, at, dk_scale=np.array(scales),
-                         **{k: np.array(v) for k, v in rows.items()})
+    z = _quiet_impedance(
+        section, at, dk_scale=np.array(scales), **{k: np.array(v) for k, v in rows.items()}
+    )
     out: dict[str, float | None] = {}
     for i, (name, _, step) in enumerate(cases):
         out[name] = float((z[2 * i] - z[2 * i + 1]) / (2 * step))
@@ -244,8 +297,7 @@ def sensitivity(section: CrossSection, at: float = DEFAULT_SIZE_AT) -> dict[str,
     if "thickness" in geo and geo["thickness"] == 0:
         out["ohm_per_mil_thickness"] = None
     order = ["ohm_per_mil_width", "ohm_per_mil_height", "ohm_per_0p1_dk"]
-    return {k: out[k] for k in order if k in out} | {k: v for k, v in out.items()
-                                                       if k not in order}
+    return {k: out[k] for k in order if k in out} | {k: v for k, v in out.items() if k not in order}
 
 
 @dataclass(frozen=True)
@@ -281,20 +333,28 @@ class SizeResult:
         if self.section.n_conductors == 2:
             out["spacing_m"] = geo.get("spacing")
         out["sensitivity"] = self.sensitivity
-        out.update({
-            "impedance": "z_diff" if self.section.n_conductors == 2 else "z0",
-            "vary": self.vary,
-            "frequency_hz": self.at,
-            "ratio": {"name": self.range.ratio, "value": self.value / self.range.ref,
-                      "valid_from": self.range.lo, "valid_to": self.range.hi,
-                      "source": self.range.source},
-            "geometry_m": geo,
-            "eps_eff": p["eps_eff"][0] if self.section.n_conductors == 1 else p["eps_eff_odd"][0],
-            "loss_frequencies_hz": p["frequencies_hz"][1:],
-            "loss_db_per_in": p["loss_db_per_in"][1:],
-            "conductor_db_per_in": p["conductor_db_per_in"][1:],
-            "dielectric_db_per_in": p["dielectric_db_per_in"][1:],
-        })
+        out.update(
+            {
+                "impedance": "z_diff" if self.section.n_conductors == 2 else "z0",
+                "vary": self.vary,
+                "frequency_hz": self.at,
+                "ratio": {
+                    "name": self.range.ratio,
+                    "value": self.value / self.range.ref,
+                    "valid_from": self.range.lo,
+                    "valid_to": self.range.hi,
+                    "source": self.range.source,
+                },
+                "geometry_m": geo,
+                "eps_eff": p["eps_eff"][0]
+                if self.section.n_conductors == 1
+                else p["eps_eff_odd"][0],
+                "loss_frequencies_hz": p["frequencies_hz"][1:],
+                "loss_db_per_in": p["loss_db_per_in"][1:],
+                "conductor_db_per_in": p["conductor_db_per_in"][1:],
+                "dielectric_db_per_in": p["dielectric_db_per_in"][1:],
+            }
+        )
         return out
 
 
@@ -303,9 +363,15 @@ def impedance_of(props: dict, i: int = 0) -> float:
     return float(props["z_diff_ohm"][i] if "z_diff_ohm" in props else props["z0_ohm"][i])
 
 
-def size(section: CrossSection, target: float, *, at: float = DEFAULT_SIZE_AT,
-         vary: str = "width", loss_at: list[float] | None = None,
-         with_sensitivity: bool = True) -> SizeResult:
+def size(
+    section: CrossSection,
+    target: float,
+    *,
+    at: float = DEFAULT_SIZE_AT,
+    vary: str = "width",
+    loss_at: list[float] | None = None,
+    with_sensitivity: bool = True,
+) -> SizeResult:
     """Solve ``vary`` of ``section`` for ``target`` ohm at ``at`` Hz (see module docstring).
 
     ``section`` supplies every other dimension and the materials; its value of ``vary`` is

@@ -37,8 +37,10 @@ def parse_tolerance(value: object, key: str, nominal: float) -> float:
     name = f"--{key}-tol"
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         if key != "dk":
-            raise LossLaneError(f"{name} = {value!r}: a length tolerance needs a unit "
-                                '(e.g. "0.5mil") or a percentage ("10%")')
+            raise LossLaneError(
+                f"{name} = {value!r}: a length tolerance needs a unit "
+                '(e.g. "0.5mil") or a percentage ("10%")'
+            )
         tol = float(value)
     elif isinstance(value, str):
         m = re.fullmatch(r"\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*%\s*", value)
@@ -48,8 +50,10 @@ def parse_tolerance(value: object, key: str, nominal: float) -> float:
             try:
                 tol = float(value.strip().lstrip("±"))
             except ValueError:
-                raise LossLaneError(f"{name} = {value!r}: expected a Dk deviation such as 0.1 "
-                                    'or a percentage such as "3%"') from None
+                raise LossLaneError(
+                    f"{name} = {value!r}: expected a Dk deviation such as 0.1 "
+                    'or a percentage such as "3%"'
+                ) from None
         else:
             tol = parse_length(value.strip().lstrip("±"), name)
     else:
@@ -78,8 +82,12 @@ class SpreadResult:
     @staticmethod
     def _stats(a: np.ndarray) -> dict[str, list[float]]:
         p01, p99 = np.percentile(a, [1.0, 99.0], axis=0)
-        return {"mean": a.mean(axis=0).tolist(), "std": a.std(axis=0, ddof=1).tolist(),
-                "p01": p01.tolist(), "p99": p99.tolist()}
+        return {
+            "mean": a.mean(axis=0).tolist(),
+            "std": a.std(axis=0, ddof=1).tolist(),
+            "p01": p01.tolist(),
+            "p99": p99.tolist(),
+        }
 
     @property
     def outside_share(self) -> np.ndarray:
@@ -101,23 +109,35 @@ class SpreadResult:
             "tolerances": {(k if k == "dk" else f"{k}_m"): v for k, v in self.tolerances.items()},
             "target_ohm": self.target.tolist(),
             "band_ohm": self.band.tolist(),
-            "nominal": {"impedance_ohm": self.nominal_impedance.tolist(),
-                        "loss_db_per_in": self.nominal_loss.tolist()},
+            "nominal": {
+                "impedance_ohm": self.nominal_impedance.tolist(),
+                "loss_db_per_in": self.nominal_loss.tolist(),
+            },
         }
 
 
-def draw(section: CrossSection, tolerances: Mapping[str, float], samples: int, seed: int,
-         distribution: str = "normal") -> tuple[dict[str, np.ndarray], np.ndarray]:
+def draw(
+    section: CrossSection,
+    tolerances: Mapping[str, float],
+    samples: int,
+    seed: int,
+    distribution: str = "normal",
+) -> tuple[dict[str, np.ndarray], np.ndarray]:
     """The sampled geometry {key: (S,) metres} and Dk scale (S,) for ``tolerances``."""
     if distribution not in DISTRIBUTIONS:
-        raise LossLaneError(f"--distribution = {distribution!r}: valid values are "
-                            f"{', '.join(DISTRIBUTIONS)}")
+        raise LossLaneError(
+            f"--distribution = {distribution!r}: valid values are {', '.join(DISTRIBUTIONS)}"
+        )
     if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
         raise LossLaneError(f"--seed = {seed!r}: expected a whole number >= 0")
-    if isinstance(samples, bool) or not isinstance(samples, (int, np.integer)) or not (
-            2 <= samples <= MAX_SAMPLES):
-        raise LossLaneError(f"--samples = {samples!r}: expected a whole number from 2 to "
-                            f"{MAX_SAMPLES}")
+    if (
+        isinstance(samples, bool)
+        or not isinstance(samples, (int, np.integer))
+        or not (2 <= samples <= MAX_SAMPLES)
+    ):
+        raise LossLaneError(
+            f"--samples = {samples!r}: expected a whole number from 2 to {MAX_SAMPLES}"
+        )
     geo = nominal_geometry(section)
     valid = [k for k in TOLERANCE_KEYS if k in geo or k == "dk"]
     for key, tol in tolerances.items():
@@ -125,19 +145,28 @@ def draw(section: CrossSection, tolerances: Mapping[str, float], samples: int, s
             hint = ""
             if key == "height" and "below" in geo:
                 hint = " (a stripline has --below-tol and --above-tol instead)"
-            raise LossLaneError(f"--{key}-tol: {section.kind} has no {key}{hint}; valid "
-                                f"tolerances: {', '.join(f'--{k}-tol' for k in valid)}")
+            raise LossLaneError(
+                f"--{key}-tol: {section.kind} has no {key}{hint}; valid "
+                f"tolerances: {', '.join(f'--{k}-tol' for k in valid)}"
+            )
         if not math.isfinite(tol) or tol < 0:
             raise LossLaneError(f"--{key}-tol = {tol!r}: a +/- tolerance must be >= 0")
         nominal = section.dielectric.dk - 1.0 if key == "dk" else geo[key]
         if tol > 0 and tol >= nominal:
-            what = ("Dk - 1 (the laminate would reach air)" if key == "dk"
-                    else f"the nominal {key} ({nominal:.4g} m)")
-            raise LossLaneError(f"--{key}-tol = {tol:.4g}{'' if key == 'dk' else ' m'} is not "
-                                f"smaller than {what}; give a smaller tolerance")
+            what = (
+                "Dk - 1 (the laminate would reach air)"
+                if key == "dk"
+                else f"the nominal {key} ({nominal:.4g} m)"
+            )
+            raise LossLaneError(
+                f"--{key}-tol = {tol:.4g}{'' if key == 'dk' else ' m'} is not "
+                f"smaller than {what}; give a smaller tolerance"
+            )
     if not any(v > 0 for v in tolerances.values()):
-        raise LossLaneError("spread: give at least one non-zero tolerance (--width-tol, "
-                            "--height-tol, --thickness-tol, --dk-tol, ...)")
+        raise LossLaneError(
+            "spread: give at least one non-zero tolerance (--width-tol, "
+            "--height-tol, --thickness-tol, --dk-tol, ...)"
+        )
     rng = np.random.default_rng(seed)
     out: dict[str, np.ndarray] = {}
     scale = np.ones(samples)
@@ -158,17 +187,28 @@ def draw(section: CrossSection, tolerances: Mapping[str, float], samples: int, s
             bad = out[key] < 0 if key == "thickness" else out[key] <= 0
             floor = "zero"
         if np.any(bad):
-            raise LossLaneError(f"--{key}-tol: {int(bad.sum())} of {samples} normal samples "
-                                f"fall below {floor}; give a smaller tolerance or "
-                                "--distribution uniform")
+            raise LossLaneError(
+                f"--{key}-tol: {int(bad.sum())} of {samples} normal samples "
+                f"fall below {floor}; give a smaller tolerance or "
+                "--distribution uniform"
+            )
     return out, scale
 
 
-def spread(section: CrossSection, tolerances: Mapping[str, float], frequencies: Sequence[float],
-           *, samples: int = 10_000, seed: int = 1, distribution: str = "normal",
-           target: float | None = None, band: float = 0.10, band_ohm: float | None = None,
-           chunk: int | None = None, progress: Callable[[int], None] | None = None
-           ) -> SpreadResult:
+def spread(
+    section: CrossSection,
+    tolerances: Mapping[str, float],
+    frequencies: Sequence[float],
+    *,
+    samples: int = 10_000,
+    seed: int = 1,
+    distribution: str = "normal",
+    target: float | None = None,
+    band: float = 0.10,
+    band_ohm: float | None = None,
+    chunk: int | None = None,
+    progress: Callable[[int], None] | None = None,
+) -> SpreadResult:
     """Monte Carlo of ``section`` over ``tolerances`` (+/- values: m, Dk units for 'dk').
 
     ``target`` (ohm) defaults to the nominal impedance at each frequency; the accepted
@@ -179,8 +219,9 @@ def spread(section: CrossSection, tolerances: Mapping[str, float], frequencies: 
     if freqs.size == 0:
         raise LossLaneError("--at: give at least one frequency")
     if band_ohm is None and not (math.isfinite(band) and 0 < band < 1):
-        raise LossLaneError(f"--band = {band!r}: a fraction of the target between 0 and 1 "
-                            '(e.g. "10%")')
+        raise LossLaneError(
+            f'--band = {band!r}: a fraction of the target between 0 and 1 (e.g. "10%")'
+        )
     if band_ohm is not None and not (math.isfinite(band_ohm) and band_ohm > 0):
         raise LossLaneError(f"--band = {band_ohm!r} ohm: must be > 0")
     if target is not None and not (math.isfinite(target) and target > 0):
@@ -208,9 +249,21 @@ def spread(section: CrossSection, tolerances: Mapping[str, float], frequencies: 
     _reissue(caught_all)
     tgt = np.full(freqs.shape, float(target)) if target is not None else nominal_z.copy()
     half = np.full(freqs.shape, float(band_ohm)) if band_ohm is not None else band * tgt
-    return SpreadResult(section.kind, freqs.tolist(), int(samples), int(seed), distribution,
-                        {k: float(v) for k, v in tolerances.items() if v > 0}, tgt, half,
-                        nominal_z, nominal_loss, z, loss, section.n_conductors == 2)
+    return SpreadResult(
+        section.kind,
+        freqs.tolist(),
+        int(samples),
+        int(seed),
+        distribution,
+        {k: float(v) for k, v in tolerances.items() if v > 0},
+        tgt,
+        half,
+        nominal_z,
+        nominal_loss,
+        z,
+        loss,
+        section.n_conductors == 2,
+    )
 
 
 def _reissue(caught: list[warnings.WarningMessage]) -> None:

@@ -26,8 +26,9 @@ def _scenario_materials(path: Path) -> dict:
     return {k: data[k] for k in ("dielectrics", "foils") if k in data}
 
 
-def catalog(library_files: Iterable[Path | str] = (),
-            scenario_files: Iterable[Path | str] = ()) -> dict:
+def catalog(
+    library_files: Iterable[Path | str] = (), scenario_files: Iterable[Path | str] = ()
+) -> dict:
     """The listing as the ``losslane materials --json`` object.
 
     Keys: ``dielectrics`` [{name, dk, df, at_hz, model, note, class, causal, source}],
@@ -59,24 +60,28 @@ def _mark(lib: Library, source: dict, where: str, data: dict) -> None:
 def _listing(lib: Library, source: dict) -> dict:
     diels = []
     for name, d in lib.dielectrics.items():
-        diels.append({
-            "name": name,
-            "dk": float(d.dk),
-            "df": float(d.df),
-            "at_hz": float(d.at) if d.at else None,
-            "model": d.model,
-            "note": lib.notes.get(f"dielectric:{name}", ""),
-            "class": lib.classes.get(name, ""),
-            "causal": bool(d.causal),
-            "source": source.get(f"dielectric:{name}", ""),
-        })
+        diels.append(
+            {
+                "name": name,
+                "dk": float(d.dk),
+                "df": float(d.df),
+                "at_hz": float(d.at) if d.at else None,
+                "model": d.model,
+                "note": lib.notes.get(f"dielectric:{name}", ""),
+                "class": lib.classes.get(name, ""),
+                "causal": bool(d.causal),
+                "source": source.get(f"dielectric:{name}", ""),
+            }
+        )
     foils = []
     for name, r in lib.foils.items():
-        foils.append({
-            "name": name,
-            "model": r.model,
-            **r.parameters(),
-            "note": lib.notes.get(f"foil:{name}", ""),
-            "source": source.get(f"foil:{name}", ""),
-        })
+        foils.append(
+            {
+                "name": name,
+                "model": r.model,
+                **r.parameters(),
+                "note": lib.notes.get(f"foil:{name}", ""),
+                "source": source.get(f"foil:{name}", ""),
+            }
+        )
     return {"dielectrics": diels, "foils": foils}

@@ -59,8 +59,9 @@ def loss_comparison_chart(
         skeys = list(dict.fromkeys(style_by)) if style_by else []
         for i, (label, f, y) in enumerate(curves):
             colour = palette[(ckeys.index(colour_by[i]) if colour_by else i) % len(palette)]
-            style = styles[(skeys.index(style_by[i]) if style_by else i // len(palette))
-                           % len(styles)]
+            style = styles[
+                (skeys.index(style_by[i]) if style_by else i // len(palette)) % len(styles)
+            ]
             ax.plot(np.asarray(f) / 1e9, y, style, color=colour, lw=1.6, label=label)
         for m in marks:
             ax.axvline(m / 1e9, color="0.75", lw=0.8, zorder=0)
@@ -70,8 +71,14 @@ def loss_comparison_chart(
         ax.set_xlim(left=0)
         ax.set_ylim(bottom=0)
         ax.grid(True, alpha=0.3)
-        ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0),
-                  title="lowest loss first", title_fontsize=7, frameon=False)
+        ax.legend(
+            fontsize=7,
+            loc="upper left",
+            bbox_to_anchor=(1.01, 1.0),
+            title="lowest loss first",
+            title_fontsize=7,
+            frameon=False,
+        )
         fig.text(0.99, 0.005, CAPTION, ha="right", va="bottom", fontsize=6, color="0.4")
         fig.tight_layout()
         return save_figure(fig, path)

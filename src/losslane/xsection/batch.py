@@ -92,8 +92,11 @@ def scaled_dielectric(d: Dielectric, scale: float) -> Dielectric:
 def nominal_geometry(section: CrossSection) -> dict[str, float]:
     """The section's geometry as {scenario key: metres} (its dataclass fields only, so a
     derived property such as a stripline's plane spacing is not taken for a dimension)."""
-    fields = {f.name for f in dataclasses.fields(section)} if dataclasses.is_dataclass(
-        section) else set()
+    fields = (
+        {f.name for f in dataclasses.fields(section)}
+        if dataclasses.is_dataclass(section)
+        else set()
+    )
     out = {}
     for key in GEOMETRY_KEYS:
         v = getattr(section, key, None) if key in fields else None
@@ -139,8 +142,10 @@ def evaluate(
         raise LossLaneError("geometry sample arrays must all have the same length") from None
     if len(n) != 1:
         raise LossLaneError("geometry samples must be one-dimensional arrays")
-    geo = {k: np.broadcast_to(arrays.get(k, np.asarray([v])), n).astype(float)
-           for k, v in nominal.items()}
+    geo = {
+        k: np.broadcast_to(arrays.get(k, np.asarray([v])), n).astype(float)
+        for k, v in nominal.items()
+    }
     scale = np.broadcast_to(scale, n).astype(float)
     for key, v in geo.items():
         bad = ~np.isfinite(v) | ((v < 0) if key == "thickness" else (v <= 0))
@@ -150,8 +155,9 @@ def evaluate(
                 f"{'>= 0' if key == 'thickness' else '> 0'}"
             )
     if np.any(~np.isfinite(scale) | (scale * section.dielectric.dk < 1.0)):
-        raise LossLaneError(f"{section.kind}: a Dk sample falls below 1 (air); "
-                            "use a smaller Dk tolerance")
+        raise LossLaneError(
+            f"{section.kind}: a Dk sample falls below 1 (air); use a smaller Dk tolerance"
+        )
     if is_vectorized(section):
         col = {k: v[:, None] for k, v in geo.items()}
         return _EVALUATORS[type(section)](section, f, col, scale[:, None])
@@ -160,8 +166,14 @@ def evaluate(
 
 # --- the per-sample fallback -------------------------------------------------------------
 
-def _per_sample(section: CrossSection, f: np.ndarray, geo: dict[str, np.ndarray],
-                scale: np.ndarray, progress: Callable[[int], None] | None) -> LineArrays:
+
+def _per_sample(
+    section: CrossSection,
+    f: np.ndarray,
+    geo: dict[str, np.ndarray],
+    scale: np.ndarray,
+    progress: Callable[[int], None] | None,
+) -> LineArrays:
     s = scale.shape[0]
     pair = section.n_conductors == 2
     names = ("eps_eff", "r", "l", "g", "c")
@@ -172,8 +184,11 @@ def _per_sample(section: CrossSection, f: np.ndarray, geo: dict[str, np.ndarray]
     for i in range(s):
         changes = {k: float(v[i]) for k, v in geo.items() if float(v[i]) != nominal[k]}
         d = scaled_dielectric(section.dielectric, float(scale[i]))
-        sec = dataclasses.replace(section, dielectric=d, **changes) if (
-            changes or d is not section.dielectric) else section
+        sec = (
+            dataclasses.replace(section, dielectric=d, **changes)
+            if (changes or d is not section.dielectric)
+            else section
+        )
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", LossLaneWarning)
             mode = sec.modes(f)["odd" if pair else "single"]
@@ -201,8 +216,10 @@ def _reissue(caught: list[warnings.WarningMessage], samples: int) -> None:
 
 # --- elementwise pieces shared by the vectorized evaluators ------------------------------
 
-def _internal(f: np.ndarray, conductor: Conductor, gf: np.ndarray, depth: np.ndarray,
-              k: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+
+def _internal(
+    f: np.ndarray, conductor: Conductor, gf: np.ndarray, depth: np.ndarray, k: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
     """Elementwise twin of ``materials.conductor.internal_impedance`` (same formula)."""
     mu = MU0 * conductor.mu_r
     omega = 2 * np.pi * f
@@ -216,16 +233,27 @@ def _internal(f: np.ndarray, conductor: Conductor, gf: np.ndarray, depth: np.nda
     return r, l_int
 
 
-def _wheeler(z_air: Callable[..., np.ndarray], p: tuple, recede: Callable[[tuple, np.ndarray],
-             tuple], scale: np.ndarray) -> np.ndarray:
+def _wheeler(
+    z_air: Callable[..., np.ndarray],
+    p: tuple,
+    recede: Callable[[tuple, np.ndarray], tuple],
+    scale: np.ndarray,
+) -> np.ndarray:
     """Elementwise twin of ``rlgc.wheeler_factor`` (central difference, step 1e-4 scale)."""
     dn = 1e-4 * scale
     dz = z_air(*recede(p, dn)) - z_air(*recede(p, -dn))
     return dz / (2 * dn) / ETA0
 
 
-def _assemble(section: CrossSection, f: np.ndarray, eps_r: np.ndarray, eps_eff: np.ndarray,
-              z0: np.ndarray, groups: list, q: np.ndarray | None = None) -> LineArrays:
+def _assemble(
+    section: CrossSection,
+    f: np.ndarray,
+    eps_r: np.ndarray,
+    eps_eff: np.ndarray,
+    z0: np.ndarray,
+    groups: list,
+    q: np.ndarray | None = None,
+) -> LineArrays:
     """Elementwise twin of ``rlgc.assemble_mode``; ``groups`` = [(G, depth, roughness)]."""
     omega = 2 * np.pi * f
     shape = np.broadcast_shapes(eps_eff.shape, z0.shape, (1, f.size))
@@ -252,8 +280,10 @@ def _assemble(section: CrossSection, f: np.ndarray, eps_r: np.ndarray, eps_eff: 
 def _thickness_warning(kind: str, t: np.ndarray, example: str) -> bool:
     """True when the strip has thickness; warns like the scalar models when it has none."""
     if np.all(t == 0):
-        warn(f"{kind}: thickness = 0, so the strip's conductor loss is not modelled "
-             f"(give the copper thickness, e.g. {example})")
+        warn(
+            f"{kind}: thickness = 0, so the strip's conductor loss is not modelled "
+            f"(give the copper thickness, e.g. {example})"
+        )
         return False
     if np.any(t == 0):
         raise LossLaneError(f"{kind}: thickness samples mix zero and non-zero values")
@@ -262,8 +292,10 @@ def _thickness_warning(kind: str, t: np.ndarray, example: str) -> bool:
 
 # --- microstrip ----------------------------------------------------------------------------
 
-def _hj_thickness(u: np.ndarray, t_h: np.ndarray, er: np.ndarray | float
-                  ) -> tuple[np.ndarray, np.ndarray]:
+
+def _hj_thickness(
+    u: np.ndarray, t_h: np.ndarray, er: np.ndarray | float
+) -> tuple[np.ndarray, np.ndarray]:
     """Elementwise twin of ``microstrip.hj_thickness``."""
     er = np.asarray(er, float)
     pos = t_h > 0
@@ -304,8 +336,9 @@ def _microstrip(sec, f: np.ndarray, g: dict, scale: np.ndarray) -> LineArrays:
     if _thickness_warning("microstrip", t, "'1.4 mil' or '1 oz'"):
         p = (w, h, t)
         scale_ = np.minimum(np.minimum(w, h), t)
-        g_strip = _wheeler(_ms_z_air, p, lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - 2 * d),
-                           scale_)
+        g_strip = _wheeler(
+            _ms_z_air, p, lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - 2 * d), scale_
+        )
         g_plane = _wheeler(_ms_z_air, p, lambda p, d: (p[0], p[1] + d, p[2]), scale_)
         m = sec.metal
         groups = [(g_strip, g_strip * w * t, m.foil), (g_plane, m.plane_thickness, m.planes)]
@@ -313,6 +346,7 @@ def _microstrip(sec, f: np.ndarray, g: dict, scale: np.ndarray) -> LineArrays:
 
 
 # --- stripline -----------------------------------------------------------------------------
+
 
 def _cohn_z_air(w: np.ndarray, b: np.ndarray) -> np.ndarray:
     return ETA0 / 4.0 * k_ratio_sech(np.pi * w / (2.0 * b))
@@ -340,8 +374,7 @@ def _centred_z_air(w: np.ndarray, b: np.ndarray, t: np.ndarray) -> np.ndarray:
     return z * np.where(t > 0, ratio, 1.0)
 
 
-def _sl_z_air(w: np.ndarray, below: np.ndarray, above: np.ndarray, t: np.ndarray
-              ) -> np.ndarray:
+def _sl_z_air(w: np.ndarray, below: np.ndarray, above: np.ndarray, t: np.ndarray) -> np.ndarray:
     """Elementwise twin of ``stripline.stripline_z_air`` (centred or offset)."""
     centred = np.abs(below - above) <= 1e-12 * (below + above)
     zc = _centred_z_air(w, below + above + t, t)
@@ -354,12 +387,12 @@ def _stripline(sec, f: np.ndarray, g: dict, scale: np.ndarray) -> LineArrays:
     w, lo, hi, t = g["width"], g["below"], g["above"], g["thickness"]
     b = lo + hi + t
     if np.any(t > 0):
-        check_range("stripline (Wheeler thickness)", "thickness/spacing", (t / b)[t > 0], 0,
-                    0.25)
+        check_range("stripline (Wheeler thickness)", "thickness/spacing", (t / b)[t > 0], 0, 0.25)
     offset = np.abs(lo - hi) > 1e-9 * b
     if np.any(offset):
-        check_range("offset stripline", "width/(spacing - thickness)", (w / (b - t))[offset],
-                    0.35, None)
+        check_range(
+            "offset stripline", "width/(spacing - thickness)", (w / (b - t))[offset], 0.35, None
+        )
     eps_r = sec.dielectric.eps(f)[None, :] * scale
     er = eps_r.real
     z0 = _sl_z_air(w, lo, hi, t) / np.sqrt(er)
@@ -367,17 +400,22 @@ def _stripline(sec, f: np.ndarray, g: dict, scale: np.ndarray) -> LineArrays:
     if _thickness_warning("stripline", t, "'0.6 mil' or '0.5 oz'"):
         p = (w, lo, hi, t)
         sc = np.minimum(np.minimum(w, lo), np.minimum(hi, t))
-        g_strip = _wheeler(_sl_z_air, p,
-                           lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] + d, p[3] - 2 * d), sc)
+        g_strip = _wheeler(
+            _sl_z_air, p, lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] + d, p[3] - 2 * d), sc
+        )
         g_low = _wheeler(_sl_z_air, p, lambda p, d: (p[0], p[1] + d, p[2], p[3]), sc)
         g_high = _wheeler(_sl_z_air, p, lambda p, d: (p[0], p[1], p[2] + d, p[3]), sc)
         m = sec.metal
-        groups = [(g_strip, g_strip * w * t, m.foil), (g_low, m.plane_thickness, m.planes),
-                  (g_high, m.plane_thickness, m.planes)]
+        groups = [
+            (g_strip, g_strip * w * t, m.foil),
+            (g_low, m.plane_thickness, m.planes),
+            (g_high, m.plane_thickness, m.planes),
+        ]
     return _assemble(sec, f, eps_r, er, z0, groups, q=np.ones(er.shape))
 
 
 # --- coplanar ------------------------------------------------------------------------------
+
 
 def _delta(w: np.ndarray, t: np.ndarray) -> np.ndarray:
     """Elementwise twin of ``coplanar.thickness_delta``."""
@@ -417,9 +455,11 @@ def _coplanar(sec, f: np.ndarray, g: dict, scale: np.ndarray) -> LineArrays:
     # Gupta's widened strip needs its modulus k0 = (w + D)/(w + 2 gap - D) below 1, i.e.
     # D < gap (the scalar model checks only D < 2 gap and returns NaN in between)
     if np.any(_delta(w, t) >= s):
-        raise LossLaneError(f"{kind}: the copper is too thick for the gap: the thickness "
-                            "correction (Gupta et al.) widens the strip by more than the gap; "
-                            "use a wider --gap, thinner copper or a narrower strip")
+        raise LossLaneError(
+            f"{kind}: the copper is too thick for the gap: the thickness "
+            "correction (Gupta et al.) widens the strip by more than the gap; "
+            "use a wider --gap, thinner copper or a narrower strip"
+        )
     eps_r = sec.dielectric.eps(f)[None, :] * scale
     er = eps_r.real
     check_range(f"{kind} (conformal mapping)", "thickness/gap", t / s, 0, 0.5)
