@@ -19,7 +19,7 @@ from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness
 from losslane.xsection.base import CrossSection
-from losslane.xsection.batch import evaluate
+from losslane.xsection.batch import evaluate, nominal_geometry
 
 
 @dataclass(frozen=True)
@@ -51,8 +51,8 @@ class Candidate:
             "df": float(geo.dielectric.df),
             "dk_at_hz": float(geo.dielectric.at),
         }
-        if hasattr(geo, "spacing"):
-            out["spacing_m"] = float(geo.spacing)
+        if geo.n_conductors == 2:
+            out["spacing_m"] = nominal_geometry(geo).get("spacing")
         return out
 
 

@@ -227,7 +227,9 @@ def spread(
     if target is not None and not (math.isfinite(target) and target > 0):
         raise LossLaneError(f"--target = {target!r}: must be > 0 ohm")
     geo, scale = draw(section, tolerances, samples, seed, distribution)
-    nominal = evaluate(section, freqs)
+    with warnings.catch_warnings(record=True) as caught_nominal:
+        warnings.simplefilter("always", LossLaneWarning)
+        nominal = evaluate(section, freqs)
     nominal_z = nominal.impedance[0]
     nominal_loss = nominal.loss_db_per_in()[0][0]
     vector = is_vectorized(section)
@@ -246,7 +248,7 @@ def spread(
         loss[sl] = res.loss_db_per_in()[0]
         if progress is not None:
             progress(sl.stop)
-    _reissue(caught_all)
+    _reissue(caught_all + caught_nominal)  # the samples' range first, the nominal's if alone
     tgt = np.full(freqs.shape, float(target)) if target is not None else nominal_z.copy()
     half = np.full(freqs.shape, float(band_ohm)) if band_ohm is not None else band * tgt
     return SpreadResult(
