@@ -11,8 +11,8 @@ from scipy.optimize import brentq
 from scipy.special import ellipk
 
 from losslane.cli import main
-from losslane.errors import LossLaneWarning
 from losslane.design.sizing import search_range, size
+from losslane.errors import LossLaneWarning
 from losslane.materials.dielectric import ConstantDielectric
 from losslane.xsection import Metal, Microstrip
 from losslane.xsection.base import CrossSection
@@ -389,36 +389,70 @@ class _StandInPair(CrossSection):
     n_conductors = 2
 
     def modes(self, f):
-        base = Microstrip(self.width, self.height, self.thickness, self.dielectric,
-                          self.metal).modes(f)["single"]
+        base = Microstrip(
+            self.width, self.height, self.thickness, self.dielectric, self.metal
+        ).modes(f)["single"]
         x = self.spacing / self.height
         out = {}
         for name, k in (("odd", np.tanh(0.5 + x)), ("even", 1 + np.exp(-x))):
-            out[name] = dataclasses.replace(base, name=name, z0=base.z0 * k, l=base.l * k,
-                                            c=base.c / k)
+            out[name] = dataclasses.replace(
+                base, name=name, z0=base.z0 * k, l=base.l * k, c=base.c / k
+            )
         return out
 
 
 def test_pair_plumbing_with_a_stand_in_kind(capsys, monkeypatch) -> None:
     # Source: round trip through `losslane line` (its z_diff_ohm), as for the real pairs;
     # this checks the Z_diff target, --vary spacing and the per-sample path end to end.
-    monkeypatch.setitem(KINDS, "stand-in-pair", KindSpec(
-        ("width", "spacing", "height"), (),
-        lambda g, d, m: _StandInPair(g["width"], g["spacing"], g["height"], g["thickness"], d,
-                                     m), 2))
-    args = ["stand-in-pair", "--height", "4mil", "--thickness", "1.4mil", "--dielectric",
-            "low-loss"]
+    monkeypatch.setitem(
+        KINDS,
+        "stand-in-pair",
+        KindSpec(
+            ("width", "spacing", "height"),
+            (),
+            lambda g, d, m: _StandInPair(
+                g["width"], g["spacing"], g["height"], g["thickness"], d, m
+            ),
+            2,
+        ),
+    )
+    args = [
+        "stand-in-pair",
+        "--height",
+        "4mil",
+        "--thickness",
+        "1.4mil",
+        "--dielectric",
+        "low-loss",
+    ]
     for vary, given in (("spacing", ("--width", "5mil")), ("width", ("--spacing", "5mil"))):
         res = size_json(capsys, *args, *given, "--vary", vary, "--target", "90")
         assert res["impedance"] == "z_diff" and "spacing_m" in res
         value = res[f"{vary}_m"]
-        rc, out, err = run(capsys, "line", *args, *given, f"--{vary}", f"{value!r}m", "--at",
-                           "1GHz", "--json")
+        rc, out, err = run(
+            capsys, "line", *args, *given, f"--{vary}", f"{value!r}m", "--at", "1GHz", "--json"
+        )
         assert rc == 0, err
         assert abs(json.loads(out)["z_diff_ohm"][0] - 90.0) < 0.05
         assert res["sensitivity"]["ohm_per_mil_spacing"] > 0
-    rc, out, err = run(capsys, "spread", *args, "--width", "5mil", "--spacing", "5mil",
-                       "--width-tol", "0.3mil", "--spacing-tol", "0.3mil", "--samples", "50",
-                       "--at", "1GHz", "--json", "--no-plot")
+    rc, out, err = run(
+        capsys,
+        "spread",
+        *args,
+        "--width",
+        "5mil",
+        "--spacing",
+        "5mil",
+        "--width-tol",
+        "0.3mil",
+        "--spacing-tol",
+        "0.3mil",
+        "--samples",
+        "50",
+        "--at",
+        "1GHz",
+        "--json",
+        "--no-plot",
+    )
     assert rc == 0, err
     assert json.loads(out)["impedance_kind"] == "z_diff"
