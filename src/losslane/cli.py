@@ -249,7 +249,7 @@ def _progress(samples: int, work: int):
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
 def size_command(kind: str, target: str, vary: str, at: str, loss_at: str | None,
                  as_json: bool, **options) -> None:
-    """Solve the trace width (or a pair's spacing) for a target impedance.
+    """Trace width (or pair spacing) for a target impedance.
 
     The impedance is the one `losslane line` reports (Z0, or Z_diff of a pair) at --at,
     1 GHz unless given. Prints the solved dimension, the achieved impedance, its
@@ -409,7 +409,7 @@ def _tolerance_options(func):
 def spread_command(kind: str, distribution: str, samples: int, seed: int, at: str,
                    target: str | None, band: str, plot: str, no_plot: bool, as_json: bool,
                    **options) -> None:
-    """Monte Carlo of impedance and loss over manufacturing tolerances.
+    """Tolerance Monte Carlo of impedance and loss.
 
     Give the nominal line like `losslane line` and a +/- tolerance per parameter
     (--width-tol, --height-tol or, for stripline, --below-tol/--above-tol,
@@ -505,7 +505,9 @@ def _parse_band(value: str) -> tuple[float | None, float | None]:
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
 def materials_command(library_files: tuple[str, ...], scenario_files: tuple[str, ...],
                       as_json: bool) -> None:
-    """The material library: dielectrics (class, Dk, Df and their frequency) and foils.
+    """The dielectric and foil library, as a table.
+
+    Dielectrics with class, Dk, Df and their frequency; foils with model and parameters.
 
     Bundled entries are typical values of generic material classes; --library and
     --scenario files add or override entries.
