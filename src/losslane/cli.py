@@ -243,6 +243,344 @@ def describe(section) -> str:
     return ", ".join(parts)
 
 
+# --- design helpers: size, compare, spread, materials --------------------------------------
+
+_SOLVER_OPTION = click.option("--solver", type=click.Choice(["closed-form", "field"]),
+                              default="closed-form", show_default=True,
+                              help="closed-form models or the 2-D field solver")
+
+
+def _placeholder(options: dict, key: str, command: str) -> None:
+    """Fill the dimension a design command solves for; the user must not give it."""
+    if options.get(key) is not None:
+        raise LossLaneError(f"--{key} is what `{command}` solves for; leave it out"
+                            + (" (or solve the other dimension with --vary)"
+                               if key in ("width", "spacing") else ""))
+    # any length the model accepts: it only seeds the section and is replaced by the solution
+    options[key] = options.get("height") or options.get("below") or options.get("gap") or "5mil"
+
+
+def _names(value: str, key: str) -> list[str]:
+    names = [s.strip() for s in value.split(",")]
+    if not value.strip() or any(not s for s in names):
+        raise LossLaneError(f"{key} = {value!r}: expected comma-separated names, e.g. "
+                            "low-loss,very-low-loss")
+    return list(dict.fromkeys(names))
+
+
+def _stackup(section, skip: tuple[str, ...] = ()) -> str:
+    from losslane.units import MIL
+
+    parts = [section.kind]
+    for key in ("width", "spacing", "gap", "height", "below", "above", "thickness"):
+        v = getattr(section, key, None)
+        if isinstance(v, float) and key not in skip:
+            parts.append(f"{key} {v / MIL:.4g} mil")
+    return ", ".join(parts)
+
+
+#: spread shows a progress bar above this many sample-frequency evaluations (about 1.5 s
+#: of the vectorized models; the per-sample path counts 10 000 per sample)
+PROGRESS_WORK = 1_000_000
+
+
+def _progress(samples: int, work: int):
+    """A stderr progress bar for long runs (never on stdout), else a no-op context."""
+    if work < PROGRESS_WORK:
+        return contextlib.nullcontext(None)
+    return click.progressbar(length=samples, label="sampling", file=sys.stderr)
+
+
+@cli.command("size")
+@click.argument("kind")
+@click.option("--target", required=True, metavar="OHMS",
+              help="target impedance: Z0 of a single line, Z_diff of a pair (50ohm or 50)")
+@click.option("--vary", type=click.Choice(["width", "spacing"]), default="width",
+              show_default=True, help="the dimension solved (spacing: pairs, at the given "
+              "--width; width of a pair: at the given --spacing)")
+@click.option("--at", "at", default="1GHz", show_default=True, metavar="FREQ",
+              help="frequency at which the target impedance holds")
+@click.option("--loss-at", metavar="FREQS", help="frequencies of the reported loss per inch "
+              "(default: the --at frequency)")
+@_geometry_options
+@_material_options
+@_SOLVER_OPTION
+@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+def size_command(kind: str, target: str, vary: str, at: str, loss_at: str | None,
+                 as_json: bool, **options) -> None:
+    """Trace width (or pair spacing) for a target impedance.
+
+    The impedance is the one `losslane line` reports (Z0, or Z_diff of a pair) at --at,
+    1 GHz unless given. Prints the solved dimension, the achieved impedance, its
+    sensitivity to width, dielectric height and Dk, and the loss per inch. A target the
+    model cannot reach inside its validity range is an error that says which way to move.
+    """
+    import json
+
+    from losslane.design.sizing import parse_target, size
+    from losslane.materials.library import load_library
+    from losslane.report.design_tables import size_table
+    from losslane.spec import cli_where
+    from losslane.units import parse_frequency, parse_frequency_list
+    from losslane.xsection.factory import KINDS, section_from_spec
+
+    where = cli_where("losslane size")
+    with _warnings_to_stderr():
+        z = parse_target(target)
+        f0 = parse_frequency(at, "--at")
+        floss = parse_frequency_list(loss_at, "--loss-at") if loss_at else None
+        lib = load_library(options.pop("library_files"))
+        ks = KINDS.get(kind)
+        if ks is not None and vary not in ks.required + ks.optional:
+            raise LossLaneError(f"--vary {vary}: {kind} has no {vary}; the spacing is solved "
+                                "only for pairs (microstrip-pair, stripline-pair)")
+        _placeholder(options, vary, "losslane size")
+        section = section_from_spec(line_spec(kind, options, where), where, lib.dielectric,
+                                    lib.foil)
+        solved = size(section, z, at=f0, vary=vary, loss_at=floss)
+        result = solved.to_json()
+        if as_json:
+            click.echo(json.dumps(result))
+        else:
+            click.echo(size_table(result, describe_solved(solved.section, vary)))
+
+
+def describe_solved(section, vary: str) -> str:
+    """The ``describe`` heading with the solved dimension marked."""
+    parts = describe(section).split(", ")
+    return ", ".join(p + " (solved)" if p.startswith(vary + " ") else p for p in parts)
+
+
+@cli.command("compare")
+@click.argument("kind")
+@click.option("--materials", required=True, metavar="A,B,...",
+              help="dielectrics from the library to compare (see `losslane materials`)")
+@click.option("--foils", metavar="X,Y,...", help="foils to compare (default: --foil, or "
+              "smooth copper)")
+@click.option("--target", required=True, metavar="OHMS",
+              help="every candidate is re-sized to this impedance (Z0, or Z_diff of a pair)")
+@click.option("--at", "at", default="1GHz,10GHz,28GHz", show_default=True, metavar="FREQS",
+              help="frequencies of the loss table")
+@click.option("--size-at", default="1GHz", show_default=True, metavar="FREQ",
+              help="frequency at which the target impedance holds")
+@click.option("--plot", "plot", default="losslane-compare.png", show_default=True,
+              metavar="FILE", help="chart of dB/in against frequency (PNG)")
+@click.option("--no-plot", is_flag=True, help="do not write the chart")
+@_geometry_options
+@_material_options
+@_SOLVER_OPTION
+@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+def compare_command(kind: str, materials: str, foils: str | None, target: str, at: str,
+                    size_at: str, plot: str, no_plot: bool, as_json: bool, **options) -> None:
+    """Compare dielectrics and foils at equal impedance.
+
+    Each material x foil is re-sized to --target (a lower-Dk laminate gets a wider
+    trace), then its loss per inch at --at is split into conductor and dielectric parts.
+    Rows are sorted by loss at the highest frequency, lowest first; the chart shows dB/in
+    against frequency for every candidate.
+    """
+    import json
+
+    from losslane.design.compare import compare
+    from losslane.design.sizing import parse_target
+    from losslane.materials.library import load_library
+    from losslane.report.design_tables import compare_table
+    from losslane.report.plots import loss_comparison_chart
+    from losslane.spec import cli_where
+    from losslane.units import parse_frequency, parse_frequency_list
+    from losslane.xsection.factory import section_from_spec
+
+    where = cli_where("losslane compare")
+    with _warnings_to_stderr():
+        z = parse_target(target)
+        freqs = parse_frequency_list(at, "--at")
+        f0 = parse_frequency(size_at, "--size-at")
+        lib = load_library(options.pop("library_files"))
+        if options.get("dk") is not None or options.get("dielectric_name") is not None:
+            raise LossLaneError("compare takes its dielectrics from --materials; leave out "
+                                "--dk/--dielectric (add your own with --library FILE)")
+        mats = {n: lib.dielectric(n, "--materials") for n in _names(materials, "--materials")}
+        options["dielectric_name"] = next(iter(mats))
+        _placeholder(options, "width", "losslane compare")
+        section = section_from_spec(line_spec(kind, options, where), where, lib.dielectric,
+                                    lib.foil)
+        if foils is not None:
+            if options.get("foil") or options.get("roughness_model"):
+                raise LossLaneError("give either --foils X,Y or --foil/--roughness-model")
+            foil_map = {n: lib.foil(n, "--foils") for n in _names(foils, "--foils")}
+        else:
+            label = options.get("foil") or (
+                f"{options['roughness_model']} {options.get('rq') or ''}".strip()
+                if options.get("roughness_model") else "smooth")
+            foil_map = {label: section.metal.foil}
+        result = compare(section, mats, foil_map, z, freqs, size_at=f0)
+        out = result.to_json()
+        if not no_plot:
+            what = "Z_diff" if out["impedance"] == "z_diff" else "Z0"
+            title = (f"{_stackup(section, ('width',))}; each re-sized to {what} = {z:g} ohm "
+                     f"at {f0 / 1e9:g} GHz")
+            curves = [(f"{c.material} / {c.foil} (w {c.section.width / 25.4e-6:.3g} mil)",
+                       c.curve_f, c.curve_db_per_in) for c in result.candidates]
+            out["plot"] = str(loss_comparison_chart(
+                curves, plot, title, freqs, [c.material for c in result.candidates],
+                [c.foil for c in result.candidates]))
+        if as_json:
+            click.echo(json.dumps(out))
+        else:
+            click.echo(compare_table(out, _stackup(section, ("width",))))
+
+
+_TOL_KEYS = ("width", "height", "below", "above", "thickness", "gap", "spacing", "dk")
+
+
+def _tolerance_options(func):
+    for key in reversed(_TOL_KEYS):
+        if key == "dk":
+            help_ = "+/- Dk deviation, e.g. 0.1 or 3%"
+        else:
+            help_ = f"+/- {key} tolerance, a length (0.5mil) or a percentage (10%)"
+        func = click.option(f"--{key}-tol", f"{key}_tol", metavar="TOL", help=help_)(func)
+    return func
+
+
+@cli.command("spread")
+@click.argument("kind")
+@_tolerance_options
+@click.option("--distribution", type=click.Choice(["normal", "uniform"]), default="normal",
+              show_default=True, help="normal: each +/- tolerance is 3 sigma; uniform: "
+              "samples fill the +/- interval evenly")
+@click.option("--samples", type=int, default=10000, show_default=True, help="Monte Carlo samples")
+@click.option("--seed", type=int, default=1, show_default=True,
+              help="random seed (the same seed gives the same numbers)")
+@click.option("--at", "at", default="1GHz,10GHz,28GHz", show_default=True, metavar="FREQS",
+              help="frequencies of the impedance and loss statistics")
+@click.option("--target", metavar="OHMS", help="impedance the band is centred on "
+              "(default: the nominal line's impedance at each frequency)")
+@click.option("--band", default="10%", show_default=True, metavar="TOL",
+              help="accepted +/- band around the target: a percentage or ohms (5ohm)")
+@click.option("--plot", "plot", default="losslane-spread.png", show_default=True,
+              metavar="FILE", help="histograms of impedance and loss (PNG)")
+@click.option("--no-plot", is_flag=True, help="do not write the histograms")
+@_geometry_options
+@_material_options
+@_SOLVER_OPTION
+@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+def spread_command(kind: str, distribution: str, samples: int, seed: int, at: str,
+                   target: str | None, band: str, plot: str, no_plot: bool, as_json: bool,
+                   **options) -> None:
+    """Tolerance Monte Carlo of impedance and loss.
+
+    Give the nominal line like `losslane line` and a +/- tolerance per parameter
+    (--width-tol, --height-tol or, for stripline, --below-tol/--above-tol,
+    --thickness-tol, --dk-tol, ...). With --distribution normal (default) the +/- value
+    is 3 sigma. Prints mean, standard deviation, 1st/99th percentiles and the share of
+    samples outside the --band around the target, and writes histograms.
+    """
+    import json
+
+    from losslane.design.sizing import parse_target
+    from losslane.design.spread import parse_tolerance, spread
+    from losslane.materials.library import load_library
+    from losslane.report.design_tables import spread_table
+    from losslane.report.plots import spread_histograms
+    from losslane.spec import cli_where
+    from losslane.units import parse_frequency_list
+    from losslane.xsection.batch import is_vectorized, nominal_geometry
+    from losslane.xsection.factory import section_from_spec
+
+    where = cli_where("losslane spread")
+    with _warnings_to_stderr():
+        tol_text = {k: options.pop(f"{k}_tol") for k in _TOL_KEYS}
+        freqs = parse_frequency_list(at, "--at")
+        z = parse_target(target) if target is not None else None
+        frac, ohm = _parse_band(band)
+        lib = load_library(options.pop("library_files"))
+        section = section_from_spec(line_spec(kind, options, where), where, lib.dielectric,
+                                    lib.foil)
+        geo = nominal_geometry(section)
+        tols = {}
+        for key, value in tol_text.items():
+            if value is None:
+                continue
+            nominal = section.dielectric.dk if key == "dk" else geo.get(key, 0.0)
+            tols[key] = parse_tolerance(value, key, nominal)
+        work = samples * len(freqs) if is_vectorized(section) else samples * 10_000
+        with _progress(samples, work) as bar:
+            done = [0]
+
+            def advance(n: int) -> None:
+                if bar is not None:
+                    bar.update(n - done[0])
+                    done[0] = n
+
+            result = spread(section, tols, freqs, samples=samples, seed=seed,
+                            distribution=distribution, target=z,
+                            band=frac if frac is not None else 0.1, band_ohm=ohm,
+                            progress=advance)
+        out = result.to_json()
+        if not no_plot:
+            what = "Z_diff" if result.differential else "Z0"
+            i_z = 0
+            i_l = int(max(range(len(freqs)), key=lambda i: freqs[i]))
+            title = (f"{_stackup(section)}; {samples} samples, {distribution}"
+                     + (" (tolerance = 3 sigma)" if distribution == "normal" else ""))
+            out["plot"] = str(spread_histograms(
+                result.impedance[:, i_z], f"{what} at {freqs[i_z] / 1e9:g} GHz (ohm)",
+                float(result.target[i_z]), float(result.band[i_z]), result.loss[:, i_l],
+                f"loss at {freqs[i_l] / 1e9:g} GHz (dB/in)", plot, title))
+        if as_json:
+            click.echo(json.dumps(out))
+        else:
+            click.echo(spread_table(out, describe(section)))
+
+
+def _parse_band(value: str) -> tuple[float | None, float | None]:
+    """--band as (fraction, None) from "10%" or (None, ohm) from "5ohm"."""
+    import re
+
+    from losslane.units import parse_resistance
+
+    m = re.fullmatch(r"\s*(\d+\.?\d*|\.\d+)\s*%\s*", value)
+    if m:
+        frac = float(m.group(1)) / 100.0
+        if not 0 < frac < 1:
+            raise LossLaneError(f"--band = {value!r}: a percentage between 0 and 100")
+        return frac, None
+    try:
+        float(value)
+    except ValueError:
+        ohm = parse_resistance(value, "--band")
+        if ohm <= 0:
+            raise LossLaneError(f"--band = {value!r}: must be > 0 ohm") from None
+        return None, ohm
+    raise LossLaneError(f"--band = {value!r}: write a percentage (10%) or ohms (5ohm)")
+
+
+@cli.command("materials")
+@click.option("--library", "library_files", multiple=True, metavar="FILE",
+              help="extra library file(s) with [dielectrics.*] / [foils.*] entries")
+@click.option("--scenario", "scenario_files", multiple=True, metavar="FILE",
+              help="list a scenario file's own [dielectrics.*] / [foils.*] entries too")
+@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+def materials_command(library_files: tuple[str, ...], scenario_files: tuple[str, ...],
+                      as_json: bool) -> None:
+    """The dielectric and foil library, as a table.
+
+    Dielectrics with class, Dk, Df and their frequency; foils with model and parameters.
+
+    Bundled entries are typical values of generic material classes; --library and
+    --scenario files add or override entries.
+    """
+    import json
+
+    from losslane.materials.catalog import catalog
+    from losslane.report.design_tables import materials_table
+
+    with _warnings_to_stderr():
+        out = catalog(library_files, scenario_files)
+        click.echo(json.dumps(out) if as_json else materials_table(out))
+
+
 def main(argv: list[str] | None = None) -> int:
     """Console entry point: bad input is one line on stderr and exit code 2."""
     try:

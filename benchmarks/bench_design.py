@@ -1,0 +1,115 @@
+"""Speed of the design helpers (issue 6 goals).
+
+* spread: 100 000 Monte Carlo samples of a closed-form line at 3 frequencies <= 2 s;
+* compare: 6 materials x 3 foils, each re-sized to the target, <= 1 s;
+* size: one width solve with sensitivities (no stated goal; shown for reference).
+
+``run()`` returns rows ``(name, measured_seconds, target_seconds, unit)`` (the median of a
+few runs after a warm-up; target None where there is no goal). Standalone:
+``python benchmarks/bench_design.py``.
+"""
+
+from __future__ import annotations
+
+import statistics
+import sys
+import time
+import warnings
+from pathlib import Path
+
+if __package__ in (None, ""):
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "src"))
+
+MIL = 25.4e-6
+MATERIALS = [
+    "epoxy-glass-standard",
+    "epoxy-glass-midloss",
+    "low-loss",
+    "very-low-loss",
+    "ultra-low-loss",
+    "ptfe-ceramic",
+]
+FOILS = ["standard-ed", "very-low-profile", "hyper-low-profile"]
+
+
+def _median(fn, repeat: int = 3) -> float:
+    fn()  # warm-up: imports, caches
+    times = []
+    for _ in range(repeat):
+        t = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - t)
+    return statistics.median(times)
+
+
+def run() -> list[tuple[str, float, float | None, str]]:
+    from losslane.design import compare, size, spread
+    from losslane.errors import LossLaneWarning
+    from losslane.materials.library import load_library
+    from losslane.xsection import Metal, Microstrip, Stripline
+
+    lib = load_library()
+    metal = Metal(foil=lib.foil("very-low-profile"))
+    ms = Microstrip(7.9 * MIL, 4 * MIL, 1.4 * MIL, lib.dielectric("low-loss"), metal)
+    sl = Stripline(4.8 * MIL, 5 * MIL, 5 * MIL, 0.6 * MIL, lib.dielectric("low-loss"), metal)
+    freqs = [1e9, 14e9, 28e9]
+    tol = {"width": 0.5 * MIL, "height": 0.4 * MIL, "thickness": 0.2 * MIL, "dk": 0.1}
+    tol_sl = {
+        "width": 0.5 * MIL,
+        "below": 0.4 * MIL,
+        "above": 0.4 * MIL,
+        "thickness": 0.1 * MIL,
+        "dk": 0.1,
+    }
+    mats = {n: lib.dielectric(n) for n in MATERIALS}
+    foils = {n: lib.foil(n) for n in FOILS}
+    rows = []
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", LossLaneWarning)
+        rows.append(
+            (
+                "spread microstrip, 100k samples x 3 frequencies",
+                _median(lambda: spread(ms, tol, freqs, samples=100_000, seed=1)),
+                2.0,
+                "s",
+            )
+        )
+        rows.append(
+            (
+                "spread stripline, 100k samples x 3 frequencies",
+                _median(lambda: spread(sl, tol_sl, freqs, samples=100_000, seed=1)),
+                2.0,
+                "s",
+            )
+        )
+        rows.append(
+            (
+                "compare microstrip, 6 materials x 3 foils re-sized",
+                _median(lambda: compare(ms, mats, foils, 50.0, freqs)),
+                1.0,
+                "s",
+            )
+        )
+        rows.append(
+            (
+                "size microstrip, one solve with sensitivities",
+                _median(lambda: size(ms, 50.0, loss_at=freqs), 5),
+                None,
+                "s",
+            )
+        )
+    return rows
+
+
+def main() -> int:
+    ok = True
+    for name, measured, target, unit in run():
+        verdict = "" if target is None else ("ok" if measured <= target else "SLOW")
+        goal = "-" if target is None else f"<= {target:g} {unit}"
+        print(f"{name:55s} {measured:8.3f} {unit}   goal {goal:8s} {verdict}")
+        ok &= target is None or measured <= target
+    return 0 if ok else 1
+
+
+if __name__ == "__main__":
+    sys.exit(main())

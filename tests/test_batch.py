@@ -1,0 +1,124 @@
+"""The vectorized evaluation path (xsection.batch) against the scalar models it mirrors.
+
+These are consistency checks of one implementation against another inside the project;
+the outside references for the models themselves are in the model tests. Each sample of
+a batch call must equal the scalar model built with that sample's geometry, to rounding.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import warnings
+
+import numpy as np
+import pytest
+
+from losslane.errors import LossLaneError, LossLaneWarning
+from losslane.materials.library import load_library
+from losslane.xsection import Coplanar, Metal, Microstrip, Stripline
+from losslane.xsection.base import _mode_numbers
+from losslane.xsection.batch import evaluate, is_vectorized, nominal_geometry
+
+MIL = 25.4e-6
+LIB = load_library()
+F = np.array([0.0, 1e6, 1e9, 10e9, 28e9, 56e9])
+
+
+def sections(foil: str) -> list:
+    m = Metal(foil=LIB.foil(foil))
+    d = LIB.dielectric("low-loss")
+    return [
+        Microstrip(6 * MIL, 3.5 * MIL, 1.4 * MIL, d, m),
+        Microstrip(6 * MIL, 3.5 * MIL, 0.0, d, m),
+        Stripline(5 * MIL, 5 * MIL, 5 * MIL, 0.6 * MIL, d, m),
+        Stripline(5 * MIL, 4 * MIL, 7 * MIL, 0.6 * MIL, d, m),
+        Stripline(5 * MIL, 4 * MIL, 7 * MIL, 0.0, d, m),
+        Coplanar(10 * MIL, 5 * MIL, 20 * MIL, 1.4 * MIL, d, False, m),
+        Coplanar(10 * MIL, 5 * MIL, 8 * MIL, 1.4 * MIL, d, True, m),
+    ]
+
+
+def scalar(sec, f: np.ndarray) -> tuple:
+    mode = sec.modes(f)["single"]
+    nums = _mode_numbers(mode, f)
+    return mode, nums
+
+
+@pytest.mark.parametrize("foil", ["smooth", "standard-ed", "very-low-profile-rq"])
+def test_batch_equals_scalar_models(foil: str) -> None:
+    rng = np.random.default_rng(7)
+    for sec in sections(foil):
+        geo = nominal_geometry(sec)
+        n = 12
+        samples = {k: v * (1 + 0.2 * rng.uniform(-1, 1, n)) for k, v in geo.items()}
+        if isinstance(sec, Stripline) and sec.below == sec.above:
+            samples["above"] = samples["below"].copy()  # keep the centred formula in play
+        scale = 1 + 0.05 * rng.uniform(-1, 1, n)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", LossLaneWarning)
+            res = evaluate(sec, F, dk_scale=scale, **samples)
+            total, cond, diel = res.loss_db_per_in()
+            for i in range(n):
+                d = dataclasses.replace(sec.dielectric, dk=sec.dielectric.dk * scale[i])
+                one = dataclasses.replace(
+                    sec, dielectric=d, **{k: float(v[i]) for k, v in samples.items()}
+                )
+                mode, nums = scalar(one, F)
+                for got, want in (
+                    (res.r[i], mode.r),
+                    (res.l[i], mode.l),
+                    (res.g[i], mode.g),
+                    (res.c[i], mode.c),
+                    (res.eps_eff[i], mode.eps_eff),
+                    (res.impedance[i], nums["z0_ohm"]),
+                    (total[i], nums["loss_db_per_in"]),
+                    (cond[i], nums["conductor_db_per_in"]),
+                    (diel[i], nums["dielectric_db_per_in"]),
+                ):
+                    np.testing.assert_allclose(
+                        got, want, rtol=1e-9, atol=1e-15, err_msg=f"{sec.kind} {foil} sample {i}"
+                    )
+
+
+def test_dk_scale_equals_a_refit_at_the_scaled_dk() -> None:
+    # The wideband Debye fit is linear in Dk at fixed Df: scaling eps(f) is the refit.
+    d = LIB.dielectric("low-loss")
+    refit = dataclasses.replace(d, dk=d.dk * 1.07)
+    np.testing.assert_allclose(refit.eps(F), d.eps(F) * 1.07, rtol=1e-12)
+
+
+class _Unvectorized(Microstrip):
+    """A subclass takes the per-sample path (stands in for pair and field-solver kinds)."""
+
+
+def test_per_sample_fallback_matches_vectorized_path() -> None:
+    base = sections("standard-ed")[0]
+    slow = _Unvectorized(base.width, base.height, base.thickness, base.dielectric, base.metal)
+    assert is_vectorized(base) and not is_vectorized(slow)
+    w = base.width * np.array([0.9, 1.0, 1.1])
+    done = []
+    a = evaluate(base, F[1:], width=w)
+    b = evaluate(slow, F[1:], width=w, progress=done.append)
+    np.testing.assert_allclose(b.impedance, a.impedance, rtol=1e-12)
+    np.testing.assert_allclose(b.loss_db_per_in()[0], a.loss_db_per_in()[0], rtol=1e-12)
+    assert done[-1] == 3
+
+
+def test_bad_samples_are_errors() -> None:
+    sec = sections("smooth")[0]
+    with pytest.raises(LossLaneError, match="width"):
+        evaluate(sec, F, width=np.array([1e-4, -1e-5]))
+    with pytest.raises(LossLaneError, match="not a dimension"):
+        evaluate(sec, F, gap=1e-4)
+    with pytest.raises(LossLaneError, match="same length"):
+        evaluate(sec, F, width=np.ones(3) * 1e-4, height=np.ones(2) * 1e-4)
+
+
+def test_dc_and_extreme_frequencies_stay_finite() -> None:
+    sec = sections("standard-ed")[2]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", LossLaneWarning)
+        res = evaluate(sec, np.array([0.0, 1e3, 1e12]), width=sec.width * np.array([0.5, 2.0]))
+    for a in (res.impedance, res.r, res.l, res.g, res.c, *res.loss_db_per_in()):
+        assert np.all(np.isfinite(a))
+    assert np.all(res.g[:, 0] == 0)  # no dielectric loss at DC
