@@ -59,10 +59,20 @@ def line(
     return section.properties(freqs)
 
 
-def _design_section(kind: str, placeholder: str | None, *, dk: float | None, df: float,
-                    dk_at: str | None, dielectric: str | Dielectric | None,
-                    dielectric_model: str, foil: str | Roughness | None, library: Library,
-                    where: str, geometry: dict) -> CrossSection:
+def _design_section(
+    kind: str,
+    placeholder: str | None,
+    *,
+    dk: float | None,
+    df: float,
+    dk_at: str | None,
+    dielectric: str | Dielectric | None,
+    dielectric_model: str,
+    foil: str | Roughness | None,
+    library: Library,
+    where: str,
+    geometry: dict,
+) -> CrossSection:
     """A section from ``line``-style arguments; ``placeholder`` names the solved dimension."""
     from losslane.errors import LossLaneError
     from losslane.units import parse_frequency
@@ -71,8 +81,9 @@ def _design_section(kind: str, placeholder: str | None, *, dk: float | None, df:
     if placeholder is not None:
         if placeholder in spec:
             raise LossLaneError(f"{placeholder} is what is solved for; leave it out")
-        spec[placeholder] = next((spec[k] for k in ("height", "below", "gap") if k in spec),
-                                 "5 mil")
+        spec[placeholder] = next(
+            (spec[k] for k in ("height", "below", "gap") if k in spec), "5 mil"
+        )
     if dielectric is not None and dk is not None:
         raise LossLaneError("give either a dielectric name or dk/df values, not both")
     if dk is not None:
@@ -85,30 +96,60 @@ def _design_section(kind: str, placeholder: str | None, *, dk: float | None, df:
     return section_from_spec(spec, where, library.dielectric, library.foil)
 
 
-def size(kind: str, target: str | float, *, vary: str = "width", at: str = "1GHz",
-         loss_at: str | Iterable[str] | None = None, dk: float | None = None, df: float = 0.0,
-         dk_at: str | None = None, dielectric: str | Dielectric | None = None,
-         dielectric_model: str = "wideband-debye", foil: str | Roughness | None = None,
-         library_files: Iterable[Path | str] = (), **geometry: str) -> dict:
+def size(
+    kind: str,
+    target: str | float,
+    *,
+    vary: str = "width",
+    at: str = "1GHz",
+    loss_at: str | Iterable[str] | None = None,
+    dk: float | None = None,
+    df: float = 0.0,
+    dk_at: str | None = None,
+    dielectric: str | Dielectric | None = None,
+    dielectric_model: str = "wideband-debye",
+    foil: str | Roughness | None = None,
+    library_files: Iterable[Path | str] = (),
+    **geometry: str,
+) -> dict:
     """The result of ``losslane size --json``: solve ``vary`` for ``target`` ohm at ``at``."""
     from losslane.design.sizing import parse_target
     from losslane.design.sizing import size as size_
 
     lib = load_library(library_files)
-    sec = _design_section(kind, vary, dk=dk, df=df, dk_at=dk_at, dielectric=dielectric,
-                          dielectric_model=dielectric_model, foil=foil, library=lib,
-                          where="size", geometry=geometry)
+    sec = _design_section(
+        kind,
+        vary,
+        dk=dk,
+        df=df,
+        dk_at=dk_at,
+        dielectric=dielectric,
+        dielectric_model=dielectric_model,
+        foil=foil,
+        library=lib,
+        where="size",
+        geometry=geometry,
+    )
     from losslane.units import parse_frequency
 
     floss = parse_frequency_list(loss_at, "loss_at") if loss_at is not None else None
-    return size_(sec, parse_target(target, "target"), at=parse_frequency(at, "at"), vary=vary,
-                 loss_at=floss).to_json()
+    return size_(
+        sec, parse_target(target, "target"), at=parse_frequency(at, "at"), vary=vary, loss_at=floss
+    ).to_json()
 
 
-def compare(kind: str, materials: Iterable[str], target: str | float, *,
-            foils: Iterable[str] | None = None, at: str | Iterable[str] = "1GHz,10GHz,28GHz",
-            size_at: str = "1GHz", foil: str | Roughness | None = None,
-            library_files: Iterable[Path | str] = (), **geometry: str) -> dict:
+def compare(
+    kind: str,
+    materials: Iterable[str],
+    target: str | float,
+    *,
+    foils: Iterable[str] | None = None,
+    at: str | Iterable[str] = "1GHz,10GHz,28GHz",
+    size_at: str = "1GHz",
+    foil: str | Roughness | None = None,
+    library_files: Iterable[Path | str] = (),
+    **geometry: str,
+) -> dict:
     """The result of ``losslane compare --json`` (without the chart)."""
     from losslane.design.compare import compare as compare_
     from losslane.design.sizing import parse_target
@@ -116,25 +157,51 @@ def compare(kind: str, materials: Iterable[str], target: str | float, *,
 
     lib = load_library(library_files)
     mats = {n: lib.dielectric(n, "materials") for n in materials}
-    sec = _design_section(kind, "width", dk=None, df=0.0, dk_at=None,
-                          dielectric=next(iter(mats.values()), None),
-                          dielectric_model="wideband-debye", foil=foil, library=lib,
-                          where="compare", geometry=geometry)
+    sec = _design_section(
+        kind,
+        "width",
+        dk=None,
+        df=0.0,
+        dk_at=None,
+        dielectric=next(iter(mats.values()), None),
+        dielectric_model="wideband-debye",
+        foil=foil,
+        library=lib,
+        where="compare",
+        geometry=geometry,
+    )
     foil_map = None if foils is None else {n: lib.foil(n, "foils") for n in foils}
     if foil_map is None and isinstance(foil, str):
         foil_map = {foil: sec.metal.foil}
-    return compare_(sec, mats, foil_map, parse_target(target, "target"),
-                    parse_frequency_list(at, "at"), size_at=parse_frequency(size_at, "size_at")
-                    ).to_json()
+    return compare_(
+        sec,
+        mats,
+        foil_map,
+        parse_target(target, "target"),
+        parse_frequency_list(at, "at"),
+        size_at=parse_frequency(size_at, "size_at"),
+    ).to_json()
 
 
-def spread(kind: str, tolerances: Mapping[str, str | float], *, samples: int = 10_000,
-           seed: int = 1, distribution: str = "normal", at: str | Iterable[str] = "1GHz",
-           target: str | float | None = None, band: float = 0.10, dk: float | None = None,
-           df: float = 0.0, dk_at: str | None = None,
-           dielectric: str | Dielectric | None = None,
-           dielectric_model: str = "wideband-debye", foil: str | Roughness | None = None,
-           library_files: Iterable[Path | str] = (), **geometry: str) -> dict:
+def spread(
+    kind: str,
+    tolerances: Mapping[str, str | float],
+    *,
+    samples: int = 10_000,
+    seed: int = 1,
+    distribution: str = "normal",
+    at: str | Iterable[str] = "1GHz",
+    target: str | float | None = None,
+    band: float = 0.10,
+    dk: float | None = None,
+    df: float = 0.0,
+    dk_at: str | None = None,
+    dielectric: str | Dielectric | None = None,
+    dielectric_model: str = "wideband-debye",
+    foil: str | Roughness | None = None,
+    library_files: Iterable[Path | str] = (),
+    **geometry: str,
+) -> dict:
     """The result of ``losslane spread --json`` (without the histograms).
 
     ``tolerances`` maps a key (width, height, below, above, thickness, gap, spacing, dk) to
@@ -146,19 +213,40 @@ def spread(kind: str, tolerances: Mapping[str, str | float], *, samples: int = 1
     from losslane.xsection.batch import nominal_geometry
 
     lib = load_library(library_files)
-    sec = _design_section(kind, None, dk=dk, df=df, dk_at=dk_at, dielectric=dielectric,
-                          dielectric_model=dielectric_model, foil=foil, library=lib,
-                          where="spread", geometry=geometry)
+    sec = _design_section(
+        kind,
+        None,
+        dk=dk,
+        df=df,
+        dk_at=dk_at,
+        dielectric=dielectric,
+        dielectric_model=dielectric_model,
+        foil=foil,
+        library=lib,
+        where="spread",
+        geometry=geometry,
+    )
     geo = nominal_geometry(sec)
-    tols = {k: parse_tolerance(v, k, sec.dielectric.dk if k == "dk" else geo.get(k, 0.0))
-            for k, v in tolerances.items()}
+    tols = {
+        k: parse_tolerance(v, k, sec.dielectric.dk if k == "dk" else geo.get(k, 0.0))
+        for k, v in tolerances.items()
+    }
     z = parse_target(target, "target") if target is not None else None
-    return spread_(sec, tols, parse_frequency_list(at, "at"), samples=samples, seed=seed,
-                   distribution=distribution, target=z, band=band).to_json()
+    return spread_(
+        sec,
+        tols,
+        parse_frequency_list(at, "at"),
+        samples=samples,
+        seed=seed,
+        distribution=distribution,
+        target=z,
+        band=band,
+    ).to_json()
 
 
-def materials(library_files: Iterable[Path | str] = (),
-              scenario_files: Iterable[Path | str] = ()) -> dict:
+def materials(
+    library_files: Iterable[Path | str] = (), scenario_files: Iterable[Path | str] = ()
+) -> dict:
     """The result of ``losslane materials --json``."""
     from losslane.materials.catalog import catalog
 

@@ -245,17 +245,22 @@ def describe(section) -> str:
 
 # --- design helpers: size, compare, spread, materials --------------------------------------
 
-_SOLVER_OPTION = click.option("--solver", type=click.Choice(["closed-form", "field"]),
-                              default="closed-form", show_default=True,
-                              help="closed-form models or the 2-D field solver")
+_SOLVER_OPTION = click.option(
+    "--solver",
+    type=click.Choice(["closed-form", "field"]),
+    default="closed-form",
+    show_default=True,
+    help="closed-form models or the 2-D field solver",
+)
 
 
 def _placeholder(options: dict, key: str, command: str) -> None:
     """Fill the dimension a design command solves for; the user must not give it."""
     if options.get(key) is not None:
-        raise LossLaneError(f"--{key} is what `{command}` solves for; leave it out"
-                            + (" (or solve the other dimension with --vary)"
-                               if key in ("width", "spacing") else ""))
+        raise LossLaneError(
+            f"--{key} is what `{command}` solves for; leave it out"
+            + (" (or solve the other dimension with --vary)" if key in ("width", "spacing") else "")
+        )
     # any length the model accepts: it only seeds the section and is replaced by the solution
     options[key] = options.get("height") or options.get("below") or options.get("gap") or "5mil"
 
@@ -263,8 +268,9 @@ def _placeholder(options: dict, key: str, command: str) -> None:
 def _names(value: str, key: str) -> list[str]:
     names = [s.strip() for s in value.split(",")]
     if not value.strip() or any(not s for s in names):
-        raise LossLaneError(f"{key} = {value!r}: expected comma-separated names, e.g. "
-                            "low-loss,very-low-loss")
+        raise LossLaneError(
+            f"{key} = {value!r}: expected comma-separated names, e.g. low-loss,very-low-loss"
+        )
     return list(dict.fromkeys(names))
 
 
@@ -293,21 +299,40 @@ def _progress(samples: int, work: int):
 
 @cli.command("size")
 @click.argument("kind")
-@click.option("--target", required=True, metavar="OHMS",
-              help="target impedance: Z0 of a single line, Z_diff of a pair (50ohm or 50)")
-@click.option("--vary", type=click.Choice(["width", "spacing"]), default="width",
-              show_default=True, help="the dimension solved (spacing: pairs, at the given "
-              "--width; width of a pair: at the given --spacing)")
-@click.option("--at", "at", default="1GHz", show_default=True, metavar="FREQ",
-              help="frequency at which the target impedance holds")
-@click.option("--loss-at", metavar="FREQS", help="frequencies of the reported loss per inch "
-              "(default: the --at frequency)")
+@click.option(
+    "--target",
+    required=True,
+    metavar="OHMS",
+    help="target impedance: Z0 of a single line, Z_diff of a pair (50ohm or 50)",
+)
+@click.option(
+    "--vary",
+    type=click.Choice(["width", "spacing"]),
+    default="width",
+    show_default=True,
+    help="the dimension solved (spacing: pairs, at the given "
+    "--width; width of a pair: at the given --spacing)",
+)
+@click.option(
+    "--at",
+    "at",
+    default="1GHz",
+    show_default=True,
+    metavar="FREQ",
+    help="frequency at which the target impedance holds",
+)
+@click.option(
+    "--loss-at",
+    metavar="FREQS",
+    help="frequencies of the reported loss per inch (default: the --at frequency)",
+)
 @_geometry_options
 @_material_options
 @_SOLVER_OPTION
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
-def size_command(kind: str, target: str, vary: str, at: str, loss_at: str | None,
-                 as_json: bool, **options) -> None:
+def size_command(
+    kind: str, target: str, vary: str, at: str, loss_at: str | None, as_json: bool, **options
+) -> None:
     """Trace width (or pair spacing) for a target impedance.
 
     The impedance is the one `losslane line` reports (Z0, or Z_diff of a pair) at --at,
@@ -332,11 +357,14 @@ def size_command(kind: str, target: str, vary: str, at: str, loss_at: str | None
         lib = load_library(options.pop("library_files"))
         ks = KINDS.get(kind)
         if ks is not None and vary not in ks.required + ks.optional:
-            raise LossLaneError(f"--vary {vary}: {kind} has no {vary}; the spacing is solved "
-                                "only for pairs (microstrip-pair, stripline-pair)")
+            raise LossLaneError(
+                f"--vary {vary}: {kind} has no {vary}; the spacing is solved "
+                "only for pairs (microstrip-pair, stripline-pair)"
+            )
         _placeholder(options, vary, "losslane size")
-        section = section_from_spec(line_spec(kind, options, where), where, lib.dielectric,
-                                    lib.foil)
+        section = section_from_spec(
+            line_spec(kind, options, where), where, lib.dielectric, lib.foil
+        )
         solved = size(section, z, at=f0, vary=vary, loss_at=floss)
         result = solved.to_json()
         if as_json:
@@ -353,25 +381,61 @@ def describe_solved(section, vary: str) -> str:
 
 @cli.command("compare")
 @click.argument("kind")
-@click.option("--materials", required=True, metavar="A,B,...",
-              help="dielectrics from the library to compare (see `losslane materials`)")
-@click.option("--foils", metavar="X,Y,...", help="foils to compare (default: --foil, or "
-              "smooth copper)")
-@click.option("--target", required=True, metavar="OHMS",
-              help="every candidate is re-sized to this impedance (Z0, or Z_diff of a pair)")
-@click.option("--at", "at", default="1GHz,10GHz,28GHz", show_default=True, metavar="FREQS",
-              help="frequencies of the loss table")
-@click.option("--size-at", default="1GHz", show_default=True, metavar="FREQ",
-              help="frequency at which the target impedance holds")
-@click.option("--plot", "plot", default="losslane-compare.png", show_default=True,
-              metavar="FILE", help="chart of dB/in against frequency (PNG)")
+@click.option(
+    "--materials",
+    required=True,
+    metavar="A,B,...",
+    help="dielectrics from the library to compare (see `losslane materials`)",
+)
+@click.option(
+    "--foils", metavar="X,Y,...", help="foils to compare (default: --foil, or smooth copper)"
+)
+@click.option(
+    "--target",
+    required=True,
+    metavar="OHMS",
+    help="every candidate is re-sized to this impedance (Z0, or Z_diff of a pair)",
+)
+@click.option(
+    "--at",
+    "at",
+    default="1GHz,10GHz,28GHz",
+    show_default=True,
+    metavar="FREQS",
+    help="frequencies of the loss table",
+)
+@click.option(
+    "--size-at",
+    default="1GHz",
+    show_default=True,
+    metavar="FREQ",
+    help="frequency at which the target impedance holds",
+)
+@click.option(
+    "--plot",
+    "plot",
+    default="losslane-compare.png",
+    show_default=True,
+    metavar="FILE",
+    help="chart of dB/in against frequency (PNG)",
+)
 @click.option("--no-plot", is_flag=True, help="do not write the chart")
 @_geometry_options
 @_material_options
 @_SOLVER_OPTION
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
-def compare_command(kind: str, materials: str, foils: str | None, target: str, at: str,
-                    size_at: str, plot: str, no_plot: bool, as_json: bool, **options) -> None:
+def compare_command(
+    kind: str,
+    materials: str,
+    foils: str | None,
+    target: str,
+    at: str,
+    size_at: str,
+    plot: str,
+    no_plot: bool,
+    as_json: bool,
+    **options,
+) -> None:
     """Compare dielectrics and foils at equal impedance.
 
     Each material x foil is re-sized to --target (a lower-Dk laminate gets a wider
@@ -397,13 +461,16 @@ def compare_command(kind: str, materials: str, foils: str | None, target: str, a
         f0 = parse_frequency(size_at, "--size-at")
         lib = load_library(options.pop("library_files"))
         if options.get("dk") is not None or options.get("dielectric_name") is not None:
-            raise LossLaneError("compare takes its dielectrics from --materials; leave out "
-                                "--dk/--dielectric (add your own with --library FILE)")
+            raise LossLaneError(
+                "compare takes its dielectrics from --materials; leave out "
+                "--dk/--dielectric (add your own with --library FILE)"
+            )
         mats = {n: lib.dielectric(n, "--materials") for n in _names(materials, "--materials")}
         options["dielectric_name"] = next(iter(mats))
         _placeholder(options, "width", "losslane compare")
-        section = section_from_spec(line_spec(kind, options, where), where, lib.dielectric,
-                                    lib.foil)
+        section = section_from_spec(
+            line_spec(kind, options, where), where, lib.dielectric, lib.foil
+        )
         if foils is not None:
             if options.get("foil") or options.get("roughness_model"):
                 raise LossLaneError("give either --foils X,Y or --foil/--roughness-model")
@@ -411,19 +478,36 @@ def compare_command(kind: str, materials: str, foils: str | None, target: str, a
         else:
             label = options.get("foil") or (
                 f"{options['roughness_model']} {options.get('rq') or ''}".strip()
-                if options.get("roughness_model") else "smooth")
+                if options.get("roughness_model")
+                else "smooth"
+            )
             foil_map = {label: section.metal.foil}
         result = compare(section, mats, foil_map, z, freqs, size_at=f0)
         out = result.to_json()
         if not no_plot:
             what = "Z_diff" if out["impedance"] == "z_diff" else "Z0"
-            title = (f"{_stackup(section, ('width',))}; each re-sized to {what} = {z:g} ohm "
-                     f"at {f0 / 1e9:g} GHz")
-            curves = [(f"{c.material} / {c.foil} (w {c.section.width / 25.4e-6:.3g} mil)",
-                       c.curve_f, c.curve_db_per_in) for c in result.candidates]
-            out["plot"] = str(loss_comparison_chart(
-                curves, plot, title, freqs, [c.material for c in result.candidates],
-                [c.foil for c in result.candidates]))
+            title = (
+                f"{_stackup(section, ('width',))}; each re-sized to {what} = {z:g} ohm "
+                f"at {f0 / 1e9:g} GHz"
+            )
+            curves = [
+                (
+                    f"{c.material} / {c.foil} (w {c.section.width / 25.4e-6:.3g} mil)",
+                    c.curve_f,
+                    c.curve_db_per_in,
+                )
+                for c in result.candidates
+            ]
+            out["plot"] = str(
+                loss_comparison_chart(
+                    curves,
+                    plot,
+                    title,
+                    freqs,
+                    [c.material for c in result.candidates],
+                    [c.foil for c in result.candidates],
+                )
+            )
         if as_json:
             click.echo(json.dumps(out))
         else:
@@ -446,28 +530,68 @@ def _tolerance_options(func):
 @cli.command("spread")
 @click.argument("kind")
 @_tolerance_options
-@click.option("--distribution", type=click.Choice(["normal", "uniform"]), default="normal",
-              show_default=True, help="normal: each +/- tolerance is 3 sigma; uniform: "
-              "samples fill the +/- interval evenly")
+@click.option(
+    "--distribution",
+    type=click.Choice(["normal", "uniform"]),
+    default="normal",
+    show_default=True,
+    help="normal: each +/- tolerance is 3 sigma; uniform: samples fill the +/- interval evenly",
+)
 @click.option("--samples", type=int, default=10000, show_default=True, help="Monte Carlo samples")
-@click.option("--seed", type=int, default=1, show_default=True,
-              help="random seed (the same seed gives the same numbers)")
-@click.option("--at", "at", default="1GHz,10GHz,28GHz", show_default=True, metavar="FREQS",
-              help="frequencies of the impedance and loss statistics")
-@click.option("--target", metavar="OHMS", help="impedance the band is centred on "
-              "(default: the nominal line's impedance at each frequency)")
-@click.option("--band", default="10%", show_default=True, metavar="TOL",
-              help="accepted +/- band around the target: a percentage or ohms (5ohm)")
-@click.option("--plot", "plot", default="losslane-spread.png", show_default=True,
-              metavar="FILE", help="histograms of impedance and loss (PNG)")
+@click.option(
+    "--seed",
+    type=int,
+    default=1,
+    show_default=True,
+    help="random seed (the same seed gives the same numbers)",
+)
+@click.option(
+    "--at",
+    "at",
+    default="1GHz,10GHz,28GHz",
+    show_default=True,
+    metavar="FREQS",
+    help="frequencies of the impedance and loss statistics",
+)
+@click.option(
+    "--target",
+    metavar="OHMS",
+    help="impedance the band is centred on "
+    "(default: the nominal line's impedance at each frequency)",
+)
+@click.option(
+    "--band",
+    default="10%",
+    show_default=True,
+    metavar="TOL",
+    help="accepted +/- band around the target: a percentage or ohms (5ohm)",
+)
+@click.option(
+    "--plot",
+    "plot",
+    default="losslane-spread.png",
+    show_default=True,
+    metavar="FILE",
+    help="histograms of impedance and loss (PNG)",
+)
 @click.option("--no-plot", is_flag=True, help="do not write the histograms")
 @_geometry_options
 @_material_options
 @_SOLVER_OPTION
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
-def spread_command(kind: str, distribution: str, samples: int, seed: int, at: str,
-                   target: str | None, band: str, plot: str, no_plot: bool, as_json: bool,
-                   **options) -> None:
+def spread_command(
+    kind: str,
+    distribution: str,
+    samples: int,
+    seed: int,
+    at: str,
+    target: str | None,
+    band: str,
+    plot: str,
+    no_plot: bool,
+    as_json: bool,
+    **options,
+) -> None:
     """Tolerance Monte Carlo of impedance and loss.
 
     Give the nominal line like `losslane line` and a +/- tolerance per parameter
@@ -495,8 +619,9 @@ def spread_command(kind: str, distribution: str, samples: int, seed: int, at: st
         z = parse_target(target) if target is not None else None
         frac, ohm = _parse_band(band)
         lib = load_library(options.pop("library_files"))
-        section = section_from_spec(line_spec(kind, options, where), where, lib.dielectric,
-                                    lib.foil)
+        section = section_from_spec(
+            line_spec(kind, options, where), where, lib.dielectric, lib.foil
+        )
         geo = nominal_geometry(section)
         tols = {}
         for key, value in tol_text.items():
@@ -513,21 +638,38 @@ def spread_command(kind: str, distribution: str, samples: int, seed: int, at: st
                     bar.update(n - done[0])
                     done[0] = n
 
-            result = spread(section, tols, freqs, samples=samples, seed=seed,
-                            distribution=distribution, target=z,
-                            band=frac if frac is not None else 0.1, band_ohm=ohm,
-                            progress=advance)
+            result = spread(
+                section,
+                tols,
+                freqs,
+                samples=samples,
+                seed=seed,
+                distribution=distribution,
+                target=z,
+                band=frac if frac is not None else 0.1,
+                band_ohm=ohm,
+                progress=advance,
+            )
         out = result.to_json()
         if not no_plot:
             what = "Z_diff" if result.differential else "Z0"
             i_z = 0
             i_l = int(max(range(len(freqs)), key=lambda i: freqs[i]))
-            title = (f"{_stackup(section)}; {samples} samples, {distribution}"
-                     + (" (tolerance = 3 sigma)" if distribution == "normal" else ""))
-            out["plot"] = str(spread_histograms(
-                result.impedance[:, i_z], f"{what} at {freqs[i_z] / 1e9:g} GHz (ohm)",
-                float(result.target[i_z]), float(result.band[i_z]), result.loss[:, i_l],
-                f"loss at {freqs[i_l] / 1e9:g} GHz (dB/in)", plot, title))
+            title = f"{_stackup(section)}; {samples} samples, {distribution}" + (
+                " (tolerance = 3 sigma)" if distribution == "normal" else ""
+            )
+            out["plot"] = str(
+                spread_histograms(
+                    result.impedance[:, i_z],
+                    f"{what} at {freqs[i_z] / 1e9:g} GHz (ohm)",
+                    float(result.target[i_z]),
+                    float(result.band[i_z]),
+                    result.loss[:, i_l],
+                    f"loss at {freqs[i_l] / 1e9:g} GHz (dB/in)",
+                    plot,
+                    title,
+                )
+            )
         if as_json:
             click.echo(json.dumps(out))
         else:
@@ -557,13 +699,24 @@ def _parse_band(value: str) -> tuple[float | None, float | None]:
 
 
 @cli.command("materials")
-@click.option("--library", "library_files", multiple=True, metavar="FILE",
-              help="extra library file(s) with [dielectrics.*] / [foils.*] entries")
-@click.option("--scenario", "scenario_files", multiple=True, metavar="FILE",
-              help="list a scenario file's own [dielectrics.*] / [foils.*] entries too")
+@click.option(
+    "--library",
+    "library_files",
+    multiple=True,
+    metavar="FILE",
+    help="extra library file(s) with [dielectrics.*] / [foils.*] entries",
+)
+@click.option(
+    "--scenario",
+    "scenario_files",
+    multiple=True,
+    metavar="FILE",
+    help="list a scenario file's own [dielectrics.*] / [foils.*] entries too",
+)
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
-def materials_command(library_files: tuple[str, ...], scenario_files: tuple[str, ...],
-                      as_json: bool) -> None:
+def materials_command(
+    library_files: tuple[str, ...], scenario_files: tuple[str, ...], as_json: bool
+) -> None:
     """The dielectric and foil library, as a table.
 
     Dielectrics with class, Dk, Df and their frequency; foils with model and parameters.
