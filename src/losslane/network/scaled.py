@@ -1,0 +1,349 @@
+"""The scaled transfer-matrix representation every block and the cascade share, and the
+conversions between it and scattering parameters.
+
+Representation
+--------------
+The transfer (ABCD, chain) matrix ``T`` of an n-conductor block relates the near-end
+voltages and currents to the far-end ones, ``[V1; I1] = T [V2; I2]`` (``I1`` flows into
+the block at the near end, ``I2`` out of it at the far end). Rows/columns ``0..n-1`` are
+the near-end quantities of conductors 1..n, rows/columns ``n..2n-1`` the far end;
+``T`` is (N, 2n, 2n) over the frequency axis.
+
+For a long lossy line ``T`` grows like ``exp(alpha l)`` (cosh and sinh of gamma l): it
+overflows for alpha l > ~700 Np and, long before that, any quantity obtained from it by
+cancellation (the reverse transmission S12, which is of order ``exp(-alpha l)``) is lost
+in rounding. losslane therefore carries
+
+    T = exp(log_scale)[:, None, None] * matrix
+
+with ``log_scale`` (N,) real (natural log, may be +inf where ``T`` itself is infinite,
+e.g. a series capacitor at f = 0) and ``matrix`` normalised so that its largest entry
+magnitude lies in [0.5, 1) (a power-of-two scaling, so normalising is exact). A cascade
+multiplies the matrices and adds the log scales. Besides the forward matrix, a
+:class:`ScaledABCD` carries the same network seen from its far end (``reverse``). The
+forward transmission S21 and the input reflection S11 come from the forward chain, S12
+and S22 from the reverse one; both are then computed without cancellation, so even a
+line of alpha l ~ 1000 Np gives S11 to full accuracy and S21 = S12 tiny (underflowing to
+0 below ~1e-308) instead of NaN.
+
+Waves are power waves with real reference impedances per port (the Touchstone
+convention): ``V = sqrt(z)(a + b)``, ``I_in = (a - b)/sqrt(z)``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+__all__ = [
+    "ScaledABCD",
+    "abcd_to_s",
+    "block_diagonal_legs",
+    "s_to_scaled_abcd",
+    "transmission_db",
+]
+
+
+def matmul(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Matrix product of two (N, m, m) stacks.
+
+    For m <= 4 the product is written out entry by entry on a frequency-last copy, which
+    is several times faster than ``np.matmul``'s generic loop for stacks of tiny matrices
+    (see benchmarks/bench_cascade.py); larger matrices use ``np.matmul``.
+    """
+    m = a.shape[-1]
+    if m > 4:
+        return np.matmul(a, b)
+    at = np.ascontiguousarray(np.moveaxis(a, 0, -1))
+    bt = np.ascontiguousarray(np.moveaxis(b, 0, -1))
+    return np.moveaxis(_matmul_fl(at, bt), -1, 0)
+
+
+def _matmul_fl(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Product of two frequency-last (m, m, N) stacks, entry by entry."""
+    m = a.shape[0]
+    out = np.empty(a.shape, dtype=np.result_type(a, b))
+    for i in range(m):
+        for j in range(m):
+            acc = a[i, 0] * b[0, j]
+            for k in range(1, m):
+                acc += a[i, k] * b[k, j]
+            out[i, j] = acc
+    return out
+
+
+def normalise(matrix: np.ndarray, log_scale: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Rescale ``matrix`` (N, m, m) by a power of two per frequency so its largest entry
+    magnitude is in [0.5, 1), moving the factor into ``log_scale``. Exact (no rounding)."""
+    peak = np.max(np.abs(matrix), axis=(-2, -1))
+    _, e = np.frexp(peak)
+    return matrix * np.exp2(-e)[:, None, None], log_scale + e * np.log(2.0)
+
+
+def _flip(matrix: np.ndarray) -> np.ndarray:
+    """The reverse-direction matrix of a reciprocal block: [[D^T, B^T], [C^T, A^T]].
+
+    Reciprocity of a multiport chain matrix means A B^T = B A^T, C D^T = D C^T and
+    A D^T - B C^T = I, so T^-1 = [[D^T, -B^T], [-C^T, A^T]]; turning the block around
+    (swap ends, reverse the current directions) gives the matrix above.
+    """
+    n = matrix.shape[-1] // 2
+    a, b = matrix[:, :n, :n], matrix[:, :n, n:]
+    c, d = matrix[:, n:, :n], matrix[:, n:, n:]
+    t = lambda x: np.swapaxes(x, -1, -2)  # noqa: E731
+    return np.concatenate(
+        [np.concatenate([t(d), t(b)], axis=2), np.concatenate([t(c), t(a)], axis=2)], axis=1
+    )
+
+
+@dataclass(frozen=True)
+class ScaledABCD:
+    """T = exp(log_scale) * matrix over frequency, plus the network seen from its far end.
+
+    ``matrix`` (N, 2n, 2n) complex, ``log_scale`` (N,) float (may be +inf), ``reverse``
+    a ScaledABCD of the turned-around network (its own ``reverse`` is None) or None when
+    unknown. Use :meth:`from_abcd`, :meth:`from_ratio` or :meth:`reciprocal` to build one;
+    ``a @ b`` cascades (a's far end to b's near end).
+    """
+
+    matrix: np.ndarray
+    log_scale: np.ndarray
+    reverse: ScaledABCD | None = field(default=None, repr=False)
+
+    @property
+    def n(self) -> int:
+        """Number of conductors (the matrix is 2n x 2n)."""
+        return self.matrix.shape[-1] // 2
+
+    @property
+    def npoints(self) -> int:
+        return self.matrix.shape[0]
+
+    @classmethod
+    def reciprocal(cls, matrix: np.ndarray, log_scale: np.ndarray) -> ScaledABCD:
+        """A reciprocal block: normalised forward matrix and its flipped reverse."""
+        m, s = normalise(np.asarray(matrix, complex), np.asarray(log_scale, float))
+        return cls(m, s, cls(_flip(m), s))
+
+    @classmethod
+    def from_ratio(cls, numerator: np.ndarray, denominator: np.ndarray) -> ScaledABCD:
+        """T = numerator / denominator (scalar per frequency) of a reciprocal block, finite
+        where the denominator is 0 (T infinite: log_scale = +inf, the matrix its limit
+        direction). Used for a series capacitor at DC, a shunt stub at its notch, and the
+        S -> ABCD conversion of a file with S21 = 0."""
+        numerator = np.asarray(numerator, complex)
+        d = np.asarray(denominator, complex)
+        mag = np.abs(d)
+        phase = np.where(mag > 0, np.conj(d) / np.where(mag > 0, mag, 1.0), 1.0)
+        with np.errstate(divide="ignore"):
+            s = -np.log(mag)
+        return cls.reciprocal(numerator * phase[:, None, None], s)
+
+    @classmethod
+    def from_abcd(cls, abcd: np.ndarray) -> ScaledABCD:
+        """Wrap a plain (unscaled) ABCD stack; the reverse comes from its exact inverse,
+        so no reciprocity is assumed. Fine for moderate matrices; blocks use the scaled
+        constructors."""
+        t = np.asarray(abcd, complex)
+        zero = np.zeros(t.shape[0])
+        m, s = normalise(t, zero)
+        n = t.shape[-1] // 2
+        p = np.concatenate([np.ones(n), -np.ones(n)])
+        inv = np.linalg.inv(t) * p[None, :, None] * p[None, None, :]
+        mr, sr = normalise(inv, zero)
+        return cls(m, s, cls(mr, sr))
+
+    def abcd(self) -> np.ndarray:
+        """The plain ABCD matrix (N, 2n, 2n); overflows to inf for huge log scales."""
+        with np.errstate(over="ignore", invalid="ignore"):
+            big = np.exp(self.log_scale)[:, None, None]
+            return np.where(self.matrix == 0, 0.0, self.matrix * big)
+
+    def flipped(self) -> ScaledABCD:
+        """The same network turned around (far end first)."""
+        if self.reverse is None:
+            raise ValueError("this ScaledABCD carries no reverse matrix")
+        return ScaledABCD(self.reverse.matrix, self.reverse.log_scale, self.without_reverse())
+
+    def without_reverse(self) -> ScaledABCD:
+        return ScaledABCD(self.matrix, self.log_scale)
+
+    def __matmul__(self, other: ScaledABCD) -> ScaledABCD:
+        m, s = normalise(matmul(self.matrix, other.matrix), self.log_scale + other.log_scale)
+        rev = None
+        if self.reverse is not None and other.reverse is not None:
+            rm, rs = normalise(
+                matmul(other.reverse.matrix, self.reverse.matrix),
+                self.reverse.log_scale + other.reverse.log_scale,
+            )
+            rev = ScaledABCD(rm, rs)
+        return ScaledABCD(m, s, rev)
+
+
+def block_diagonal_legs(matrix: np.ndarray, n: int) -> np.ndarray:
+    """Expand a single-conductor (N, 2, 2) chain matrix into the (N, 2n, 2n) matrix of n
+    identical, uncoupled legs (a lumped part in each leg of a pair)."""
+    if n == 1:
+        return matrix
+    eye = np.eye(n)
+    out = np.zeros((matrix.shape[0], 2 * n, 2 * n), dtype=complex)
+    out[:, :n, :n] = matrix[:, 0, 0, None, None] * eye
+    out[:, :n, n:] = matrix[:, 0, 1, None, None] * eye
+    out[:, n:, :n] = matrix[:, 1, 0, None, None] * eye
+    out[:, n:, n:] = matrix[:, 1, 1, None, None] * eye
+    return out
+
+
+def _ref_array(z_ref, npoints: int, nports: int) -> np.ndarray:
+    """Reference impedances as a real (N, 2n) array from a scalar, (2n,) or (N, 2n)."""
+    z = np.asarray(z_ref)
+    if np.iscomplexobj(z):
+        if np.any(z.imag != 0):
+            raise ValueError("reference impedances must be real")
+        z = z.real
+    z = np.broadcast_to(np.asarray(z, float), (npoints, nports)) if z.ndim < 2 else z
+    if z.shape != (npoints, nports):
+        raise ValueError(f"z_ref of shape {z.shape} does not fit {npoints} points x {nports} ports")
+    if not np.all(np.isfinite(z)) or np.any(z <= 0):
+        raise ValueError("reference impedances must be finite and > 0")
+    return z
+
+
+def _inv_small(g: np.ndarray) -> np.ndarray:
+    """Inverse of an (N, n, n) stack; written out for n <= 2 (fast, exact adjugate form)."""
+    n = g.shape[-1]
+    if n == 1:
+        return 1.0 / g
+    if n == 2:
+        a, b, c, d = g[:, 0, 0], g[:, 0, 1], g[:, 1, 0], g[:, 1, 1]
+        det = a * d - b * c
+        out = np.empty_like(g)
+        out[:, 0, 0], out[:, 0, 1] = d / det, -b / det
+        out[:, 1, 0], out[:, 1, 1] = -c / det, a / det
+        return out
+    return np.linalg.inv(g)
+
+
+def _forward_waves(sc: ScaledABCD, r1: np.ndarray, r2: np.ndarray) -> tuple:
+    """Input reflection block and scaled transmission block of the forward chain.
+
+    With the far end terminated in its references and the near end driven, the chain
+    relations give a2 = 0, b2 = (2 G^-1) a1 exp(-log_scale) and b1 = (2 R1^-1 P G^-1 - I) a1,
+    where P = A R2 + B R2^-1, Q = C R2 + D R2^-1, G = R1^-1 P + R1 Q and R = diag(sqrt z)
+    (only the n x n matrix G is inverted). Returns (S11, S21 / exp(-log_scale)).
+    """
+    n = sc.n
+    m = sc.matrix
+    a, b, c, d = m[:, :n, :n], m[:, :n, n:], m[:, n:, :n], m[:, n:, n:]
+    p = a * r2[:, None, :] + b / r2[:, None, :]
+    q = c * r2[:, None, :] + d / r2[:, None, :]
+    g = p / r1[:, :, None] + q * r1[:, :, None]
+    ginv = _inv_small(g)
+    x21 = 2.0 * ginv
+    x11 = 2.0 * np.matmul(p / r1[:, :, None], ginv) if n > 1 else 2.0 * (p / r1[:, :, None]) * ginv
+    x11 = x11 - np.eye(n)
+    return x11, x21
+
+
+def abcd_to_s(abcd: np.ndarray | ScaledABCD, z_ref) -> np.ndarray:
+    """Scattering matrix (N, 2n, 2n) of a chain matrix, ports in the internal order
+    (near ends of conductors 1..n, then far ends), power waves on real references.
+
+    ``abcd`` is a plain (N, 2n, 2n) ABCD stack or a :class:`ScaledABCD` (what the
+    cascade returns); ``z_ref`` a real scalar, one value per port (2n,) or (N, 2n).
+    With a ScaledABCD carrying its reverse, every entry is computed without cancellation
+    (see the module docstring); the result is finite for any finite or infinite scale.
+    """
+    sc = abcd if isinstance(abcd, ScaledABCD) else ScaledABCD.from_abcd(abcd)
+    n, npts = sc.n, sc.npoints
+    z = _ref_array(z_ref, npts, 2 * n)
+    r = np.sqrt(z)
+    r1, r2 = r[:, :n], r[:, n:]
+    rev = sc.reverse if sc.reverse is not None else ScaledABCD.from_abcd(sc.abcd()).reverse
+    s11, x21 = _forward_waves(sc, r1, r2)
+    s22, x12 = _forward_waves(rev, r2, r1)
+    out = np.empty((npts, 2 * n, 2 * n), dtype=complex)
+    out[:, :n, :n] = s11
+    out[:, n:, n:] = s22
+    with np.errstate(over="ignore", under="ignore"):
+        out[:, n:, :n] = np.exp(-sc.log_scale)[:, None, None] * x21
+        out[:, :n, n:] = np.exp(-rev.log_scale)[:, None, None] * x12
+    return out
+
+
+def transmission_db(abcd: ScaledABCD, z_ref) -> np.ndarray:
+    """20 log10 |S21 block| (N, n, n) computed in the log domain, so that a channel whose
+    S21 underflows (alpha l > ~700 Np) still reports its loss in dB (-inf only where the
+    transmission is exactly zero, e.g. through a series capacitor at f = 0)."""
+    n, npts = abcd.n, abcd.npoints
+    r = np.sqrt(_ref_array(z_ref, npts, 2 * n))
+    _, x21 = _forward_waves(abcd, r[:, :n], r[:, n:])
+    with np.errstate(divide="ignore"):
+        return 20.0 * (np.log10(np.abs(x21)) - abcd.log_scale[:, None, None] / np.log(10.0))
+
+
+def _adjugate(m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(adj(m), det(m)) of an (N, n, n) stack, n <= 2 (files are 2- or 4-ports)."""
+    n = m.shape[-1]
+    if n == 1:
+        return np.ones_like(m), m[:, 0, 0]
+    if n == 2:
+        a, b, c, d = m[:, 0, 0], m[:, 0, 1], m[:, 1, 0], m[:, 1, 1]
+        adj = np.empty_like(m)
+        adj[:, 0, 0], adj[:, 0, 1], adj[:, 1, 0], adj[:, 1, 1] = d, -b, -c, a
+        return adj, a * d - b * c
+    raise ValueError("S -> ABCD is implemented for 2- and 4-port data")
+
+
+def _s_to_chain(s: np.ndarray, r1: np.ndarray, r2: np.ndarray) -> ScaledABCD:
+    """Forward chain matrix of S (internal port order) as numerator / det(S21).
+
+    From b = S a at both ends and V = R(a + b), I_in = R^-1 (a - b):
+    det(S21) T = K [[-adj(S21) S22, adj(S21)], [det(S21) I, 0]] W, with
+    K = [[R1 (I + S11), R1 S12], [R1^-1 (I - S11), -R1^-1 S12]] and
+    W = 1/2 [[R2^-1, -R2], [R2^-1, R2]].
+    """
+    n = s.shape[-1] // 2
+    s11, s12, s21, s22 = s[:, :n, :n], s[:, :n, n:], s[:, n:, :n], s[:, n:, n:]
+    adj, det = _adjugate(s21)
+    eye = np.eye(n)
+    k = np.concatenate(
+        [
+            np.concatenate([r1[:, :, None] * (eye + s11), r1[:, :, None] * s12], axis=2),
+            np.concatenate([(eye - s11) / r1[:, :, None], -s12 / r1[:, :, None]], axis=2),
+        ],
+        axis=1,
+    )
+    mid = np.concatenate(
+        [
+            np.concatenate([-np.matmul(adj, s22), adj], axis=2),
+            np.concatenate([det[:, None, None] * eye, np.zeros_like(adj)], axis=2),
+        ],
+        axis=1,
+    )
+    w = np.zeros((s.shape[0], 2 * n, 2 * n))
+    idx = np.arange(n)
+    w[:, idx, idx] = 0.5 / r2
+    w[:, idx, n + idx] = -0.5 * r2
+    w[:, n + idx, idx] = 0.5 / r2
+    w[:, n + idx, n + idx] = 0.5 * r2
+    num = np.matmul(np.matmul(k, mid), w)
+    mag = np.abs(det)
+    phase = np.where(mag > 0, np.conj(det) / np.where(mag > 0, mag, 1.0), 1.0)
+    with np.errstate(divide="ignore"):
+        m, ls = normalise(num * phase[:, None, None], -np.log(mag))
+    return ScaledABCD(m, ls)
+
+
+def s_to_scaled_abcd(s: np.ndarray, z_ref) -> ScaledABCD:
+    """Chain matrix (with its reverse) of a scattering matrix in the internal port order
+    (near ends, then far ends) on real references ``z_ref``. Exact for any network,
+    reciprocal or not; finite where S21 is singular (e.g. a DC block at f = 0)."""
+    s = np.asarray(s, complex)
+    n = s.shape[-1] // 2
+    r = np.sqrt(_ref_array(z_ref, s.shape[0], 2 * n))
+    fwd = _s_to_chain(s, r[:, :n], r[:, n:])
+    perm = np.r_[np.arange(n, 2 * n), np.arange(n)]
+    rev = _s_to_chain(s[:, perm][:, :, perm], r[:, n:], r[:, :n])
+    return ScaledABCD(fwd.matrix, fwd.log_scale, rev)
