@@ -207,7 +207,10 @@ def _nonneg(owner: str, key: str, value: float, unit: str, positive: bool = Fals
 
 def _conductors(owner: str, n: int) -> int:
     if int(n) != n or n < 1:
-        raise LossLaneError(f"{owner}: n = {n!r} conductors is not valid; use 1 or 2")
+        raise LossLaneError(
+            f"{owner}: n = {n!r} conductors is not valid; it must be a whole number >= 1 "
+            "(1 single-ended, 2 a pair)"
+        )
     return int(n)
 
 

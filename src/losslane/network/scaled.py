@@ -146,6 +146,11 @@ class ScaledABCD:
         so no reciprocity is assumed. Fine for moderate matrices; blocks use the scaled
         constructors."""
         t = np.asarray(abcd, complex)
+        if not np.all(np.isfinite(t)):
+            raise ValueError(
+                "a plain ABCD matrix with non-finite entries (e.g. a series capacitor at "
+                "f = 0) cannot be converted; use the ScaledABCD that cascade() returns"
+            )
         zero = np.zeros(t.shape[0])
         m, s = normalise(t, zero)
         n = t.shape[-1] // 2
@@ -296,6 +301,9 @@ def _adjugate(m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     raise ValueError("S -> ABCD is implemented for 2- and 4-port data")
 
 
+SINGULAR_NUDGE = 1e-100
+
+
 def _s_to_chain(s: np.ndarray, r1: np.ndarray, r2: np.ndarray) -> ScaledABCD:
     """Forward chain matrix of S (internal port order) as numerator / det(S21).
 
@@ -307,6 +315,14 @@ def _s_to_chain(s: np.ndarray, r1: np.ndarray, r2: np.ndarray) -> ScaledABCD:
     n = s.shape[-1] // 2
     s11, s12, s21, s22 = s[:, :n, :n], s[:, :n, n:], s[:, n:, :n], s[:, n:, n:]
     adj, det = _adjugate(s21)
+    if n > 1:
+        # A singular transmission block (both legs DC-blocked at f = 0) leaves adj(S21)
+        # without the limit direction of T; adding SINGULAR_NUDGE * I to S21 there
+        # restores it and changes the cascaded S by ~1e-100, far below any resolution.
+        sing = np.abs(det) < SINGULAR_NUDGE**n
+        if np.any(sing):
+            s21 = np.where(sing[:, None, None], s21 + SINGULAR_NUDGE * np.eye(n), s21)
+            adj, det = _adjugate(s21)
     eye = np.eye(n)
     k = np.concatenate(
         [

@@ -156,8 +156,7 @@ def write_touchstone(
     if ext != want and not (ver != "1.0" and ext == ".ts"):
         also = " or .ts" if ver != "1.0" else ""
         raise LossLaneError(
-            f"touchstone path '{p}': a {network.nports}-port file needs the extension "
-            f"{want}{also}"
+            f"touchstone path '{p}': a {network.nports}-port file needs the extension {want}{also}"
         )
     text = touchstone_text(network, ver, form, comments, scenario, order)
     directory = p.parent if str(p.parent) else Path(".")
