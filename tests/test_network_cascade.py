@@ -66,6 +66,12 @@ def test_port_orders():
     assert a.port_names == ["in1", "in2", "out1", "out2"]
     with pytest.raises(LossLaneError, match="order"):
         build_network(blocks, f, Z0, order="out-in")
+    # per-port references are given in the output order and follow the ports
+    za = np.array([40.0, 45.0, 55.0, 60.0])
+    ra = build_network(blocks, f, za, order="in-in-out-out")
+    rb = build_network(blocks, f, za[p], order="in-out-in-out")
+    np.testing.assert_array_equal(rb.s, ra.s[:, p][:, :, p])
+    np.testing.assert_array_equal(rb.z0.real[0], za[p])
 
 
 def test_unequal_references_match_scikit_rf_renormalisation():

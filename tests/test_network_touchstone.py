@@ -44,6 +44,7 @@ def test_round_trip(tmp_path, nets, version, form, nports):
     assert back.nports == nports
     np.testing.assert_array_equal(back.f, net.f)
     np.testing.assert_array_equal(back.z0, net.z0)
+    assert back.port_names == net.port_names
     if form == "ri":
         np.testing.assert_array_equal(back.s, net.s)  # shortest round-trip repr: exact
     else:

@@ -5,7 +5,7 @@ Interface of every block
 ------------------------
 ``name`` (label), ``kind`` ("line", "via", "capacitor", "series-rl", "series-z",
 "shunt-c", "touchstone"), ``n`` (signal conductors: 1 single-ended, 2 a pair), ``length``
-(m; 0 for lumped parts and files) and
+(m: a line's length, a via's barrel length; 0 for lumped parts and files) and
 
 * ``scaled_abcd(f) -> ScaledABCD``: the chain matrix as ``exp(log_scale) * matrix`` plus
   the reversed block (see :mod:`losslane.network.scaled`); what the cascade uses;

@@ -13,7 +13,9 @@ Usage (what ``losslane build`` does)::
 :mod:`losslane.network.scaled`) as whole (N, 2n, 2n) stacks -- one vectorized product per
 block and direction, no loop over frequency -- and adds their log scales. Products are
 renormalised by exact powers of two every few blocks, so any number of blocks, of any
-loss, stays finite. Port numbering of the results: internally in-in-out-out (ports 1..n
+loss, stays finite. A cascade of reciprocal blocks (every built-in block) needs only the
+forward product; with a measured file the reverse product is formed as well. Port
+numbering of the results: internally in-in-out-out (ports 1..n
 near ends, n+1..2n far ends); :func:`build_network` reorders to the requested order (see
 :mod:`losslane.network.ports`).
 """
@@ -27,13 +29,7 @@ import numpy as np
 
 from losslane.errors import LossLaneError
 from losslane.network.ports import DEFAULT_ORDER, port_names, port_permutation, to_order
-from losslane.network.scaled import (
-    ScaledABCD,
-    _matmul_fl,
-    abcd_to_s,
-    normalise,
-    transmission_db,
-)
+from losslane.network.scaled import ScaledABCD, abcd_to_s, cascade_items, transmission_db
 
 if TYPE_CHECKING:
     import skrf
@@ -48,10 +44,6 @@ __all__ = [
     "to_network",
     "transmission_db",
 ]
-
-RENORMALISE_EVERY = 16
-"""Blocks between renormalisations: block matrices have entries below 1, so a product of
-16 of them has entries below (2n)^15 -- far from overflow for any practical n."""
 
 
 class BlockLike(Protocol):
@@ -74,15 +66,6 @@ def check_sweep(f, key: str = "sweep") -> np.ndarray:
     return arr
 
 
-def _fl(m: np.ndarray) -> np.ndarray:
-    return np.ascontiguousarray(np.moveaxis(m, 0, -1))
-
-
-def _renorm_fl(m: np.ndarray, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    _, e = np.frexp(np.max(np.abs(m), axis=(0, 1)))
-    return m * np.exp2(-e), s + e * np.log(2.0)
-
-
 def cascade_scaled(items: Sequence[ScaledABCD]) -> ScaledABCD:
     """Cascade already-evaluated scaled chain matrices, first item at the near end."""
     if not items:
@@ -94,27 +77,7 @@ def cascade_scaled(items: Sequence[ScaledABCD]) -> ScaledABCD:
                 f"channel: item {k + 1} has {it.n} conductor(s) on {it.npoints} points, the "
                 f"first has {n} on {items[0].npoints}; all must agree"
             )
-    revs = [it.reverse if it.reverse is not None else _reverse_of(it) for it in items]
-    fwd, s = _fl(items[0].matrix), items[0].log_scale.copy()
-    rev, sr = _fl(revs[0].matrix), revs[0].log_scale.copy()
-    for k in range(1, len(items)):
-        # forward: T = T1 T2 ... Tk; reverse: Tk' ... T2' T1' (the far end comes first)
-        fwd = _matmul_fl(fwd, _fl(items[k].matrix))
-        rev = _matmul_fl(_fl(revs[k].matrix), rev)
-        s = s + items[k].log_scale
-        sr = sr + revs[k].log_scale
-        if k % RENORMALISE_EVERY == 0:
-            fwd, s = _renorm_fl(fwd, s)
-            rev, sr = _renorm_fl(rev, sr)
-    fm, s = normalise(np.moveaxis(fwd, -1, 0), s)
-    rm, sr = normalise(np.moveaxis(rev, -1, 0), sr)
-    return ScaledABCD(fm, s, ScaledABCD(rm, sr))
-
-
-def _reverse_of(item: ScaledABCD) -> ScaledABCD:
-    rev = ScaledABCD.from_abcd(item.abcd()).reverse
-    assert rev is not None
-    return rev
+    return cascade_items(list(items))
 
 
 def cascade(blocks: Sequence[BlockLike | ScaledABCD], f) -> ScaledABCD:

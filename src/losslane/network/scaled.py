@@ -19,20 +19,23 @@ in rounding. losslane therefore carries
 with ``log_scale`` (N,) real (natural log, may be +inf where ``T`` itself is infinite,
 e.g. a series capacitor at f = 0) and ``matrix`` normalised so that its largest entry
 magnitude lies in [0.5, 1) (a power-of-two scaling, so normalising is exact). A cascade
-multiplies the matrices and adds the log scales. Besides the forward matrix, a
-:class:`ScaledABCD` carries the same network seen from its far end (``reverse``). The
-forward transmission S21 and the input reflection S11 come from the forward chain, S12
-and S22 from the reverse one; both are then computed without cancellation, so even a
-line of alpha l ~ 1000 Np gives S11 to full accuracy and S21 = S12 tiny (underflowing to
-0 below ~1e-308) instead of NaN.
+multiplies the matrices and adds the log scales.
+
+The reverse transmission cannot be taken from the forward matrix (it is of order
+exp(-2 alpha l) relative to its entries), so a :class:`ScaledABCD` also knows the same
+network seen from its far end (``reverse``): for a reciprocal block or cascade it is the
+flip [[D^T, B^T], [C^T, A^T]] of the forward matrix (exact rearrangement, no arithmetic),
+for a possibly non-reciprocal one (a measured file) it is carried explicitly and the
+cascade forms the reverse product as well. S11 and S21 come from the forward chain, S22
+and S12 from the reverse one, each as an input reflection and a forward transmission
+computed without cancellation: a line of alpha l ~ 1000 Np gives S11 to full accuracy
+and S21 = S12 tiny (underflowing to 0 below ~1e-308) instead of NaN.
 
 Waves are power waves with real reference impedances per port (the Touchstone
 convention): ``V = sqrt(z)(a + b)``, ``I_in = (a - b)/sqrt(z)``.
 """
 
 from __future__ import annotations
-
-from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -46,30 +49,38 @@ __all__ = [
 
 
 def matmul(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Matrix product of two (N, m, m) stacks.
-
-    For m <= 4 the product is written out entry by entry on a frequency-last copy, which
-    is several times faster than ``np.matmul``'s generic loop for stacks of tiny matrices
-    (see benchmarks/bench_cascade.py); larger matrices use ``np.matmul``.
-    """
-    m = a.shape[-1]
-    if m > 4:
-        return np.matmul(a, b)
+    """Matrix product of two (N, m, m) stacks (the cascade's product, for callers that
+    hold frequency-first arrays)."""
     at = np.ascontiguousarray(np.moveaxis(a, 0, -1))
     bt = np.ascontiguousarray(np.moveaxis(b, 0, -1))
-    return np.moveaxis(_matmul_fl(at, bt), -1, 0)
+    return np.moveaxis(matmul_fl(at, bt), -1, 0)
 
 
-def _matmul_fl(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Product of two frequency-last (m, m, N) stacks, entry by entry."""
+def matmul_fl(
+    a: np.ndarray, b: np.ndarray, out: np.ndarray | None = None, tmp: np.ndarray | None = None
+) -> np.ndarray:
+    """Product of two frequency-last (m, m, N) stacks, written out entry by entry.
+
+    For the small m of a channel (2 or 4) this is several times faster than
+    ``np.matmul``'s generic loop over (N, m, m) stacks (benchmarks/bench_cascade.py). The
+    optional ``out`` (must not alias ``a`` or ``b``) and ``tmp`` (N,) buffers avoid
+    allocating large temporaries; matrices above 8 x 8 fall back to ``np.matmul``.
+    """
     m = a.shape[0]
-    out = np.empty(a.shape, dtype=np.result_type(a, b))
+    if out is None:
+        out = np.empty(a.shape, dtype=np.result_type(a, b))
+    if m > 8:
+        out[...] = np.moveaxis(np.matmul(np.moveaxis(a, -1, 0), np.moveaxis(b, -1, 0)), 0, -1)
+        return out
+    if tmp is None:
+        tmp = np.empty(a.shape[2:], dtype=out.dtype)
     for i in range(m):
         for j in range(m):
-            acc = a[i, 0] * b[0, j]
+            o = out[i, j]
+            np.multiply(a[i, 0], b[0, j], out=o)
             for k in range(1, m):
-                acc += a[i, k] * b[k, j]
-            out[i, j] = acc
+                np.multiply(a[i, k], b[k, j], out=tmp)
+                o += tmp
     return out
 
 
@@ -81,57 +92,129 @@ def normalise(matrix: np.ndarray, log_scale: np.ndarray) -> tuple[np.ndarray, np
     return matrix * np.exp2(-e)[:, None, None], log_scale + e * np.log(2.0)
 
 
-def _flip(matrix: np.ndarray) -> np.ndarray:
-    """The reverse-direction matrix of a reciprocal block: [[D^T, B^T], [C^T, A^T]].
+def normalise_fl(matrix: np.ndarray, log_scale: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`normalise` for a frequency-last (m, m, N) stack."""
+    _, e = np.frexp(np.max(np.abs(matrix), axis=(0, 1)))
+    return matrix * np.exp2(-e), log_scale + e * np.log(2.0)
+
+
+def _flip_fl(fl: np.ndarray) -> np.ndarray:
+    """The reverse-direction matrix of a reciprocal block: [[D^T, B^T], [C^T, A^T]]
+    (frequency-last layout).
 
     Reciprocity of a multiport chain matrix means A B^T = B A^T, C D^T = D C^T and
     A D^T - B C^T = I, so T^-1 = [[D^T, -B^T], [-C^T, A^T]]; turning the block around
-    (swap ends, reverse the current directions) gives the matrix above.
+    (swap ends, reverse the current directions: P T^-1 P, P = diag(I, -I)) gives the
+    matrix above. Since flip(T1 T2) = flip(T2) flip(T1), the reverse of a cascade of
+    reciprocal blocks is the flip of the forward product: no second chain is needed.
     """
-    n = matrix.shape[-1] // 2
-    a, b = matrix[:, :n, :n], matrix[:, :n, n:]
-    c, d = matrix[:, n:, :n], matrix[:, n:, n:]
-    t = lambda x: np.swapaxes(x, -1, -2)  # noqa: E731
-    return np.concatenate(
-        [np.concatenate([t(d), t(b)], axis=2), np.concatenate([t(c), t(a)], axis=2)], axis=1
-    )
+    n = fl.shape[0] // 2
+    out = np.empty_like(fl)
+    out[:n, :n] = np.swapaxes(fl[n:, n:], 0, 1)
+    out[:n, n:] = np.swapaxes(fl[:n, n:], 0, 1)
+    out[n:, :n] = np.swapaxes(fl[n:, :n], 0, 1)
+    out[n:, n:] = np.swapaxes(fl[:n, :n], 0, 1)
+    return out
 
 
-@dataclass(frozen=True)
+RENORMALISE_EVERY = 16
+"""Products between renormalisations: block matrices have entries below 1, so a product of
+16 of them has entries below (2n)^15 -- far from overflow for any practical n."""
+
+
+def chain_product(fls: list[np.ndarray], scales: list[np.ndarray]) -> tuple:
+    """Product fls[0] fls[1] ... of frequency-last stacks and the sum of their log scales,
+    renormalised by exact powers of two every RENORMALISE_EVERY products."""
+    acc = fls[0]
+    s = np.array(scales[0], dtype=float)
+    if len(fls) > 1:
+        bufs = (np.empty_like(acc), np.empty_like(acc))
+        tmp = np.empty(acc.shape[2:], dtype=acc.dtype)
+        for k in range(1, len(fls)):
+            out = bufs[k % 2]
+            matmul_fl(acc, fls[k], out, tmp)
+            acc = out
+            s += scales[k]
+            if k % RENORMALISE_EVERY == 0:
+                _, e = np.frexp(np.max(np.abs(acc), axis=(0, 1)))
+                acc *= np.exp2(-e)
+                s += e * np.log(2.0)
+    return normalise_fl(acc, s)
+
+
 class ScaledABCD:
-    """T = exp(log_scale) * matrix over frequency, plus the network seen from its far end.
+    """T = exp(log_scale) * matrix over frequency, and the network seen from its far end.
 
-    ``matrix`` (N, 2n, 2n) complex, ``log_scale`` (N,) float (may be +inf), ``reverse``
-    a ScaledABCD of the turned-around network (its own ``reverse`` is None) or None when
-    unknown. Use :meth:`from_abcd`, :meth:`from_ratio` or :meth:`reciprocal` to build one;
-    ``a @ b`` cascades (a's far end to b's near end).
+    ``matrix`` (N, 2n, 2n) complex (stored frequency-last as ``fl``, (2n, 2n, N), the
+    layout the cascade multiplies), ``log_scale`` (N,) float (may be +inf). The reverse
+    (turned-around) network is either given explicitly (``reverse``, for blocks that may
+    not be reciprocal, such as measured files) or, for reciprocal blocks
+    (``is_reciprocal``), the flip of the forward matrix. Build one with
+    :meth:`reciprocal`, :meth:`from_ratio` or :meth:`from_abcd`; ``a @ b`` cascades
+    (a's far end to b's near end).
     """
 
-    matrix: np.ndarray
-    log_scale: np.ndarray
-    reverse: ScaledABCD | None = field(default=None, repr=False)
+    __slots__ = ("fl", "log_scale", "_reverse", "is_reciprocal")
+
+    def __init__(
+        self,
+        matrix: np.ndarray,
+        log_scale: np.ndarray,
+        reverse: ScaledABCD | None = None,
+        reciprocal: bool = False,
+        *,
+        frequency_last: bool = False,
+    ) -> None:
+        arr = np.asarray(matrix, complex)
+        self.fl = arr if frequency_last else np.ascontiguousarray(np.moveaxis(arr, 0, -1))
+        self.log_scale = np.asarray(log_scale, float)
+        self._reverse = reverse
+        self.is_reciprocal = bool(reciprocal) and reverse is None
+
+    @property
+    def matrix(self) -> np.ndarray:
+        """(N, 2n, 2n) view of the scaled matrix."""
+        return np.moveaxis(self.fl, -1, 0)
 
     @property
     def n(self) -> int:
         """Number of conductors (the matrix is 2n x 2n)."""
-        return self.matrix.shape[-1] // 2
+        return self.fl.shape[0] // 2
 
     @property
     def npoints(self) -> int:
-        return self.matrix.shape[0]
+        return self.fl.shape[-1]
+
+    @property
+    def reverse(self) -> ScaledABCD:
+        """The turned-around network (far end first), same representation."""
+        if self._reverse is not None:
+            return self._reverse
+        if self.is_reciprocal:
+            return ScaledABCD(_flip_fl(self.fl), self.log_scale, frequency_last=True)
+        return ScaledABCD.from_abcd(self.abcd()).reverse
+
+    @property
+    def has_reverse(self) -> bool:
+        """Whether the reverse is exact (given, or the flip of a reciprocal block)."""
+        return self._reverse is not None or self.is_reciprocal
+
+    @classmethod
+    def reciprocal_fl(cls, fl: np.ndarray, log_scale: np.ndarray) -> ScaledABCD:
+        m, s = normalise_fl(np.asarray(fl, complex), np.asarray(log_scale, float))
+        return cls(m, s, reciprocal=True, frequency_last=True)
 
     @classmethod
     def reciprocal(cls, matrix: np.ndarray, log_scale: np.ndarray) -> ScaledABCD:
-        """A reciprocal block: normalised forward matrix and its flipped reverse."""
+        """A reciprocal block from its (N, 2n, 2n) forward matrix, normalised."""
         m, s = normalise(np.asarray(matrix, complex), np.asarray(log_scale, float))
-        return cls(m, s, cls(_flip(m), s))
+        return cls(m, s, reciprocal=True)
 
     @classmethod
     def from_ratio(cls, numerator: np.ndarray, denominator: np.ndarray) -> ScaledABCD:
         """T = numerator / denominator (scalar per frequency) of a reciprocal block, finite
         where the denominator is 0 (T infinite: log_scale = +inf, the matrix its limit
-        direction). Used for a series capacitor at DC, a shunt stub at its notch, and the
-        S -> ABCD conversion of a file with S21 = 0."""
+        direction). Used for a series capacitor at DC and a shunt stub at its notch."""
         numerator = np.asarray(numerator, complex)
         d = np.asarray(denominator, complex)
         mag = np.abs(d)
@@ -161,29 +244,32 @@ class ScaledABCD:
 
     def abcd(self) -> np.ndarray:
         """The plain ABCD matrix (N, 2n, 2n); overflows to inf for huge log scales."""
+        m = self.matrix
         with np.errstate(over="ignore", invalid="ignore"):
             big = np.exp(self.log_scale)[:, None, None]
-            return np.where(self.matrix == 0, 0.0, self.matrix * big)
-
-    def flipped(self) -> ScaledABCD:
-        """The same network turned around (far end first)."""
-        if self.reverse is None:
-            raise ValueError("this ScaledABCD carries no reverse matrix")
-        return ScaledABCD(self.reverse.matrix, self.reverse.log_scale, self.without_reverse())
-
-    def without_reverse(self) -> ScaledABCD:
-        return ScaledABCD(self.matrix, self.log_scale)
+            return np.where(m == 0, 0.0, m * big)
 
     def __matmul__(self, other: ScaledABCD) -> ScaledABCD:
-        m, s = normalise(matmul(self.matrix, other.matrix), self.log_scale + other.log_scale)
-        rev = None
-        if self.reverse is not None and other.reverse is not None:
-            rm, rs = normalise(
-                matmul(other.reverse.matrix, self.reverse.matrix),
-                self.reverse.log_scale + other.reverse.log_scale,
-            )
-            rev = ScaledABCD(rm, rs)
-        return ScaledABCD(m, s, rev)
+        return cascade_items([self, other])
+
+    def __repr__(self) -> str:
+        kind = "reciprocal" if self.is_reciprocal else "explicit reverse" if self._reverse else ""
+        return f"ScaledABCD(n={self.n}, points={self.npoints}{', ' + kind if kind else ''})"
+
+
+def cascade_items(items: list[ScaledABCD]) -> ScaledABCD:
+    """Cascade scaled chain matrices, first item at the near end (no input checks).
+
+    When every item is reciprocal only the forward product is formed and the result is
+    reciprocal (its reverse the flip); otherwise the reverse product
+    (last item's reverse first) is formed too.
+    """
+    fm, s = chain_product([it.fl for it in items], [it.log_scale for it in items])
+    if all(it.is_reciprocal for it in items):
+        return ScaledABCD(fm, s, reciprocal=True, frequency_last=True)
+    revs = [it.reverse for it in reversed(items)]
+    rm, rs = chain_product([r.fl for r in revs], [r.log_scale for r in revs])
+    return ScaledABCD(fm, s, ScaledABCD(rm, rs, frequency_last=True), frequency_last=True)
 
 
 def block_diagonal_legs(matrix: np.ndarray, n: int) -> np.ndarray:
@@ -215,23 +301,24 @@ def _ref_array(z_ref, npoints: int, nports: int) -> np.ndarray:
     return z
 
 
-def _inv_small(g: np.ndarray) -> np.ndarray:
-    """Inverse of an (N, n, n) stack; written out for n <= 2 (fast, exact adjugate form)."""
-    n = g.shape[-1]
+def _inv_fl(g: np.ndarray) -> np.ndarray:
+    """Inverse of a frequency-last (n, n, N) stack; written out for n <= 2."""
+    n = g.shape[0]
     if n == 1:
         return 1.0 / g
     if n == 2:
-        a, b, c, d = g[:, 0, 0], g[:, 0, 1], g[:, 1, 0], g[:, 1, 1]
-        det = a * d - b * c
+        a, b, c, d = g[0, 0], g[0, 1], g[1, 0], g[1, 1]
+        rdet = 1.0 / (a * d - b * c)
         out = np.empty_like(g)
-        out[:, 0, 0], out[:, 0, 1] = d / det, -b / det
-        out[:, 1, 0], out[:, 1, 1] = -c / det, a / det
+        out[0, 0], out[0, 1] = d * rdet, -b * rdet
+        out[1, 0], out[1, 1] = -c * rdet, a * rdet
         return out
-    return np.linalg.inv(g)
+    return np.moveaxis(np.linalg.inv(np.moveaxis(g, -1, 0)), 0, -1)
 
 
 def _forward_waves(sc: ScaledABCD, r1: np.ndarray, r2: np.ndarray) -> tuple:
-    """Input reflection block and scaled transmission block of the forward chain.
+    """Input reflection block and scaled transmission block of the forward chain,
+    frequency-last (n, n, N); ``r1``, ``r2`` are sqrt(z_ref) of the near/far ports (n, N).
 
     With the far end terminated in its references and the near end driven, the chain
     relations give a2 = 0, b2 = (2 G^-1) a1 exp(-log_scale) and b1 = (2 R1^-1 P G^-1 - I) a1,
@@ -239,16 +326,20 @@ def _forward_waves(sc: ScaledABCD, r1: np.ndarray, r2: np.ndarray) -> tuple:
     (only the n x n matrix G is inverted). Returns (S11, S21 / exp(-log_scale)).
     """
     n = sc.n
-    m = sc.matrix
-    a, b, c, d = m[:, :n, :n], m[:, :n, n:], m[:, n:, :n], m[:, n:, n:]
-    p = a * r2[:, None, :] + b / r2[:, None, :]
-    q = c * r2[:, None, :] + d / r2[:, None, :]
-    g = p / r1[:, :, None] + q * r1[:, :, None]
-    ginv = _inv_small(g)
+    m = sc.fl
+    a, b, c, d = m[:n, :n], m[:n, n:], m[n:, :n], m[n:, n:]
+    p = (a * r2[None] + b / r2[None]) / r1[:, None]
+    q = (c * r2[None] + d / r2[None]) * r1[:, None]
+    ginv = _inv_fl(p + q)
     x21 = 2.0 * ginv
-    x11 = 2.0 * np.matmul(p / r1[:, :, None], ginv) if n > 1 else 2.0 * (p / r1[:, :, None]) * ginv
-    x11 = x11 - np.eye(n)
+    x11 = 2.0 * (p * ginv if n == 1 else matmul_fl(p, ginv))
+    idx = np.arange(n)
+    x11[idx, idx] -= 1.0
     return x11, x21
+
+
+def _to_frequency_first(x: np.ndarray) -> np.ndarray:
+    return np.moveaxis(x, -1, 0)
 
 
 def abcd_to_s(abcd: np.ndarray | ScaledABCD, z_ref) -> np.ndarray:
@@ -262,19 +353,18 @@ def abcd_to_s(abcd: np.ndarray | ScaledABCD, z_ref) -> np.ndarray:
     """
     sc = abcd if isinstance(abcd, ScaledABCD) else ScaledABCD.from_abcd(abcd)
     n, npts = sc.n, sc.npoints
-    z = _ref_array(z_ref, npts, 2 * n)
-    r = np.sqrt(z)
-    r1, r2 = r[:, :n], r[:, n:]
-    rev = sc.reverse if sc.reverse is not None else ScaledABCD.from_abcd(sc.abcd()).reverse
+    r = np.sqrt(_ref_array(z_ref, npts, 2 * n)).T
+    r1, r2 = r[:n], r[n:]
+    rev = sc.reverse
     s11, x21 = _forward_waves(sc, r1, r2)
     s22, x12 = _forward_waves(rev, r2, r1)
-    out = np.empty((npts, 2 * n, 2 * n), dtype=complex)
-    out[:, :n, :n] = s11
-    out[:, n:, n:] = s22
+    out = np.empty((2 * n, 2 * n, npts), dtype=complex)
+    out[:n, :n] = s11
+    out[n:, n:] = s22
     with np.errstate(over="ignore", under="ignore"):
-        out[:, n:, :n] = np.exp(-sc.log_scale)[:, None, None] * x21
-        out[:, :n, n:] = np.exp(-rev.log_scale)[:, None, None] * x12
-    return out
+        out[n:, :n] = np.exp(-sc.log_scale) * x21
+        out[:n, n:] = np.exp(-rev.log_scale) * x12
+    return np.ascontiguousarray(_to_frequency_first(out))
 
 
 def transmission_db(abcd: ScaledABCD, z_ref) -> np.ndarray:
@@ -282,10 +372,11 @@ def transmission_db(abcd: ScaledABCD, z_ref) -> np.ndarray:
     S21 underflows (alpha l > ~700 Np) still reports its loss in dB (-inf only where the
     transmission is exactly zero, e.g. through a series capacitor at f = 0)."""
     n, npts = abcd.n, abcd.npoints
-    r = np.sqrt(_ref_array(z_ref, npts, 2 * n))
-    _, x21 = _forward_waves(abcd, r[:, :n], r[:, n:])
+    r = np.sqrt(_ref_array(z_ref, npts, 2 * n)).T
+    _, x21 = _forward_waves(abcd, r[:n], r[n:])
     with np.errstate(divide="ignore"):
-        return 20.0 * (np.log10(np.abs(x21)) - abcd.log_scale[:, None, None] / np.log(10.0))
+        db = 20.0 * (np.log10(np.abs(x21)) - abcd.log_scale / np.log(10.0))
+    return _to_frequency_first(db)
 
 
 def _adjugate(m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -362,4 +453,4 @@ def s_to_scaled_abcd(s: np.ndarray, z_ref) -> ScaledABCD:
     fwd = _s_to_chain(s, r[:, :n], r[:, n:])
     perm = np.r_[np.arange(n, 2 * n), np.arange(n)]
     rev = _s_to_chain(s[:, perm][:, :, perm], r[:, n:], r[:, :n])
-    return ScaledABCD(fwd.matrix, fwd.log_scale, rev)
+    return ScaledABCD(fwd.fl, fwd.log_scale, rev, frequency_last=True)

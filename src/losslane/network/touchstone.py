@@ -126,7 +126,6 @@ def touchstone_text(
             phase = np.where(mag > 0, s / np.where(mag > 0, mag, 1.0), 1.0)
             net.s = np.where(tiny, DB_FLOOR * phase, s)
     net.comments = "\n".join(header_lines(network, scenario, order, comments))
-    net.port_names = None
     return net.write_touchstone(
         return_string=True, form=form, version=ver, skrf_comment=False, write_noise=False
     )
