@@ -110,6 +110,32 @@ def test_series_capacitor_is_an_open_at_dc():
         assert s[1, n, 0] == pytest.approx(2 * Z0 / (2 * Z0 + z), rel=1e-12)
 
 
+def test_two_dc_blocks_in_series_stay_an_open():
+    # circuit theory: two series capacitors are still an open at DC; the limit matrices
+    # of the two must not cancel each other (S21 = 0 exactly, S11 = S22 = 1, finite)
+    from losslane.network import Via, build_network
+
+    f = np.array([0.0, 1e6, 1e9])
+    for n in (1, 2):
+        blocks = [
+            SeriesCapacitor(100e-9, n=n),
+            SeriesCapacitor(220e-9, esl=0.3e-9, n=n),
+            Via(1e-3, 0.5e-3, 45.0, 3.7, n=n),
+            SeriesCapacitor(10e-9, n=n),
+        ]
+        s = build_network(blocks, f, Z0).s
+        assert np.all(np.isfinite(s))
+        np.testing.assert_array_equal(s[0, n:, :n], 0.0)
+        np.testing.assert_array_equal(s[0, :n, n:], 0.0)
+        np.testing.assert_allclose(s[0, :n, :n], np.eye(n), atol=1e-15)
+        np.testing.assert_allclose(s[0, n:, n:], np.eye(n), atol=1e-15)
+        # away from DC: scikit-rf's cascade of the same blocks (independent connection)
+        import skrf
+
+        ref = skrf.network.cascade_list([block_network(b, f[1:], Z0) for b in blocks])
+        assert np.max(np.abs(s[1:] - ref.s)) < 1e-12
+
+
 def test_lumped_pair_is_one_part_per_leg():
     # n = 2: the same 2-port in each leg, legs uncoupled
     f = np.linspace(0, 20e9, 51)

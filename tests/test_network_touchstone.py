@@ -180,6 +180,24 @@ def test_non_reciprocal_file_cascades_like_scikit_rf(tmp_path):
     np.testing.assert_array_equal(ours.s[:, 0, 1], 0.0)
 
 
+@pytest.mark.parametrize("n", [1, 2])
+def test_dc_blocked_files_in_series(tmp_path, n):
+    # two DC-blocked files (S21 = 0 at f = 0) in a row with a capacitor: still an open at
+    # DC, and equal to the cascade of the original blocks elsewhere
+    from losslane.network import SeriesCapacitor, Via
+
+    f = np.linspace(0, 20e9, 41)
+    parts = [SeriesCapacitor(100e-9, esl=0.4e-9, n=n), Via(1.5e-3, 0.3e-3, 45.0, 3.7, n=n)]
+    path = write_touchstone(build_network(parts, f, Z0), tmp_path / f"dcb.s{2 * n}p")
+    blk = TouchstoneBlock(path, n=n)
+    got = build_network([blk, SeriesCapacitor(10e-9, n=n), blk], f, Z0).s
+    ref = build_network([*parts, SeriesCapacitor(10e-9, n=n), *parts], f, Z0).s
+    assert np.all(np.isfinite(got))
+    assert np.max(np.abs(got[0, n:, :n])) < 1e-90  # exactly 0 for n = 1; ~1e-100 for n = 2
+    np.testing.assert_allclose(got[0, :n, :n], np.eye(n), atol=1e-15)
+    assert np.max(np.abs(got[1:] - ref[1:])) < 1e-12
+
+
 def test_sweep_beyond_band_is_an_error(tmp_path):
     f = np.linspace(10e6, 20e9, 51)
     path = write_touchstone(build_network(single_channel(), f, Z0), tmp_path / "m.s2p")

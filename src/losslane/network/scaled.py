@@ -117,9 +117,10 @@ def _flip_fl(fl: np.ndarray) -> np.ndarray:
     return out
 
 
-RENORMALISE_EVERY = 16
+RENORMALISE_EVERY = 8
 """Products between renormalisations: block matrices have entries below 1, so a product of
-16 of them has entries below (2n)^15 -- far from overflow for any practical n."""
+8 of them has entries below (2n)^7 (no overflow); a run of 8 nearly singular blocks (DC
+blocks at f = 0, entries down to LIMIT_EPS) stays above ~1e-135 (no underflow)."""
 
 
 def chain_product(fls: list[np.ndarray], scales: list[np.ndarray]) -> tuple:
@@ -140,6 +141,26 @@ def chain_product(fls: list[np.ndarray], scales: list[np.ndarray]) -> tuple:
                 acc *= np.exp2(-e)
                 s += e * np.log(2.0)
     return normalise_fl(acc, s)
+
+
+LIMIT_EPS = 2.0**-64
+"""Regularisation of an infinite chain matrix's limit direction (5.4e-20 of its peak):
+small enough to move S11 of a DC block by ~1e-17 (below double rounding at S ~ 1), large
+enough that a run of such blocks between two renormalisations cannot underflow."""
+
+
+def _open_limit(matrix: np.ndarray, infinite: np.ndarray) -> np.ndarray:
+    """Where the represented T is infinite (log_scale = +inf), add LIMIT_EPS * peak * I to
+    its limit direction. The limit of a DC block is nilpotent ([[0, 1], [0, 0]]), and the
+    product of two such is 0, which would lose two capacitors in series at f = 0; the
+    tiny diagonal keeps every product non-degenerate and changes no result beyond
+    rounding (S21 stays exactly exp(-inf) * x = 0; S11 moves by ~1e-17)."""
+    if not np.any(infinite):
+        return matrix
+    m = matrix.shape[-1]
+    peak = np.max(np.abs(matrix), axis=(-2, -1))
+    bump = np.where(infinite, LIMIT_EPS * np.where(peak > 0, peak, 1.0), 0.0)
+    return matrix + bump[:, None, None] * np.eye(m)
 
 
 class ScaledABCD:
@@ -221,7 +242,7 @@ class ScaledABCD:
         phase = np.where(mag > 0, np.conj(d) / np.where(mag > 0, mag, 1.0), 1.0)
         with np.errstate(divide="ignore"):
             s = -np.log(mag)
-        return cls.reciprocal(numerator * phase[:, None, None], s)
+        return cls.reciprocal(_open_limit(numerator, mag == 0) * phase[:, None, None], s)
 
     @classmethod
     def from_abcd(cls, abcd: np.ndarray) -> ScaledABCD:
@@ -439,7 +460,7 @@ def _s_to_chain(s: np.ndarray, r1: np.ndarray, r2: np.ndarray) -> ScaledABCD:
     mag = np.abs(det)
     phase = np.where(mag > 0, np.conj(det) / np.where(mag > 0, mag, 1.0), 1.0)
     with np.errstate(divide="ignore"):
-        m, ls = normalise(num * phase[:, None, None], -np.log(mag))
+        m, ls = normalise(_open_limit(num, mag == 0) * phase[:, None, None], -np.log(mag))
     return ScaledABCD(m, ls)
 
 

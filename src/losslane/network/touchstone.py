@@ -123,8 +123,7 @@ def touchstone_text(
         mag = np.abs(s)
         tiny = mag < DB_FLOOR
         if np.any(tiny):
-            phase = np.where(mag > 0, s / np.where(mag > 0, mag, 1.0), 1.0)
-            net.s = np.where(tiny, DB_FLOOR * phase, s)
+            net.s = np.where(tiny, DB_FLOOR * np.exp(1j * np.angle(s)), s)
     net.comments = "\n".join(header_lines(network, scenario, order, comments))
     return net.write_touchstone(
         return_string=True, form=form, version=ver, skrf_comment=False, write_noise=False
