@@ -237,3 +237,13 @@ def test_dc_point_is_extrapolated_with_a_warning(tmp_path):
     assert np.all(np.abs(got.s[0] - exact.s[0]) < np.abs(exact.s[1] - exact.s[0]))
     np.testing.assert_array_equal(got.s[0].imag, 0.0)
     np.testing.assert_allclose(got.s[1:], exact.s[1:], atol=1e-13)
+
+
+def test_non_passive_file_is_flagged(tmp_path):
+    # IEEE 370-2020 passivity: singular values of S at most 1
+    f = np.linspace(1e9, 2e9, 3)
+    s = np.zeros((3, 2, 2), complex)
+    s[:, 1, 0] = s[:, 0, 1] = 1.2
+    path = write_touchstone(to_network(s, f, Z0, "gain"), tmp_path / "gain.s2p")
+    with pytest.warns(LossLaneWarning, match="not passive"):
+        TouchstoneBlock(path)

@@ -518,6 +518,20 @@ class TouchstoneBlock(Block):
                 "at least 2 are needed"
             )
         self.network = net
+        self._check_passive()
+
+    def _check_passive(self) -> None:
+        """Warn when the file itself is not passive (IEEE 370-2020: the largest singular
+        value of S must not exceed 1); the cascade would carry the gain along."""
+        sv = np.linalg.svd(np.asarray(self.network.s), compute_uv=False)[:, 0]
+        k = int(np.argmax(sv))
+        if sv[k] > 1 + 1e-6:
+            from losslane.units import format_frequency
+
+            warn(
+                f"touchstone file '{self.path}' is not passive: the largest singular value "
+                f"of S is {sv[k]:.6g} (> 1) at {format_frequency(float(self.network.f[k]))}"
+            )
 
     @property
     def band(self) -> tuple[float, float]:
