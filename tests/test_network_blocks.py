@@ -105,6 +105,8 @@ def test_series_capacitor_is_an_open_at_dc():
         np.testing.assert_array_equal(s[0, :n, n:], 0.0)
         np.testing.assert_allclose(s[0, :n, :n], np.eye(n), atol=1e-15)
         np.testing.assert_allclose(s[0, n:, n:], np.eye(n), atol=1e-15)
+        t = SeriesCapacitor(100e-9, esl=0.5e-9, esr=0.02, n=n).abcd(f)
+        assert t[0, 0, n] == complex(0.02, -np.inf) and t[0, 0, 0] == 1 and t[0, n, 0] == 0
         # at 1 kHz 100 nF is 1.6 kohm: S21 = 2 Z0 / (2 Z0 + Z)
         z = 0.02 + 1j * 2 * np.pi * 1e3 * 0.5e-9 + 1 / (1j * 2 * np.pi * 1e3 * 100e-9)
         assert s[1, n, 0] == pytest.approx(2 * Z0 / (2 * Z0 + z), rel=1e-12)

@@ -341,6 +341,18 @@ class SeriesCapacitor(_Lumped):
         self.esr = _nonneg(owner, "esr", esr, "ohm")
         self.n = _conductors(owner, n)
 
+    def abcd(self, f: np.ndarray) -> np.ndarray:
+        """The plain matrix [[1, Z], [0, 1]] per leg; B = esr - j inf at f = 0."""
+        f = check_sweep(f)
+        w = 2 * np.pi * f
+        with np.errstate(divide="ignore"):
+            x = np.where(w > 0, w * self.esl - 1.0 / (np.where(w > 0, w, 1.0) * self.c), -np.inf)
+        m = np.zeros(f.shape + (2, 2), dtype=complex)
+        m[:, 0, 0] = m[:, 1, 1] = 1.0
+        m[:, 0, 1].real = self.esr
+        m[:, 0, 1].imag = x
+        return block_diagonal_legs(m, self.n)
+
     def _leg(self, f: np.ndarray) -> ScaledABCD:
         w = 2 * np.pi * f
         yc = 1j * w * self.c

@@ -298,12 +298,11 @@ def block_diagonal_legs(matrix: np.ndarray, n: int) -> np.ndarray:
     identical, uncoupled legs (a lumped part in each leg of a pair)."""
     if n == 1:
         return matrix
-    eye = np.eye(n)
+    k = np.arange(n)
     out = np.zeros((matrix.shape[0], 2 * n, 2 * n), dtype=complex)
-    out[:, :n, :n] = matrix[:, 0, 0, None, None] * eye
-    out[:, :n, n:] = matrix[:, 0, 1, None, None] * eye
-    out[:, n:, :n] = matrix[:, 1, 0, None, None] * eye
-    out[:, n:, n:] = matrix[:, 1, 1, None, None] * eye
+    for i in (0, 1):
+        for j in (0, 1):
+            out[:, i * n + k, j * n + k] = matrix[:, i, j, None]
     return out
 
 
