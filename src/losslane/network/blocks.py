@@ -498,7 +498,9 @@ class TouchstoneBlock(Block):
     ``extrapolate_to_dc`` from the first two points (its imaginary part, non-physical at
     DC, is dropped) and a LossLaneWarning says so; sweep points between 0 and the file's
     first frequency are then interpolated towards that DC point. The chain matrix uses the
-    file's own reference impedances.
+    file's own reference impedances and carries the file's reverse direction exactly (no
+    reciprocity assumed). A file that is not passive (IEEE 370-2020: a singular value of
+    S above 1) is accepted with a LossLaneWarning.
     """
 
     kind = "touchstone"
