@@ -251,3 +251,38 @@ def materials(
     from losslane.materials.catalog import catalog
 
     return catalog(library_files, scenario_files)
+
+
+def demo_scenario_path() -> Path:
+    """The bundled demo scenario file."""
+    from importlib import resources
+
+    return Path(str(resources.files("losslane").joinpath("data", "demo", "sensor-lane.toml")))
+
+
+def build(
+    scenario: str | Path,
+    out: str | Path | None = None,
+    version: int = 1,
+    form: str = "ri",
+    plots: bool = True,
+):
+    """Build a scenario file: returns (ChannelResult, files, summary text, summary dict).
+
+    The result of ``losslane build SCENARIO`` (``--json`` prints the dict).
+    """
+    from losslane.channel import build_channel
+    from losslane.report.build_outputs import (
+        prepare_out_dir,
+        slug,
+        summary_json,
+        summary_text,
+        write_build,
+    )
+    from losslane.scenario import load_scenario
+
+    sc = load_scenario(scenario)
+    out_dir = prepare_out_dir(out if out is not None else slug(sc.name))
+    result = build_channel(sc)
+    files = write_build(result, out_dir, version=version, form=form, plots=plots)
+    return result, files, summary_text(result, files), summary_json(result, files)

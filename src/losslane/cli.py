@@ -734,6 +734,69 @@ def materials_command(
         click.echo(json.dumps(out) if as_json else materials_table(out))
 
 
+@cli.command("build")
+@click.argument("scenario", type=click.Path(dir_okay=False))
+@click.option("--out", "out", metavar="DIR", help="output directory (default: ./<scenario name>)")
+@click.option(
+    "--touchstone-version",
+    type=click.Choice(["1", "2"]),
+    default="1",
+    show_default=True,
+    help="Touchstone file format version",
+)
+@click.option(
+    "--form",
+    type=click.Choice(["ri", "ma", "db"]),
+    default="ri",
+    show_default=True,
+    help="number form in the Touchstone file: real/imag, magnitude/angle, dB/angle",
+)
+@click.option("--no-plots", is_flag=True, help="skip the PNG plots")
+@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+def build_command(
+    scenario: str,
+    out: str | None,
+    touchstone_version: str,
+    form: str,
+    no_plots: bool,
+    as_json: bool,
+) -> None:
+    """Build a channel from a scenario file: Touchstone file, plots and a summary."""
+    from losslane.api import build
+
+    with _warnings_to_stderr():
+        result, files, text, data = build(
+            scenario, out=out, version=int(touchstone_version), form=form, plots=not no_plots
+        )
+        click.echo(__import__("json").dumps(data) if as_json else text)
+
+
+@cli.command("demo")
+@click.option(
+    "--out",
+    "out",
+    default="losslane-demo",
+    show_default=True,
+    metavar="DIR",
+    help="output directory",
+)
+@click.option("--no-plots", is_flag=True, help="skip the PNG plots")
+@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+def demo_command(out: str, no_plots: bool, as_json: bool) -> None:
+    """Build the bundled example channel end to end (a sensor-to-processor lane over two
+    boards and a mezzanine connector)."""
+    from losslane.api import build, demo_scenario_path
+
+    with _warnings_to_stderr():
+        path = demo_scenario_path()
+        result, files, text, data = build(path, out=out, plots=not no_plots)
+        if as_json:
+            click.echo(__import__("json").dumps(data))
+        else:
+            click.echo(f"demo scenario: {path}")
+            click.echo(text)
+
+
 def main(argv: list[str] | None = None) -> int:
     """Console entry point: bad input is one line on stderr and exit code 2."""
     try:

@@ -36,7 +36,7 @@ def _figure():
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    fig, ax = plt.subplots(figsize=(9, 5.2), dpi=110)
+    fig, ax = plt.subplots(figsize=(10.5, 5.2), dpi=110)
     ax.grid(True, which="both", alpha=0.3)
     return plt, fig, ax
 
@@ -88,7 +88,10 @@ def db_plot(
     ax.set_xlabel("frequency (GHz)")
     ax.set_ylabel(ylabel)
     ax.set_title(title, fontsize=11)
-    ax.legend(fontsize=8, loc="best", framealpha=0.85)
+    if len(curves) > 3:
+        ax.legend(fontsize=8, loc="upper left", bbox_to_anchor=(1.01, 1.0), framealpha=0.85)
+    else:
+        ax.legend(fontsize=8, loc="best", framealpha=0.85)
     fig.text(
         0.995,
         0.005,

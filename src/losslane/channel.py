@@ -1,0 +1,107 @@
+"""A scenario's channel: segments -> network blocks -> the cascaded result.
+
+This is the layer between the network blocks and the outputs: it turns each scenario
+segment into its block, cascades them on the sweep, and keeps what the outputs and the
+loss budget need besides the final S-parameters -- each segment's own insertion loss and
+the cumulative loss after each segment.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from losslane.errors import LossLaneError
+from losslane.network.blocks import (
+    Block,
+    LineSegment,
+    SeriesCapacitor,
+    SeriesRL,
+    ShuntCapacitor,
+    TouchstoneBlock,
+    Via,
+)
+from losslane.network.cascade import build_network
+from losslane.network.scaled import ScaledABCD, abcd_to_s, transmission_db
+from losslane.scenario import Scenario, Segment
+
+
+def make_block(seg: Segment, n: int, default_order: str) -> Block:
+    """The network block of one scenario segment, for an n-conductor channel."""
+    v = seg.values
+    if seg.type == "line":
+        return LineSegment(seg.section, v["length"], name=seg.name)
+    if seg.type == "via":
+        return Via(v["barrel"], v["stub"], v["impedance"], seg.dielectric, n=n, name=seg.name)
+    if seg.type == "capacitor":
+        return SeriesCapacitor(v["value"], v["esl"], v["esr"], n=n, name=seg.name)
+    if seg.type == "series":
+        return SeriesRL(v["resistance"], v["inductance"], n=n, name=seg.name)
+    if seg.type == "shunt":
+        return ShuntCapacitor(v["capacitance"], n=n, name=seg.name)
+    if seg.type == "touchstone":
+        try:
+            return TouchstoneBlock(seg.path, name=seg.name, n=n, order=seg.order or default_order)
+        except LossLaneError as exc:
+            raise LossLaneError(f"{seg.where}: {exc}") from None
+    raise AssertionError(seg.type)
+
+
+@dataclass
+class ChannelResult:
+    """The built channel.
+
+    ``network``: the S-parameters (skrf.Network, ports in the scenario's order);
+    ``segment_loss_db``: each segment alone between matched references, insertion loss in
+    dB (positive), (K, N); ``cumulative_loss_db``: loss from the input through segment k,
+    (K, N). For a differential channel both are the differential mode (issue: pairs).
+    """
+
+    scenario: Scenario
+    f: np.ndarray
+    blocks: list[Block]
+    network: object
+    segment_loss_db: np.ndarray
+    cumulative_loss_db: np.ndarray
+    warnings: list[str] = field(default_factory=list)
+
+    @property
+    def nports(self) -> int:
+        return int(self.network.nports)
+
+    @property
+    def insertion_loss_db(self) -> np.ndarray:
+        """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
+        return self.cumulative_loss_db[-1]
+
+
+def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:
+    """Insertion loss (positive dB) of the main mode between matched references: S21 of a
+    single-ended channel, the differential-mode Sdd21 of a pair."""
+    if chain.n == 1:
+        # in the log domain, so a channel whose S21 underflows still reports its dB
+        return -transmission_db(chain, z_ref)[:, 0, 0]
+    s = abcd_to_s(chain, z_ref)  # internal order: near ends 1..n, far ends n+1..2n
+    # Sdd21 = (S31 - S32 - S41 + S42) / 2 for ports (1, 2) near, (3, 4) far
+    sdd21 = 0.5 * (s[:, 2, 0] - s[:, 2, 1] - s[:, 3, 0] + s[:, 3, 1])
+    with np.errstate(divide="ignore"):
+        return -20.0 * np.log10(np.maximum(np.abs(sdd21), 1e-300))
+
+
+def build_channel(scenario: Scenario) -> ChannelResult:
+    """Cascade the scenario's channel on its sweep."""
+    f = scenario.frequencies()
+    n = scenario.conductors
+    order = scenario.ports.order
+    blocks = [make_block(seg, n, order) for seg in scenario.channel]
+    z_ref = scenario.ports.reference
+    items = [b.scaled_abcd(f) for b in blocks]
+    seg_loss = np.array([_loss_db(it, z_ref) for it in items])
+    cum = []
+    acc = None
+    for it in items:
+        acc = it if acc is None else acc @ it
+        cum.append(_loss_db(acc, z_ref))
+    net = build_network(items, f, z_ref=z_ref, name=scenario.name, order=order)
+    return ChannelResult(scenario, f, blocks, net, seg_loss, np.array(cum))

@@ -1,0 +1,237 @@
+"""The files of a build: Touchstone, plots, and the terminal/JSON summary.
+
+Everything is written into a staging directory beside the output directory and moved
+into place only when every file is complete, so a failed build leaves nothing behind.
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+import tempfile
+from collections.abc import Callable
+from pathlib import Path
+
+import numpy as np
+
+from losslane import __version__
+from losslane.channel import ChannelResult
+from losslane.errors import LossLaneError
+from losslane.report.channel_plots import Curve, Marker, db_plot, to_db
+from losslane.report.tables import CAUTION, table
+
+
+def slug(name: str) -> str:
+    s = re.sub(r"[^A-Za-z0-9]+", "-", name.strip().lower()).strip("-")
+    return s or "channel"
+
+
+def prepare_out_dir(out: Path | str) -> Path:
+    """Check the output directory is usable before any work is done."""
+    p = Path(out)
+    if p.exists() and not p.is_dir():
+        raise LossLaneError(
+            f"--out {str(p)!r} is an existing file, not a directory; choose a directory name"
+        )
+    parent = p.resolve().parent
+    if not parent.exists():
+        raise LossLaneError(
+            f"--out {str(p)!r}: the parent directory {str(parent)!r} does not exist"
+        )
+    return p
+
+
+def summary_frequencies(result: ChannelResult) -> list[float]:
+    """Where to quote IL/RL: the budget's Nyquist and check points, else four even points."""
+    sc = result.scenario
+    f = result.f
+    out: list[float] = []
+    if sc.budget is not None:
+        if sc.budget.nyquist is not None:
+            out.append(sc.budget.nyquist)
+        out += [c.at for c in sc.budget.checks]
+    if not out:
+        top = f[-1]
+        out = [top * k / 4 for k in (1, 2, 3, 4)]
+    return sorted({x for x in out if f[0] <= x <= f[-1]})
+
+
+def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
+    return float(np.interp(x, f, y))
+
+
+def reflection_db(result: ChannelResult) -> tuple[np.ndarray, np.ndarray]:
+    """Return loss (positive dB) at the input and the output of the main mode."""
+    s = result.network.s
+    if result.nports == 2:
+        return -to_db(s[:, 0, 0]), -to_db(s[:, 1, 1])
+    from losslane.network.ports import port_permutation
+
+    # back to internal order (near 1, 2; far 3, 4) for the mixed-mode formulas
+    perm = port_permutation(2, result.scenario.ports.order)
+    inv = np.argsort(perm)
+    si = s[:, inv][:, :, inv]
+    sdd11 = 0.5 * (si[:, 0, 0] - si[:, 0, 1] - si[:, 1, 0] + si[:, 1, 1])
+    sdd22 = 0.5 * (si[:, 2, 2] - si[:, 2, 3] - si[:, 3, 2] + si[:, 3, 3])
+    return -to_db(sdd11), -to_db(sdd22)
+
+
+def summary_rows(result: ChannelResult) -> list[dict]:
+    rl_in, rl_out = reflection_db(result)
+    rows = []
+    for x in summary_frequencies(result):
+        rows.append(
+            {
+                "at_hz": x,
+                "insertion_loss_db": _at(result.f, result.insertion_loss_db, x),
+                "return_loss_in_db": _at(result.f, rl_in, x),
+                "return_loss_out_db": _at(result.f, rl_out, x),
+            }
+        )
+    return rows
+
+
+def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
+    sc = result.scenario
+    f = result.f
+    mode = "" if result.nports == 2 else " (differential mode)"
+    markers = []
+    if sc.budget is not None:
+        if sc.budget.nyquist is not None:
+            markers.append(Marker(sc.budget.nyquist, "Nyquist", sc.budget.max_loss))
+        for c in sc.budget.checks:
+            markers.append(Marker(c.at, f"check {c.at / 1e9:g} GHz", c.max_loss))
+    import matplotlib
+
+    cmap = matplotlib.colormaps["viridis"]
+    k = len(result.blocks)
+    curves = []
+    for i, (blk, cum) in enumerate(zip(result.blocks, result.cumulative_loss_db, strict=True)):
+        if i == k - 1:
+            continue
+        curves.append(
+            Curve(
+                f"through {i + 1}: {blk.name}", -cum, "-", 0.9, cmap(0.15 + 0.7 * i / max(k - 1, 1))
+            )
+        )
+    curves.append(Curve("whole channel", -result.insertion_loss_db, "-", 2.2, "black"))
+    il = db_plot(
+        stage / f"{stem}-insertion-loss.png",
+        f,
+        curves,
+        f"{sc.name}: insertion loss{mode}, cumulative through each segment",
+        "insertion loss, 20 log10 |S21| (dB)",
+        markers,
+        floor_db=-200,
+    )
+    rl_in, rl_out = reflection_db(result)
+    rl_markers = [
+        Marker(c.at, f"check {c.at / 1e9:g} GHz", c.min_return_loss)
+        for c in (sc.budget.checks if sc.budget else ())
+    ]
+    rl = db_plot(
+        stage / f"{stem}-return-loss.png",
+        f,
+        [
+            Curve("input (port 1)" if not mode else "input", -rl_in, "-", 1.4),
+            Curve("output (port 2)" if not mode else "output", -rl_out, "--", 1.4),
+        ],
+        f"{sc.name}: return loss{mode}",
+        "20 log10 |S11|, |S22| (dB)",
+        rl_markers,
+        floor_db=-80,
+    )
+    return [il, rl]
+
+
+def write_build(
+    result: ChannelResult,
+    out_dir: Path | str,
+    version: int = 1,
+    form: str = "ri",
+    plots: bool = True,
+    extra: Callable[[ChannelResult, Path, str], list[Path]] | None = None,
+) -> list[Path]:
+    """Write the build's files into ``out_dir``; returns their final paths."""
+    from losslane.network.touchstone import write_touchstone
+
+    out = prepare_out_dir(out_dir)
+    stem = slug(result.scenario.name)
+    # staged beside the output directory, so nothing appears in it until all is written
+    stage = Path(tempfile.mkdtemp(prefix=".losslane-build-", dir=out.resolve().parent))
+    try:
+        files = [
+            write_touchstone(
+                result.network,
+                stage / f"{stem}.s{result.nports}p",
+                version=version,
+                form=form,
+                scenario=result.scenario.name,
+                order=result.scenario.ports.order,
+                comments=[
+                    f"built by losslane {__version__} from "
+                    f"{result.scenario.path.name if result.scenario.path else 'a scenario'}",
+                    "estimate: confirm against the fabricator's stackup and measured test coupons",
+                ],
+            )
+        ]
+        if plots:
+            files += plot_files(result, stage, stem)
+        if extra is not None:
+            files += extra(result, stage, stem)
+        final = []
+        out.mkdir(exist_ok=True)
+        for p in files:
+            target = out / p.name
+            p.replace(target)
+            final.append(target)
+        return final
+    finally:
+        shutil.rmtree(stage, ignore_errors=True)
+
+
+def summary_text(result: ChannelResult, files: list[Path]) -> str:
+    sc = result.scenario
+    mode = "" if result.nports == 2 else " (differential mode)"
+    rows = [
+        [
+            f"{r['at_hz'] / 1e9:.4g}",
+            f"{r['insertion_loss_db']:.2f}",
+            f"{r['return_loss_in_db']:.1f}",
+            f"{r['return_loss_out_db']:.1f}",
+        ]
+        for r in summary_rows(result)
+    ]
+    head = (
+        f"{sc.name}: {len(result.blocks)} segments, {result.nports}-port, "
+        f"{result.f.size} points {result.f[0] / 1e9:g}..{result.f[-1] / 1e9:g} GHz, "
+        f"reference {sc.ports.reference:g} ohm"
+        + (f", port order {sc.ports.order}" if result.nports == 4 else "")
+    )
+    out = [
+        head,
+        "",
+        f"insertion and return loss{mode}",
+        table(
+            ["frequency", "insertion loss", "return loss in", "return loss out"],
+            ["GHz", "dB", "dB", "dB"],
+            rows,
+        ),
+    ]
+    if files:
+        out += ["", "files written:"] + [f"  {p}" for p in files]
+    out += ["", CAUTION]
+    return "\n".join(out)
+
+
+def summary_json(result: ChannelResult, files: list[Path]) -> dict:
+    touch = next((str(p) for p in files if re.search(r"\.s\dp$", p.name)), None)
+    return {
+        "touchstone": touch,
+        "ports": result.nports,
+        "points": int(result.f.size),
+        "files": [str(p) for p in files],
+        "port_order": result.scenario.ports.order if result.nports == 4 else None,
+        "reference_ohm": result.scenario.ports.reference,
+        "summary": summary_rows(result),
+    }
