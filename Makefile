@@ -13,8 +13,7 @@ $(STAMP): pyproject.toml
 	touch $(STAMP)
 
 demo: $(STAMP)
-	$(VENV)/bin/losslane line microstrip --width 6mil --height 3.5mil --thickness 1.4mil \
-	  --dk 3.7 --df 0.009 --dk-at 10GHz --foil very-low-profile --at 1GHz,10GHz,28GHz
+	$(VENV)/bin/losslane demo
 
 test: $(STAMP)
 	$(PY) -m pytest -q
