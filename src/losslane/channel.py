@@ -23,6 +23,7 @@ from losslane.network.blocks import (
     Via,
 )
 from losslane.network.cascade import build_network
+from losslane.network.mixedmode import mixed_mode
 from losslane.network.scaled import ScaledABCD, abcd_to_s, transmission_db
 from losslane.scenario import Scenario, Segment
 
@@ -82,9 +83,7 @@ def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:
     if chain.n == 1:
         # in the log domain, so a channel whose S21 underflows still reports its dB
         return -transmission_db(chain, z_ref)[:, 0, 0]
-    s = abcd_to_s(chain, z_ref)  # internal order: near ends 1..n, far ends n+1..2n
-    # Sdd21 = (S31 - S32 - S41 + S42) / 2 for ports (1, 2) near, (3, 4) far
-    sdd21 = 0.5 * (s[:, 2, 0] - s[:, 2, 1] - s[:, 3, 0] + s[:, 3, 1])
+    sdd21 = mixed_mode(abcd_to_s(chain, z_ref), z_ref).dd[:, 1, 0]
     with np.errstate(divide="ignore"):
         return -20.0 * np.log10(np.maximum(np.abs(sdd21), 1e-300))
 

@@ -65,15 +65,10 @@ def reflection_db(result: ChannelResult) -> tuple[np.ndarray, np.ndarray]:
     s = result.network.s
     if result.nports == 2:
         return -to_db(s[:, 0, 0]), -to_db(s[:, 1, 1])
-    from losslane.network.ports import port_permutation
+    from losslane.network.mixedmode import mixed_mode
 
-    # back to internal order (near 1, 2; far 3, 4) for the mixed-mode formulas
-    perm = port_permutation(2, result.scenario.ports.order)
-    inv = np.argsort(perm)
-    si = s[:, inv][:, :, inv]
-    sdd11 = 0.5 * (si[:, 0, 0] - si[:, 0, 1] - si[:, 1, 0] + si[:, 1, 1])
-    sdd22 = 0.5 * (si[:, 2, 2] - si[:, 2, 3] - si[:, 3, 2] + si[:, 3, 3])
-    return -to_db(sdd11), -to_db(sdd22)
+    dd = mixed_mode(s, result.scenario.ports.reference, result.scenario.ports.order).dd
+    return -to_db(dd[:, 0, 0]), -to_db(dd[:, 1, 1])
 
 
 def summary_rows(result: ChannelResult) -> list[dict]:
