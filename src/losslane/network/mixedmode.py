@@ -47,5 +47,6 @@ def mixed_mode(s: np.ndarray, z_ref: float = 50.0, order: str = "in-in-out-out")
         raise LossLaneError(f"mixed-mode conversion needs a 4-port, got shape {s.shape}")
     si = from_order(s, 2, order)
     mm = _M @ si @ _M.T
-    return MixedMode(mm[:, :2, :2], mm[:, :2, 2:], mm[:, 2:, :2], mm[:, 2:, 2:],
-                     2.0 * z_ref, z_ref / 2.0)
+    return MixedMode(
+        mm[:, :2, :2], mm[:, :2, 2:], mm[:, 2:, :2], mm[:, 2:, 2:], 2.0 * z_ref, z_ref / 2.0
+    )

@@ -37,7 +37,7 @@ from losslane.materials.conductor import MU0, Conductor, _coth_excess
 from losslane.materials.dielectric import Dielectric
 from losslane.units import INCH
 from losslane.xsection.base import CrossSection
-from losslane.xsection.coplanar import Coplanar, frankel_eps, k_over_kp
+from losslane.xsection.coplanar import Coplanar, frankel_eps, k_over_kp, ratio_sinh, ratio_tanh
 from losslane.xsection.microstrip import Microstrip, hj_eps_eff, hj_z_air, jk_z0, kj_eps_eff
 from losslane.xsection.rlgc import C0, ETA0, NP_TO_DB, attenuation_split, filling_factor
 from losslane.xsection.stripline import Stripline, k_ratio_sech
@@ -430,7 +430,7 @@ def _cpw_z_air(w, gap, t, h, grounded: bool) -> np.ndarray:
     if not grounded:
         return ETA0 / (4.0 * r0)
     a, b = w / 2.0, w / 2.0 + gap
-    r3 = k_over_kp(np.tanh(np.pi * a / (2 * h)) / np.tanh(np.pi * b / (2 * h)))
+    r3 = ratio_tanh(a, b, h)
     return ETA0 / (2.0 * (r0 + r3))
 
 
@@ -439,10 +439,10 @@ def _cpw_eps_q(w, gap, t, h, er, grounded: bool) -> np.ndarray:
     a, b = w / 2.0, w / 2.0 + gap
     r0z = k_over_kp(a / b)
     if grounded:
-        r3 = k_over_kp(np.tanh(np.pi * a / (2 * h)) / np.tanh(np.pi * b / (2 * h)))
+        r3 = ratio_tanh(a, b, h)
         eps = 1.0 + r3 / (r0z + r3) * (er - 1.0)
     else:
-        r1 = k_over_kp(np.sinh(np.pi * a / (2 * h)) / np.sinh(np.pi * b / (2 * h)))
+        r1 = ratio_sinh(a, b, h)
         eps = 1.0 + (er - 1.0) / 2.0 * r1 / r0z
     x = 0.7 * t / gap
     return np.where(t > 0, eps - (eps - 1.0) * x / (r0z + x), eps)

@@ -29,7 +29,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.special import ellipk
+from scipy.special import ellipkm1
 
 from losslane.errors import LossLaneError, check_range, warn
 from losslane.materials.dielectric import Dielectric
@@ -40,7 +40,42 @@ from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode
 def k_over_kp(k: np.ndarray) -> np.ndarray:
     """K(k)/K(k') with k' = sqrt(1 - k^2), for 0 < k < 1 (modulus k, not parameter)."""
     k = np.asarray(k, float)
-    return ellipk(k * k) / ellipk(1.0 - k * k)
+    return ratio_from_m(k * k, (1.0 - k) * (1.0 + k))
+
+
+def ratio_from_m(m: np.ndarray, m1: np.ndarray) -> np.ndarray:
+    """K(k)/K(k') from m = k^2 and m1 = 1 - k^2, each given accurately: ellipkm1 keeps the
+    precision of whichever of k, k' is near 1 (a very wide or very narrow line)."""
+    return ellipkm1(np.asarray(m1, float)) / ellipkm1(np.asarray(m, float))
+
+
+def _log_sinh(y: np.ndarray) -> np.ndarray:
+    y = np.asarray(y, float)
+    return y + np.log(-np.expm1(-2.0 * y)) - np.log(2.0)
+
+
+def _log_cosh(y: np.ndarray) -> np.ndarray:
+    y = np.asarray(y, float)
+    return y + np.log1p(np.exp(-2.0 * y)) - np.log(2.0)
+
+
+def ratio_tanh(a, b, h) -> np.ndarray:
+    """K(k)/K(k') for k = tanh(pi a/2h)/tanh(pi b/2h) (the lower-plane term of GCPW), in
+    log form so that a strip many times wider than the substrate (k -> 1) stays exact."""
+    x1, x2 = np.pi * np.asarray(a) / (2 * h), np.pi * np.asarray(b) / (2 * h)
+    log_m = 2.0 * (_log_sinh(x1) - _log_cosh(x1) - _log_sinh(x2) + _log_cosh(x2))
+    # 1 - k^2 = sinh(x2 - x1) sinh(x2 + x1) / (cosh^2 x1 sinh^2 x2)
+    log_m1 = _log_sinh(x2 - x1) + _log_sinh(x2 + x1) - 2.0 * _log_cosh(x1) - 2.0 * _log_sinh(x2)
+    return ratio_from_m(np.exp(log_m), np.exp(log_m1))
+
+
+def ratio_sinh(a, b, h) -> np.ndarray:
+    """K(k)/K(k') for k = sinh(pi a/2h)/sinh(pi b/2h) (the finite substrate of CPW)."""
+    x1, x2 = np.pi * np.asarray(a) / (2 * h), np.pi * np.asarray(b) / (2 * h)
+    log_m = 2.0 * (_log_sinh(x1) - _log_sinh(x2))
+    # 1 - k^2 = sinh(x2 - x1) sinh(x2 + x1) / sinh^2 x2
+    log_m1 = _log_sinh(x2 - x1) + _log_sinh(x2 + x1) - 2.0 * _log_sinh(x2)
+    return ratio_from_m(np.exp(log_m), np.exp(log_m1))
 
 
 def thickness_delta(w: float, t: float) -> float:
@@ -58,7 +93,7 @@ def cpw_z_air(w: float, gap: float, t: float, h: float, grounded: bool) -> float
     if not grounded:
         return ETA0 / (4.0 * r0)
     a, b = w / 2.0, w / 2.0 + gap
-    r3 = float(k_over_kp(np.tanh(np.pi * a / (2 * h)) / np.tanh(np.pi * b / (2 * h))))
+    r3 = float(ratio_tanh(a, b, h))
     return ETA0 / (2.0 * (r0 + r3))
 
 
@@ -69,10 +104,10 @@ def cpw_eps_quasi_static(
     a, b = w / 2.0, w / 2.0 + gap
     r0z = float(k_over_kp(a / b))  # zero-thickness modulus in the filling factor
     if grounded:
-        r3 = float(k_over_kp(np.tanh(np.pi * a / (2 * h)) / np.tanh(np.pi * b / (2 * h))))
+        r3 = float(ratio_tanh(a, b, h))
         eps = 1.0 + r3 / (r0z + r3) * (er - 1.0)
     else:
-        r1 = float(k_over_kp(np.sinh(np.pi * a / (2 * h)) / np.sinh(np.pi * b / (2 * h))))
+        r1 = float(ratio_sinh(a, b, h))
         eps = 1.0 + (er - 1.0) / 2.0 * r1 / r0z
     if t > 0:
         x = 0.7 * t / gap
