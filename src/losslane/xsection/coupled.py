@@ -306,12 +306,18 @@ def _k_ratio(mp: float) -> float:
     return float(ellipk(mp) / ellipkm1(mp))
 
 
+def _sech2(x: float) -> float:
+    """sech^2 x without overflow for large x."""
+    e = np.exp(-2.0 * abs(x))
+    return float(4.0 * e / (1.0 + e) ** 2)
+
+
 def cohn_pair_z_air(w: float, s: float, b: float) -> dict[str, float]:
     """Cohn's exact air-filled even/odd impedances of zero-thickness centred coupled
     striplines of plane spacing b."""
     a = np.pi * w / (2.0 * b)
     c = np.pi * (w + s) / (2.0 * b)
-    sech2_a, sech2_c = 1.0 / np.cosh(a) ** 2, 1.0 / np.cosh(c) ** 2
+    sech2_a, sech2_c = _sech2(a), _sech2(c)
     # 1 - k^2 without cancellation: k_e = tanh a tanh c, k_o = tanh a / tanh c
     mp_e = sech2_a + np.tanh(a) ** 2 * sech2_c
     mp_o = (sech2_a - sech2_c) / np.tanh(c) ** 2
