@@ -330,8 +330,10 @@ def cohn_fringe(x: float) -> float:
     at x = 0."""
     if x <= 0:
         return 2.0 * np.log(2.0) / np.pi
+    # with r = 1/(1 - x): (2 r ln(r + 1) - (r - 1) ln(r^2 - 1)) / pi, written so that
+    # r - 1 and r^2 - 1 keep their precision for thin strips
     r = 1.0 / (1.0 - x)
-    return (2.0 * r * np.log(r + 1.0) - (r - 1.0) * np.log(r * r - 1.0)) / np.pi
+    return (2.0 * r * np.log(r + 1.0) - x * r * np.log(x * (2.0 - x) * r * r)) / np.pi
 
 
 def centred_pair_z_air(mode: str, w: float, s: float, b: float, t: float) -> float:
