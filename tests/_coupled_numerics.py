@@ -126,3 +126,82 @@ def fd_stripline_pair(
     r = (c1 - c2) / (c2 - c3)
     c = c3 - (c2 - c3) / (r - 1.0)
     return 1.0 / (C0 * c)
+
+
+def _graded_axis(breaks: list[float], step: float, far: float, grow: float = 1.25) -> np.ndarray:
+    """Uniform spacing <= step between the break points, then geometric growth to far."""
+    pts = [breaks[0]]
+    for a, b in zip(breaks[:-1], breaks[1:], strict=True):
+        n = max(1, int(np.ceil((b - a) / step - 1e-9)))
+        pts += list(np.linspace(a, b, n + 1)[1:])
+    while pts[-1] < far:
+        step *= grow
+        pts.append(pts[-1] + step)
+    return np.array(pts)
+
+
+def _bisect(x: np.ndarray, times: int) -> np.ndarray:
+    for _ in range(times):
+        x = np.sort(np.concatenate([x, (x[:-1] + x[1:]) / 2]))
+    return x
+
+
+def _fd_microstrip_once(
+    w: float, s: float, h: float, t: float, er: float, mode: str, level: int, far: float
+) -> float:
+    """Capacitance of one strip of a thick coupled microstrip on a graded rectilinear grid
+    (half domain x >= 0; ground plane y = 0; grounded box walls `far` away)."""
+    step = min(0.1 * h, w / 4, s / 2)
+    xs = _bisect(_graded_axis([0, s / 2, s / 2 + w, s / 2 + w + 2 * h], step, far), level)
+    yb = [0.0, h] + ([h + t] if t > 0 else []) + [h + t + 2 * h]
+    ys = _bisect(_graded_axis(yb, step, far), level)
+    nx, ny = len(xs), len(ys)
+    dx, dy = np.diff(xs), np.diff(ys)
+    eps_row = np.where((ys[:-1] + ys[1:]) / 2 < h, er, 1.0)  # per row of cells
+    i, j = np.meshgrid(np.arange(nx), np.arange(ny), indexing="ij")
+    node = i * ny + j
+    tol = 1e-9 * h
+    x, y = xs[i], ys[j]
+    strip = (x >= s / 2 - tol) & (x <= s / 2 + w + tol) & (y >= h - tol) & (y <= h + t + tol)
+    fixed = strip | (j == 0) | (j == ny - 1) | (i == nx - 1)
+    if mode == "odd":
+        fixed |= i == 0
+    value = strip.astype(float).ravel()
+    fixed = fixed.ravel()
+    # conductance of each grid edge: the adjacent cells' eps times width/length
+    jh = j[:-1, :]
+    below = np.where(jh > 0, eps_row[np.maximum(jh - 1, 0)] * dy[np.maximum(jh - 1, 0)], 0)
+    above = np.where(jh < ny - 1, eps_row[np.minimum(jh, ny - 2)] * dy[np.minimum(jh, ny - 2)], 0)
+    hw = ((below + above) / 2 / dx[i[:-1, :]]).ravel()
+    iv = i[:, :-1]
+    left = np.where(iv > 0, dx[np.maximum(iv - 1, 0)], 0)
+    right = np.where(iv < nx - 1, dx[np.minimum(iv, nx - 2)], 0)
+    vw = (eps_row[j[:, :-1]] * (left + right) / 2 / dy[j[:, :-1]]).ravel()
+    ea = np.concatenate([node[:-1, :].ravel(), node[:, :-1].ravel()])
+    eb = np.concatenate([node[1:, :].ravel(), node[:, 1:].ravel()])
+    ew = np.concatenate([hw, vw])
+    n = node.size
+    lap = sp.coo_matrix(
+        (np.concatenate([ew, ew, -ew, -ew]), (np.r_[ea, eb, ea, eb], np.r_[ea, eb, eb, ea])),
+        shape=(n, n),
+    ).tocsr()
+    free = ~fixed
+    phi = value.copy()
+    phi[free] = spla.spsolve(lap[free][:, free].tocsc(), -lap[free][:, fixed] @ value[fixed])
+    # half domain energy * 2 = mode energy = C per strip (two strips at |V| = 1)
+    return float(EPS0 * np.sum(ew * (phi[ea] - phi[eb]) ** 2))
+
+
+def fd_microstrip_pair(
+    w: float, s: float, h: float, t: float, er: float, mode: str, far: float = 30.0
+) -> tuple[float, float]:
+    """(Z0, eps_eff) of one mode of a thick coupled microstrip, Richardson-extrapolated
+    over three nested grids."""
+
+    def extrapolated(eps_r: float) -> float:
+        c1, c2, c3 = (_fd_microstrip_once(w, s, h, t, eps_r, mode, k, far * h) for k in (0, 1, 2))
+        r = (c1 - c2) / (c2 - c3)
+        return c3 - (c2 - c3) / (r - 1.0)
+
+    c, ca = extrapolated(er), extrapolated(1.0)
+    return 1.0 / (C0 * np.sqrt(c * ca)), c / ca

@@ -115,12 +115,13 @@ def test_dc_and_terahertz_are_finite(p):
 @pytest.mark.filterwarnings("ignore::losslane.errors.LossLaneWarning")
 def test_skin_loss_trends_with_coupling():
     # common practice: with a very tight gap the odd-mode current crowds onto the facing
-    # edges, so its conductor loss rises above the lone strip's; the even mode, whose
-    # return currents share one plane region, loses more than the odd mode at any gap
+    # edges, so its conductor loss rises above the lone strip's; once the gap is about the
+    # height or more, the even mode, whose return currents share one plane region, loses
+    # more than the odd mode
     f = np.array([10e9])
     lone = Microstrip(5 * MIL, 4 * MIL, 1.4 * MIL, D).modes(f)["single"].r[0]
     assert micro(1.0).modes(f)["odd"].r[0] > 1.1 * lone
-    for s_mil in (1.0, 3.0, 7.0, 20.0):
+    for s_mil in (4.0, 7.0, 20.0):
         m = micro(s_mil).modes(f)
         assert m["even"].r[0] > m["odd"].r[0]
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from _coupled_numerics import sda_microstrip
+from _coupled_numerics import fd_microstrip_pair, sda_microstrip
 
 from losslane.materials.dielectric import ConstantDielectric
 from losslane.xsection.coupled import MicrostripPair, kj_quasi_static, kj_static
@@ -98,3 +98,46 @@ def test_dispersion_moves_both_modes_toward_eps_r():
         assert np.all(np.diff(m.eps_eff) > 0)
         assert np.all(m.eps_eff < 4.0)
     assert np.all(modes["even"].eps_eff > modes["odd"].eps_eff)
+
+
+@pytest.mark.parametrize(
+    "u, g, t_h, er",
+    [
+        (1.25, 1.75, 0.35, 3.6),  # 5/7 mil pair, 1.4 mil copper, 4 mil of Dk 3.6
+        (0.5, 0.25, 0.2, 4.0),  # tight gap, t/s = 0.8: the side-wall term dominates
+        (1.0, 0.25, 0.1, 10.0),
+        (0.5, 2.0, 0.2, 4.0),
+    ],
+)
+def test_thickness_against_finite_differences(u, g, t_h, er):
+    # source: independent finite-difference solution of the thick pair
+    # (tests/_coupled_numerics.py; it reproduces Hammerstad-Jensen's thick single strip
+    # to 0.1 % in Z). Over 0.25 <= s/h <= 3, t/h <= 0.35 the largest deviations measured
+    # were 1.0 % in Z and 3.1 % in eps_eff (zero-thickness model error included).
+    qs = kj_quasi_static(u, g, 1.0, t_h, np.array([er]))
+    for mode in ("even", "odd"):
+        z, e = fd_microstrip_pair(u, g, 1.0, t_h, er, mode)
+        assert qs[mode][0][0] == pytest.approx(z, rel=0.015)
+        assert qs[mode][1][0] == pytest.approx(e, rel=0.035)
+
+
+def test_finite_difference_solver_reproduces_moment_method():
+    # the two independent references agree for a zero-thickness pair on a substrate,
+    # which checks the finite-difference treatment of the dielectric interface
+    for mode in ("even", "odd"):
+        z_fd, e_fd = fd_microstrip_pair(1.0, 0.5, 1.0, 0.0, 4.0, mode)
+        z_mom, e_mom = sda_microstrip(1.0, 0.5, 1.0, 4.0, mode)
+        assert z_fd == pytest.approx(z_mom, rel=3e-3)
+        assert e_fd == pytest.approx(e_mom, rel=3e-3)
+
+
+def test_static_limit_of_the_dispersive_model():
+    # at f = 0 the Kirschning-Jansen dispersion laws reduce to the quasi-static values
+    # (exact: F(0) = 0, Q22 = 0, Q24 = Q25 = 0, Q23 = 1)
+    d = ConstantDielectric(dk=4.2)
+    p = MicrostripPair(5 * MIL, 6 * MIL, 4 * MIL, 1.2 * MIL, d)
+    modes = p.modes(np.array([0.0]))
+    qs = kj_quasi_static(5.0, 6.0, 4.0, 1.2, np.array([4.2]))
+    for m in ("even", "odd"):
+        assert modes[m].z0[0] == pytest.approx(qs[m][0][0], rel=1e-12)
+        assert modes[m].eps_eff[0] == pytest.approx(qs[m][1][0], rel=1e-12)
