@@ -61,8 +61,9 @@ def test_air_filled_modes_have_unit_eps():
 @pytest.mark.parametrize("t", [0.0, 0.7, 1.4])
 def test_wide_spacing_tends_to_single_microstrip(t):
     # s -> infinity: both modes must become the isolated strip (losslane's Microstrip,
-    # Hammerstad-Jensen with thickness; Kirschning-Jansen dispersion); at f h = 0.1 GHz mm
-    # the even-mode Z dispersion term that does not vanish with the gap (Q17) is negligible
+    # Hammerstad-Jensen with thickness; Kirschning-Jansen dispersion). One even-mode Z
+    # dispersion term (Q17) does not vanish with the gap; up to f h = 3 GHz mm its effect
+    # stays below 1e-5 (it reaches 0.25 % at f h = 15 GHz mm).
     d = ConstantDielectric(dk=3.8)
     w, h = 6 * MIL, 4 * MIL
     f = np.array([0.0, 1e9, 30e9])
@@ -70,7 +71,7 @@ def test_wide_spacing_tends_to_single_microstrip(t):
     modes = MicrostripPair(w, 1e4 * h, h, t * MIL, d).modes(f)
     for m in ("even", "odd"):
         np.testing.assert_allclose(modes[m].eps_eff, one.eps_eff, rtol=1e-4)
-        np.testing.assert_allclose(modes[m].z0[:2], one.z0[:2], rtol=1e-4)
+        np.testing.assert_allclose(modes[m].z0, one.z0, rtol=1e-4)
         if t > 0:
             np.testing.assert_allclose(modes[m].r, one.r, rtol=1e-3)
 

@@ -96,21 +96,21 @@ def kj_static_eps(u: ArrayLike, g: float, er: ArrayLike) -> tuple[np.ndarray, np
     return eps_e, eps_o
 
 
+def _log_ratio(g: float, g0: float) -> float:
+    """ln(g^10 / (1 + (g/g0)^10)) without overflow for wide gaps."""
+    lg = 10.0 * np.log(g)
+    return float(lg - np.logaddexp(0.0, lg - 10.0 * np.log(g0)))
+
+
 def kj_static_q(u: ArrayLike, g: float) -> tuple[np.ndarray, np.ndarray]:
     """Kirschning-Jansen coupling terms (Q4, Q10) of the even and odd impedances."""
     u = np.asarray(u, float)
     q1 = 0.8695 * u**0.194
     q2 = 1.0 + 0.7519 * g + 0.189 * g**2.31
-    q3 = (
-        0.1975 + (16.6 + (8.4 / g) ** 6) ** -0.387 + np.log(g**10 / (1.0 + (g / 3.4) ** 10)) / 241.0
-    )
+    q3 = 0.1975 + (16.6 + (8.4 / g) ** 6) ** -0.387 + _log_ratio(g, 3.4) / 241.0
     q4 = 2.0 * q1 / q2 / (np.exp(-g) * u**q3 + (2.0 - np.exp(-g)) * u**-q3)
     q5 = 1.794 + 1.14 * np.log(1.0 + 0.638 / (g + 0.517 * g**2.43))
-    q6 = (
-        0.2305
-        + np.log(g**10 / (1.0 + (g / 5.8) ** 10)) / 281.3
-        + np.log(1.0 + 0.598 * g**1.154) / 5.1
-    )
+    q6 = 0.2305 + _log_ratio(g, 5.8) / 281.3 + np.log(1.0 + 0.598 * g**1.154) / 5.1
     q7 = (10.0 + 190.0 * g * g) / (1.0 + 82.3 * g**3)
     q8 = np.exp(-6.5 - 0.95 * np.log(g) - (g / 0.15) ** 5)
     q9 = np.log(q7) * (q8 + 1.0 / 16.5)
