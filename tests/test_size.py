@@ -349,7 +349,7 @@ PAIRS = {
 
 @pytest.mark.parametrize("kind", sorted(PAIRS))
 @pytest.mark.parametrize(
-    "vary, given", [("width", ("--spacing", "6mil")), ("spacing", ("--width", "5mil"))]
+    "vary, given", [("width", ("--spacing", "6mil")), ("spacing", ("--width", "4mil"))]
 )
 def test_pair_round_trip(capsys, kind: str, vary: str, given: tuple[str, str]) -> None:
     if kind not in KINDS:

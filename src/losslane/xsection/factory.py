@@ -18,6 +18,7 @@ from losslane.spec import check_keys, key_name, quantity, suggest, text
 from losslane.units import OZ_COPPER, parse_conductivity
 from losslane.xsection.base import CrossSection, Metal
 from losslane.xsection.coplanar import Coplanar
+from losslane.xsection.coupled import MicrostripPair, StriplinePair
 from losslane.xsection.microstrip import Microstrip
 from losslane.xsection.stripline import Stripline
 
@@ -66,6 +67,20 @@ KINDS: dict[str, KindSpec] = {
         ("width", "gap", "height"),
         (),
         lambda g, d, m: Coplanar(g["width"], g["gap"], g["height"], g["thickness"], d, True, m),
+    ),
+    "microstrip-pair": KindSpec(
+        ("width", "spacing", "height"),
+        (),
+        lambda g, d, m: MicrostripPair(g["width"], g["spacing"], g["height"], g["thickness"], d, m),
+        conductors=2,
+    ),
+    "stripline-pair": KindSpec(
+        ("width", "spacing", "below", "above"),
+        (),
+        lambda g, d, m: StriplinePair(
+            g["width"], g["spacing"], g["below"], g["above"], g["thickness"], d, m
+        ),
+        conductors=2,
     ),
 }
 
