@@ -253,11 +253,12 @@ def materials(
     return catalog(library_files, scenario_files)
 
 
-def demo_scenario_path() -> Path:
-    """The bundled demo scenario file."""
+def demo_scenario_path(single_ended: bool = False) -> Path:
+    """The bundled demo scenario file (the differential lane, or its single-ended variant)."""
     from importlib import resources
 
-    return Path(str(resources.files("losslane").joinpath("data", "demo", "sensor-lane.toml")))
+    name = "sensor-lane-single.toml" if single_ended else "sensor-lane.toml"
+    return Path(str(resources.files("losslane").joinpath("data", "demo", name)))
 
 
 def build(

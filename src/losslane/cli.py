@@ -780,15 +780,20 @@ def build_command(
     metavar="DIR",
     help="output directory",
 )
+@click.option(
+    "--single-ended",
+    is_flag=True,
+    help="the single-ended (2-port) variant instead of the differential pair",
+)
 @click.option("--no-plots", is_flag=True, help="skip the PNG plots")
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
-def demo_command(out: str, no_plots: bool, as_json: bool) -> None:
-    """Build the bundled example channel end to end (a sensor-to-processor lane over two
-    boards and a mezzanine connector)."""
+def demo_command(out: str, single_ended: bool, no_plots: bool, as_json: bool) -> None:
+    """Build the bundled example channel end to end: a differential sensor-to-processor
+    lane over two boards and a mezzanine connector (.s4p and mixed-mode plots)."""
     from losslane.api import build, demo_scenario_path
 
     with _warnings_to_stderr():
-        path = demo_scenario_path()
+        path = demo_scenario_path(single_ended)
         result, files, text, data = build(path, out=out, plots=not no_plots)
         if as_json:
             click.echo(__import__("json").dumps(data))

@@ -71,18 +71,31 @@ def reflection_db(result: ChannelResult) -> tuple[np.ndarray, np.ndarray]:
     return -to_db(dd[:, 0, 0]), -to_db(dd[:, 1, 1])
 
 
+def mixed(result: ChannelResult):
+    """Mixed-mode blocks of a 4-port result (None for a 2-port)."""
+    if result.nports != 4:
+        return None
+    from losslane.network.mixedmode import mixed_mode
+
+    sc = result.scenario
+    return mixed_mode(result.network.s, sc.ports.reference, sc.ports.order)
+
+
 def summary_rows(result: ChannelResult) -> list[dict]:
     rl_in, rl_out = reflection_db(result)
+    mm = mixed(result)
     rows = []
     for x in summary_frequencies(result):
-        rows.append(
-            {
-                "at_hz": x,
-                "insertion_loss_db": _at(result.f, result.insertion_loss_db, x),
-                "return_loss_in_db": _at(result.f, rl_in, x),
-                "return_loss_out_db": _at(result.f, rl_out, x),
-            }
-        )
+        row = {
+            "at_hz": x,
+            "insertion_loss_db": _at(result.f, result.insertion_loss_db, x),
+            "return_loss_in_db": _at(result.f, rl_in, x),
+            "return_loss_out_db": _at(result.f, rl_out, x),
+        }
+        if mm is not None:
+            row["common_mode_loss_db"] = _at(result.f, -to_db(mm.cc[:, 1, 0]), x)
+            row["mode_conversion_db"] = _at(result.f, to_db(mm.cd[:, 1, 0]), x)
+        rows.append(row)
     return rows
 
 
@@ -136,7 +149,39 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         rl_markers,
         floor_db=-80,
     )
-    return [il, rl]
+    files = [il, rl]
+    mm = mixed(result)
+    if mm is not None:
+        files.append(
+            db_plot(
+                stage / f"{stem}-mixed-mode.png",
+                f,
+                [
+                    Curve("Sdd21 differential through", to_db(mm.dd[:, 1, 0]), "-", 2.0, "black"),
+                    Curve("Scc21 common-mode through", to_db(mm.cc[:, 1, 0]), "-", 1.3, "tab:blue"),
+                    Curve(
+                        "Scd21 differential -> common (far end)",
+                        to_db(mm.cd[:, 1, 0]),
+                        "-",
+                        1.3,
+                        "tab:red",
+                    ),
+                    Curve(
+                        "Scd11 differential -> common (near end)",
+                        to_db(mm.cd[:, 0, 0]),
+                        "--",
+                        1.1,
+                        "tab:orange",
+                    ),
+                ],
+                f"{sc.name}: mixed-mode S-parameters (differential {mm.z_diff:g} ohm, common "
+                f"{mm.z_common:g} ohm)",
+                "dB",
+                markers,
+                floor_db=-120,
+            )
+        )
+    return files
 
 
 def write_build(
@@ -187,32 +232,30 @@ def write_build(
 
 def summary_text(result: ChannelResult, files: list[Path]) -> str:
     sc = result.scenario
-    mode = "" if result.nports == 2 else " (differential mode)"
-    rows = [
-        [
+    four = result.nports == 4
+    mode = " (differential mode)" if four else ""
+    heads = ["frequency", "insertion loss", "return loss in", "return loss out"]
+    units = ["GHz", "dB", "dB", "dB"]
+    if four:
+        heads += ["common-mode loss", "Scd21"]
+        units += ["dB", "dB"]
+    rows = []
+    for r in summary_rows(result):
+        row = [
             f"{r['at_hz'] / 1e9:.4g}",
             f"{r['insertion_loss_db']:.2f}",
             f"{r['return_loss_in_db']:.1f}",
             f"{r['return_loss_out_db']:.1f}",
         ]
-        for r in summary_rows(result)
-    ]
+        if four:
+            row += [f"{r['common_mode_loss_db']:.2f}", f"{r['mode_conversion_db']:.1f}"]
+        rows.append(row)
     head = (
         f"{sc.name}: {len(result.blocks)} segments, {result.nports}-port, "
         f"{result.f.size} points {result.f[0] / 1e9:g}..{result.f[-1] / 1e9:g} GHz, "
-        f"reference {sc.ports.reference:g} ohm"
-        + (f", port order {sc.ports.order}" if result.nports == 4 else "")
+        f"reference {sc.ports.reference:g} ohm" + (f", port order {sc.ports.order}" if four else "")
     )
-    out = [
-        head,
-        "",
-        f"insertion and return loss{mode}",
-        table(
-            ["frequency", "insertion loss", "return loss in", "return loss out"],
-            ["GHz", "dB", "dB", "dB"],
-            rows,
-        ),
-    ]
+    out = [head, "", f"insertion and return loss{mode}", table(heads, units, rows)]
     if files:
         out += ["", "files written:"] + [f"  {p}" for p in files]
     out += ["", CAUTION]
