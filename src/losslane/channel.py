@@ -23,8 +23,7 @@ from losslane.network.blocks import (
     Via,
 )
 from losslane.network.cascade import build_network
-from losslane.network.mixedmode import mixed_mode
-from losslane.network.scaled import ScaledABCD, abcd_to_s, transmission_db
+from losslane.network.scaled import ScaledABCD, forward_transmission, scaled_db
 from losslane.scenario import Scenario, Segment
 
 
@@ -79,13 +78,14 @@ class ChannelResult:
 
 def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:
     """Insertion loss (positive dB) of the main mode between matched references: S21 of a
-    single-ended channel, the differential-mode Sdd21 of a pair."""
+    single-ended channel, the differential-mode Sdd21 of a pair; in the log domain, so a
+    channel whose transmission underflows still reports its dB."""
+    x21, log_scale = forward_transmission(chain, z_ref)
     if chain.n == 1:
-        # in the log domain, so a channel whose S21 underflows still reports its dB
-        return -transmission_db(chain, z_ref)[:, 0, 0]
-    sdd21 = mixed_mode(abcd_to_s(chain, z_ref), z_ref).dd[:, 1, 0]
-    with np.errstate(divide="ignore"):
-        return -20.0 * np.log10(np.maximum(np.abs(sdd21), 1e-300))
+        return -scaled_db(x21[:, 0, 0], log_scale)
+    # Sdd21 = (S31 - S32 - S41 + S42) / 2, the mixed-mode transform (see mixedmode.py)
+    sdd21 = 0.5 * (x21[:, 0, 0] - x21[:, 0, 1] - x21[:, 1, 0] + x21[:, 1, 1])
+    return -scaled_db(sdd21, log_scale)
 
 
 def build_channel(scenario: Scenario) -> ChannelResult:

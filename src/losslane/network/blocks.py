@@ -31,6 +31,7 @@ the RLGC model's own validity range applies.
 from __future__ import annotations
 
 import os
+from functools import lru_cache
 from pathlib import Path
 
 import numpy as np
@@ -102,26 +103,19 @@ def single_scaled_abcd(
     return m, s
 
 
-def modal_scaled_abcd(
-    z: np.ndarray, y: np.ndarray, length: float, cond_limit: float = 1e8
-) -> tuple[np.ndarray, np.ndarray]:
-    """Chain matrix of a uniform n-conductor line from the modal decomposition of Z Y.
+def modal_decomposition(z: np.ndarray, y: np.ndarray) -> tuple:
+    """Eigen-decomposition Z Y = E diag(gamma_i^2) E^-1 of an (N, n, n) line, independent
+    of its length (so one decomposition serves every segment of the same cross-section).
 
-    ``z``, ``y`` (N, n, n) per-metre impedance and admittance matrices (symmetrised here:
-    they are symmetric for any reciprocal line, a numerical solver's rounding aside).
-    With Z Y = E diag(gamma_i^2) E^-1 and Y Z = (Z Y)^T:
-    A = E diag(cosh gamma_i l) E^-1, C = Y l E diag(sinhc gamma_i l) E^-1,
-    B = Z l (E diag(sinhc) E^-1)^T, D = A^T; all scaled by exp(-max_i |Re gamma_i| l).
-    Where E is ill-conditioned (degenerate modes; cond > ``cond_limit``) the points use
-    scipy's matrix exponential of the shifted 2n x 2n system instead. At f = 0 (Z Y = 0)
-    E = I and the result is exactly A = D = I, B = Z l, C = 0.
-    Returns (matrix (N, 2n, 2n), log_scale (N,)).
+    ``z``, ``y`` are symmetrised first (they are symmetric for any reciprocal line, a
+    numerical solver's rounding aside). At f = 0 (Z Y = 0) E = I. Returns
+    (z, y, gamma^2 (N, n), E, E^-1, cond(E) (N,)).
     """
     z = np.asarray(z, complex)
     y = np.asarray(y, complex)
     z = 0.5 * (z + np.swapaxes(z, -1, -2))
     y = 0.5 * (y + np.swapaxes(y, -1, -2))
-    npts, n = z.shape[0], z.shape[-1]
+    n = z.shape[-1]
     zy = np.matmul(z, y)
     eye = np.eye(n)
     zero = np.all(zy == 0, axis=(-2, -1))
@@ -130,6 +124,30 @@ def modal_scaled_abcd(
     lam = np.where(zero[:, None], 0.0, lam)
     vec = np.where(zero[:, None, None], eye, vec)
     vinv = np.linalg.inv(vec)
+    cond = np.linalg.norm(vec, axis=(-2, -1)) * np.linalg.norm(vinv, axis=(-2, -1))
+    return z, y, lam, vec, vinv, cond
+
+
+def modal_scaled_abcd(
+    z: np.ndarray,
+    y: np.ndarray,
+    length: float,
+    cond_limit: float = 1e8,
+    decomposition: tuple | None = None,
+) -> tuple[np.ndarray, np.ndarray]:
+    """Chain matrix of a uniform n-conductor line from the modal decomposition of Z Y.
+
+    With Z Y = E diag(gamma_i^2) E^-1 and Y Z = (Z Y)^T:
+    A = E diag(cosh gamma_i l) E^-1, C = Y l E diag(sinhc gamma_i l) E^-1,
+    B = Z l (E diag(sinhc) E^-1)^T, D = A^T; all scaled by exp(-max_i |Re gamma_i| l).
+    Where E is ill-conditioned (degenerate modes; cond > ``cond_limit``) the points use
+    scipy's matrix exponential of the shifted 2n x 2n system instead. At f = 0 (Z Y = 0)
+    E = I and the result is exactly A = D = I, B = Z l, C = 0. ``decomposition`` is a
+    cached result of :func:`modal_decomposition` for the same z, y.
+    Returns (matrix (N, 2n, 2n), log_scale (N,)).
+    """
+    z, y, lam, vec, vinv, cond = decomposition or modal_decomposition(z, y)
+    npts, n = z.shape[0], z.shape[-1]
     gl = np.sqrt(lam) * length
     s = np.max(np.abs(gl.real), axis=-1)
     ch, shc = scaled_cosh_sinhc(gl, s[:, None])
@@ -140,7 +158,6 @@ def modal_scaled_abcd(
     m[:, :n, n:] = length * np.matmul(z, np.swapaxes(g, -1, -2))
     m[:, n:, :n] = length * np.matmul(y, g)
     m[:, n:, n:] = np.swapaxes(a, -1, -2)
-    cond = np.linalg.norm(vec, axis=(-2, -1)) * np.linalg.norm(vinv, axis=(-2, -1))
     bad = ~(cond < cond_limit)
     if np.any(bad):
         import scipy.linalg
@@ -159,8 +176,29 @@ def line_scaled_abcd(rlgc: RLGC, length: float) -> ScaledABCD:
     if rlgc.n == 1:
         m, s = single_scaled_abcd(z[:, 0, 0], y[:, 0, 0], length)
     else:
-        m, s = modal_scaled_abcd(z, y, length)
+        m, s = modal_scaled_abcd(z, y, length, decomposition=_decomposition(rlgc))
     return ScaledABCD.reciprocal(m, s)
+
+
+# one channel reuses a cross-section in several segments: its RLGC and the (length-
+# independent) modal decomposition are computed once per sweep
+_DECOMPOSITIONS: dict[int, tuple] = {}
+
+
+def _decomposition(rlgc: RLGC) -> tuple:
+    key = id(rlgc)
+    hit = _DECOMPOSITIONS.get(key)
+    if hit is None or hit[0] is not rlgc:
+        if len(_DECOMPOSITIONS) > 16:
+            _DECOMPOSITIONS.clear()
+        hit = (rlgc, modal_decomposition(rlgc.z(), rlgc.y()))
+        _DECOMPOSITIONS[key] = hit
+    return hit[1]
+
+
+@lru_cache(maxsize=32)
+def _section_rlgc(section, f_bytes: bytes) -> RLGC:
+    return section.rlgc(np.frombuffer(f_bytes, dtype=float))
 
 
 # ---------------------------------------------------------------- blocks
@@ -251,7 +289,10 @@ class LineSegment(Block):
                     f"({f.min():g}..{f.max():g} Hz); compute the RLGC on the sweep"
                 )
             return src
-        return src.rlgc(f)
+        try:
+            return _section_rlgc(src, np.ascontiguousarray(f, dtype=float).tobytes())
+        except TypeError:  # an unhashable section: no cache
+            return src.rlgc(f)
 
     def scaled_abcd(self, f: np.ndarray) -> ScaledABCD:
         return line_scaled_abcd(self.rlgc(f), self.length)

@@ -387,16 +387,28 @@ def abcd_to_s(abcd: np.ndarray | ScaledABCD, z_ref) -> np.ndarray:
     return np.ascontiguousarray(_to_frequency_first(out))
 
 
+def forward_transmission(abcd: ScaledABCD, z_ref) -> tuple[np.ndarray, np.ndarray]:
+    """The S21 block (far ends <- near ends) as (x21 (N, n, n), log_scale (N,)), with
+    S21 = exp(-log_scale) x21: only the forward waves are solved, and the scale is kept
+    apart so that a channel whose S21 underflows still has its dB."""
+    n, npts = abcd.n, abcd.npoints
+    r = np.sqrt(_ref_array(z_ref, npts, 2 * n)).T
+    _, x21 = _forward_waves(abcd, r[:n], r[n:])
+    return _to_frequency_first(x21), abcd.log_scale
+
+
+def scaled_db(x: np.ndarray, log_scale: np.ndarray) -> np.ndarray:
+    """20 log10 |exp(-log_scale) x| in the log domain (-inf only where x is exactly 0)."""
+    ls = log_scale.reshape(log_scale.shape + (1,) * (np.ndim(x) - 1))
+    with np.errstate(divide="ignore"):
+        return 20.0 * (np.log10(np.abs(x)) - ls / np.log(10.0))
+
+
 def transmission_db(abcd: ScaledABCD, z_ref) -> np.ndarray:
     """20 log10 |S21 block| (N, n, n) computed in the log domain, so that a channel whose
     S21 underflows (alpha l > ~700 Np) still reports its loss in dB (-inf only where the
     transmission is exactly zero, e.g. through a series capacitor at f = 0)."""
-    n, npts = abcd.n, abcd.npoints
-    r = np.sqrt(_ref_array(z_ref, npts, 2 * n)).T
-    _, x21 = _forward_waves(abcd, r[:n], r[n:])
-    with np.errstate(divide="ignore"):
-        db = 20.0 * (np.log10(np.abs(x21)) - abcd.log_scale / np.log(10.0))
-    return _to_frequency_first(db)
+    return scaled_db(*forward_transmission(abcd, z_ref))
 
 
 def _adjugate(m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
