@@ -265,7 +265,10 @@ def build_mesh(geom: Geometry, prm: MeshParams) -> GridMesh:
     # split along the shorter diagonal (keeps the largest angle small)
     ac = np.hypot(*(p[:, a] - p[:, c]))
     bd = np.hypot(*(p[:, b] - p[:, d]))
-    use_ac = ac <= bd
+    # ties (rectangles) alternate with the side of x = 0, so a structure symmetric about
+    # x = 0 gets a mirror-symmetric mesh and exactly equal self terms
+    tie = np.abs(ac - bd) <= 1e-9 * (ac + bd)
+    use_ac = np.where(tie, cx[keep] < 0, ac < bd)
     t1 = np.where(use_ac, [a, b, c], [a, b, d])
     t2 = np.where(use_ac, [a, c, d], [b, c, d])
     t = np.hstack([t1, t2])

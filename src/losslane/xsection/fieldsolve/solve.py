@@ -71,6 +71,8 @@ class Solution:
 
     level: int
     partition: np.ndarray  # (regions, n, n) F/m per unit relative permittivity
+    hessian: np.ndarray  # (regions, regions, n, n) derivatives of the partition
+    eps_ref: np.ndarray  # (regions,) the permittivities of the solve
     c_ref: np.ndarray  # (n, n) at the reference permittivities
     c0: np.ndarray  # (n, n) vacuum
     groups: tuple[GroupFactor, ...]
@@ -134,23 +136,45 @@ def _facet_sets(geom: Geometry, mesh, box) -> dict:
     return {"traces": traces, "planes": planes, "box": box_f}
 
 
-def _solve_fields(geom: Geometry, level: int, eps: np.ndarray):
+@dataclass
+class _Solved:
+    grid: GridMesh
+    mesh: object
+    basis: object
+    k_regions: list  # per region: its stiffness matrix (None when the region is empty)
+    k_eps: object
+    k_0: object
+    sets: dict
+    u: np.ndarray
+    u0: np.ndarray
+    lu_eps: object
+    free: np.ndarray
+
+
+def _solve_fields(geom: Geometry, level: int, eps: np.ndarray) -> _Solved:
     from scipy.sparse.linalg import splu
-    from skfem import Basis, BilinearForm, ElementTriP2, MeshTri, asm
+    from skfem import BilinearForm, CellBasis, ElementTriP2, MeshTri, asm
     from skfem.helpers import dot, grad
 
     grid = build_mesh(geom, PARAMS[level])
-    mesh = MeshTri(grid.p, grid.t)
-    basis = Basis(mesh, ElementTriP2())
+    mesh = MeshTri(np.ascontiguousarray(grid.p), np.ascontiguousarray(grid.t))
+    elem = ElementTriP2()
+    basis = CellBasis(mesh, elem)
 
     @BilinearForm
     def laplace(u, v, w):
-        return w["eps"] * dot(grad(u), grad(v))
+        return dot(grad(u), grad(v))
 
-    nq = basis.X.shape[-1]
-    eps_el = np.repeat(eps[grid.region][:, None], nq, axis=1)
-    k_eps = asm(laplace, basis, eps=eps_el).tocsr()
-    k_0 = asm(laplace, basis, eps=np.ones_like(eps_el)).tocsr()
+    k_regions = []
+    for r in range(len(eps)):
+        idx = np.nonzero(grid.region == r)[0]
+        k_regions.append(
+            asm(laplace, CellBasis(mesh, elem, elements=idx)).tocsr() if idx.size else None
+        )
+    present = [k for k in k_regions if k is not None]
+    k_0 = sum(present[1:], present[0])
+    k_eps = sum((e * k for e, k in zip(eps, k_regions, strict=True) if k is not None),
+                0 * present[0])
 
     sets = _facet_sets(geom, mesh, grid.box)
     sig_dofs: list[np.ndarray] = []
@@ -176,42 +200,54 @@ def _solve_fields(geom: Geometry, level: int, eps: np.ndarray):
         rhs = -(k[free][:, fixed] @ u[fixed])
         lu = splu(a, permc_spec="MMD_AT_PLUS_A")
         u[free] = lu.solve(np.ascontiguousarray(rhs)).reshape(-1, n)
-        return u
+        return u, lu
 
-    return grid, mesh, basis, k_eps, k_0, sets, solve(k_eps), solve(k_0), sig_dofs, free.size
+    u, lu_eps = solve(k_eps)
+    u0, _ = solve(k_0)
+    return _Solved(grid, mesh, basis, k_regions, k_eps, k_0, sets, u, u0, lu_eps, free)
 
 
 def fields(geom: Geometry, level: int = 1) -> Fields:
     """Potentials of a solve (not cached): for pictures and checks."""
     eps = reference_permittivities(geom)
-    grid, mesh, basis, *_rest = _solve_fields(geom, level, eps)
-    u, u0 = _rest[3], _rest[4]
-    return Fields(mesh, basis, grid, u, u0, eps)
+    sv = _solve_fields(geom, level, eps)
+    return Fields(sv.mesh, sv.basis, sv.grid, sv.u, sv.u0, eps)
 
 
 def solve_level(geom: Geometry, level: int, eps: np.ndarray | None = None) -> Solution:
     """The electrostatic results of ``geom`` at mesh ``level`` (no cache)."""
     if eps is None:
         eps = reference_permittivities(geom)
-    grid, mesh, basis, k_eps, k_0, sets, u, u0, sig_dofs, nfree = _solve_fields(
-        geom, level, eps
-    )
+    eps = np.asarray(eps, float)
+    sv = _solve_fields(geom, level, eps)
+    grid, mesh, basis, sets, u, u0 = sv.grid, sv.mesh, sv.basis, sv.sets, sv.u, sv.u0
     n = u.shape[1]
-    c_ref = EPS0 * (u.T @ (k_eps @ u))
-    c0 = EPS0 * (u0.T @ (k_0 @ u0))
+    c_ref = EPS0 * (u.T @ (sv.k_eps @ u))
+    c0 = EPS0 * (u0.T @ (sv.k_0 @ u0))
     c_ref = 0.5 * (c_ref + c_ref.T)
     c0 = 0.5 * (c0 + c0.T)
 
-    # energy partition per region
+    # energy partition F_r = dC/d eps_r and its derivatives H_rs = d2C/(d eps_r d eps_s):
+    # du/d eps_s solves K du = -K_s u on the free unknowns (one back-substitution each)
     nreg = len(eps)
     part = np.zeros((nreg, n, n))
-    grads = [basis.interpolate(u[:, i]).grad for i in range(n)]
-    dx = basis.dx
-    for i in range(n):
-        for j in range(i, n):
-            e_el = np.sum((grads[i][0] * grads[j][0] + grads[i][1] * grads[j][1]) * dx, axis=1)
-            per = np.bincount(grid.region, weights=e_el, minlength=nreg)
-            part[:, i, j] = part[:, j, i] = EPS0 * per
+    hess = np.zeros((nreg, nreg, n, n))
+    ku = [None if k is None else k @ u for k in sv.k_regions]
+    du = []
+    for s_ in range(nreg):
+        d = np.zeros_like(u)
+        if ku[s_] is not None:
+            d[sv.free] = sv.lu_eps.solve(np.ascontiguousarray(-ku[s_][sv.free])).reshape(-1, n)
+        du.append(d)
+    for r in range(nreg):
+        if ku[r] is None:
+            continue
+        part[r] = EPS0 * (u.T @ ku[r])
+        for s_ in range(nreg):
+            h = du[s_].T @ ku[r]
+            hess[r, s_] = EPS0 * (h + h.T)
+    part = 0.5 * (part + np.swapaxes(part, 1, 2))
+    hess = 0.5 * (hess + np.swapaxes(hess, 0, 1))
 
     # conductor-loss factors: Wheeler's rule G = (1/mu0) dL/dn = -eps0 C0^-1 (dC0/dn) C0^-1,
     # the closed integral of the squared vacuum surface current, through the shape
@@ -249,9 +285,8 @@ def solve_level(geom: Geometry, level: int, eps: np.ndarray | None = None) -> So
         )
     for name in sets["planes"]:
         groups.append(GroupFactor(name, "plane", -1, factor(plane_velocity(geom, grid, name))))
-    return Solution(
-        level, part, c_ref, c0, tuple(groups), tuple(lossless), mesh.t.shape[1], nfree
-    )
+    return Solution(level, part, hess, eps, c_ref, c0, tuple(groups), tuple(lossless),
+                    mesh.t.shape[1], sv.free.size)
 
 
 # -- conductor-loss factors -------------------------------------------------------------
