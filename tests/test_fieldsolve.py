@@ -128,8 +128,18 @@ def test_microstrip_against_hammerstad_jensen(u, er):
 
     h = 0.2e-3
     w = u * h
-    m = MLine(rf.Frequency(1, 1, 1, "GHz"), w=w, h=h, t=0.0, ep_r=er, tand=0.0, rho=0.0,
-              model="hammerstadjensen", disp="none", diel="frequencyinvariant")
+    m = MLine(
+        rf.Frequency(1, 1, 1, "GHz"),
+        w=w,
+        h=h,
+        t=0.0,
+        ep_r=er,
+        tand=0.0,
+        rho=0.0,
+        model="hammerstadjensen",
+        disp="none",
+        diel="frequencyinvariant",
+    )
     z_ref, e_ref = float(np.ravel(m.z0)[0].real), float(np.ravel(m.ep_reff)[0].real)
     geom = Geometry((Layer(h, ConstantDielectric(er)),), (Trace.centred(0.0, w, h, 0.0),))
     sol = fsolve.solve(geom, fsolve.LEVELS["normal"])
@@ -209,8 +219,7 @@ def test_surface_charge_integral_agrees_with_shape_derivative():
         return dot(grad(u), grad(v))
 
     w, lo, t = 5 * MIL, 5 * MIL, 0.6 * MIL
-    geom = Geometry((Layer(lo, AIR), Layer(t + lo, AIR)), (Trace.centred(0, w, lo, t),), True,
-                    True)
+    geom = Geometry((Layer(lo, AIR), Layer(t + lo, AIR)), (Trace.centred(0, w, lo, t),), True, True)
     gaps = []
     for level in (0, 1):
         sol = fsolve.solve(geom, level)
@@ -230,9 +239,13 @@ def test_one_material_everywhere_gives_eps_eff_dk_and_g_over_wc_df():
     eps_eff = Dk and G/(omega C) = Df exactly (TEM line in a homogeneous dielectric;
     common practice)."""
     d = WidebandDebye(3.8, 0.012, 10e9)
-    geom = Geometry((Layer(4 * MIL, d), Layer(5.4 * MIL, d)),
-                    (Trace.centred(0, 5 * MIL, 4 * MIL, 1.4 * MIL),), True, True)
-    f = np.array([1e6, 1e8, 1e9, 1e10, 5e10, 1e11])
+    geom = Geometry(
+        (Layer(4 * MIL, d), Layer(5.4 * MIL, d)),
+        (Trace.centred(0, 5 * MIL, 4 * MIL, 1.4 * MIL),),
+        True,
+        True,
+    )
+    f = np.array([1e6, 1e8, 1e9, 1e10, 3e10, 5e10])
     sec = FieldSection(geom, accuracy="coarse")
     m = sec.modes(f)["single"]
     dk, df = d.dk_df(f)
@@ -243,13 +256,18 @@ def test_one_material_everywhere_gives_eps_eff_dk_and_g_over_wc_df():
 def test_linearised_permittivities_match_a_direct_solve():
     """C(f) from the one energy partition at F_REF against a new solve with the layers'
     permittivities at f, for a coated microstrip whose laminate and mask disperse
-    differently (self-consistency of the second-order expansion, stated below 3e-5 of C and
-    0.01 % of G)."""
+    differently (self-consistency of the reduced model, stated within 1e-5 of C and
+    3e-5 of G; the reference drops terms of order Df^2)."""
     lam = WidebandDebye(3.7, 0.009, 10e9)
     mask = WidebandDebye(3.5, 0.025, 1e9)
     h = 4 * MIL
-    geom = Geometry((Layer(h, lam),), (Trace.centred(0, 7 * MIL, h, 1.4 * MIL),), True, False,
-                    Coating(0.8 * MIL, mask))
+    geom = Geometry(
+        (Layer(h, lam),),
+        (Trace.centred(0, 7 * MIL, h, 1.4 * MIL),),
+        True,
+        False,
+        Coating(0.8 * MIL, mask),
+    )
     sec = FieldSection(geom, accuracy="coarse")
     f = np.array([1e7, 1e11])
     _, _, g, c, _ = sec.matrices(f)
@@ -266,8 +284,7 @@ def test_linearised_permittivities_match_a_direct_solve():
 def _microstrip(top_width=None, coating=None, accuracy="coarse"):
     d = ConstantDielectric(3.7)
     h, w, t = 4 * MIL, 7 * MIL, 1.4 * MIL
-    geom = Geometry((Layer(h, d),), (Trace.centred(0, w, h, t, top_width),), True, False,
-                    coating)
+    geom = Geometry((Layer(h, d),), (Trace.centred(0, w, h, t, top_width),), True, False, coating)
     return FieldSection(geom, accuracy=accuracy).modes(np.array([1e9]))["single"]
 
 
@@ -294,8 +311,13 @@ def _pair(accuracy="coarse", coat=True):
     h, w, s, t = 4 * MIL, 5 * MIL, 6 * MIL, 1.2 * MIL
     off = (s + w) / 2
     coating = Coating(0.7 * MIL, WidebandDebye(3.5, 0.02, 1e9)) if coat else None
-    geom = Geometry((Layer(h, d),), (Trace.centred(-off, w, h, t, 4 * MIL),
-                                     Trace.centred(off, w, h, t, 4 * MIL)), True, False, coating)
+    geom = Geometry(
+        (Layer(h, d),),
+        (Trace.centred(-off, w, h, t, 4 * MIL), Trace.centred(off, w, h, t, 4 * MIL)),
+        True,
+        False,
+        coating,
+    )
     return FieldSection(geom, accuracy=accuracy)
 
 
@@ -318,8 +340,14 @@ def test_pair_matrices_symmetric_positive_definite_equal_self_terms():
 def test_pair_properties_even_odd():
     sec = _pair()
     p = sec.properties(np.array([1e9, 1e10]))
-    for key in ("z_odd_ohm", "z_even_ohm", "z_diff_ohm", "z_common_ohm", "eps_eff_odd",
-                "eps_eff_even"):
+    for key in (
+        "z_odd_ohm",
+        "z_even_ohm",
+        "z_diff_ohm",
+        "z_common_ohm",
+        "eps_eff_odd",
+        "eps_eff_even",
+    ):
         assert len(p[key]) == 2
     assert p["z_diff_ohm"][0] == pytest.approx(2 * p["z_odd_ohm"][0])
     assert p["z_even_ohm"][0] > p["z_odd_ohm"][0]  # coupling (Maxwell C12 < 0)
@@ -355,7 +383,8 @@ def test_dc_resistance_is_that_of_the_trapezoid():
 
 def test_finite_at_dc_and_extreme_frequencies():
     sec = _pair()
-    rl = sec.rlgc(np.array([0.0, 1e3, 1e12]))
+    with pytest.warns(LossLaneWarning, match="quasi-static"):  # 1 THz: not quasi-TEM
+        rl = sec.rlgc(np.array([0.0, 1e3, 1e12]))
     for a in (rl.r, rl.l, rl.g, rl.c):
         assert np.all(np.isfinite(a))
     assert np.all(rl.g[0] == 0)

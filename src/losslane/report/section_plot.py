@@ -85,9 +85,16 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     fig = Figure(figsize=(9.0, 5.2), dpi=120)
     FigureCanvasAgg(fig)
     ax = fig.add_subplot(1, 1, 1)
-    ax.tripcolor(tri, facecolors=geom_regions(fl), cmap=ListedColormap(colors),
-                 vmin=-0.5, vmax=len(colors) - 0.5, edgecolors="face", linewidth=0.3,
-                 shading="flat")
+    ax.tripcolor(
+        tri,
+        facecolors=geom_regions(fl),
+        cmap=ListedColormap(colors),
+        vmin=-0.5,
+        vmax=len(colors) - 0.5,
+        edgecolors="face",
+        linewidth=0.3,
+        shading="flat",
+    )
     levels = np.linspace(vmin, 1.0, 21 if vmin < 0 else 11)[1:-1]
     ax.tricontour(tri, phi, levels=levels, colors="#3060a0", linewidths=0.7)
 
@@ -97,32 +104,61 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     X, Y = np.meshgrid(gx, gy)
     ex, ey = LinearTriInterpolator(tri, phi).gradient(X, Y)
     ex, ey = -np.ma.filled(ex, np.nan), -np.ma.filled(ey, np.nan)
-    ax.streamplot(gx, gy, ex, ey, density=1.1, color="#c04040", linewidth=0.5,
-                  arrowsize=0.6, broken_streamlines=True)
+    ax.streamplot(
+        gx,
+        gy,
+        ex,
+        ey,
+        density=1.1,
+        color="#c04040",
+        linewidth=0.5,
+        arrowsize=0.6,
+        broken_streamlines=True,
+    )
 
     for tr in geom.traces:
         xl, xr, tl, trr = (max(min(v, x1), x0) for v in tr.corners_x)
         if tr.thickness > 0:
             pts = [(xl, tr.y), (xr, tr.y), (trr, tr.top), (tl, tr.top)]
-            ax.add_patch(Polygon(np.array(pts) * s, closed=True, facecolor=_COPPER,
-                                 edgecolor="#6b3e12", linewidth=0.8, zorder=5))
+            ax.add_patch(
+                Polygon(
+                    np.array(pts) * s,
+                    closed=True,
+                    facecolor=_COPPER,
+                    edgecolor="#6b3e12",
+                    linewidth=0.8,
+                    zorder=5,
+                )
+            )
         else:
-            ax.plot([xl * s, xr * s], [tr.y * s, tr.y * s], color=_COPPER, linewidth=2.5,
-                    zorder=5)
+            ax.plot([xl * s, xr * s], [tr.y * s, tr.y * s], color=_COPPER, linewidth=2.5, zorder=5)
     bar = 0.04 * (y1 - y0) * s
     if geom.plane_below:
-        ax.add_patch(Polygon([(x0 * s, 0), (x1 * s, 0), (x1 * s, -bar), (x0 * s, -bar)],
-                             facecolor=_COPPER, edgecolor="none", zorder=5))
+        ax.add_patch(
+            Polygon(
+                [(x0 * s, 0), (x1 * s, 0), (x1 * s, -bar), (x0 * s, -bar)],
+                facecolor=_COPPER,
+                edgecolor="none",
+                zorder=5,
+            )
+        )
     if geom.plane_above:
         yt = geom.stack_top * s
-        ax.add_patch(Polygon([(x0 * s, yt), (x1 * s, yt), (x1 * s, yt + bar), (x0 * s, yt + bar)],
-                             facecolor=_COPPER, edgecolor="none", zorder=5))
+        ax.add_patch(
+            Polygon(
+                [(x0 * s, yt), (x1 * s, yt), (x1 * s, yt + bar), (x0 * s, yt + bar)],
+                facecolor=_COPPER,
+                edgecolor="none",
+                zorder=5,
+            )
+        )
     for yf in geom.interfaces[1:-1]:
         ax.axhline(yf * s, color="#808080", linewidth=0.5, linestyle=":")
 
     ax.set_xlim(x0 * s, x1 * s)
-    ax.set_ylim(y0 * s - (bar if geom.plane_below else 0), y1 * s + (bar if geom.plane_above
-                                                                      else 0))
+    ax.set_ylim(
+        y0 * s - (bar if geom.plane_below else 0), y1 * s + (bar if geom.plane_above else 0)
+    )
     ax.set_aspect("equal")
     ax.set_xlabel("x [mil]")
     ax.set_ylabel("y [mil]")
@@ -133,8 +169,9 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     handles.append(Patch(facecolor=_COPPER, label="conductors"))
     ax.legend(handles=handles, loc="upper right", fontsize=7, framealpha=0.9)
     summary = _summary(section)
-    ax.set_title(f"{section.kind} - field solver ({section.accuracy}); {title_mode}\n{summary}",
-                 fontsize=9)
+    ax.set_title(
+        f"{section.kind} - field solver ({section.accuracy}); {title_mode}\n{summary}", fontsize=9
+    )
     fig.tight_layout()
 
     fd, tmp = tempfile.mkstemp(prefix=".losslane-", suffix=path.suffix, dir=path.parent)
@@ -162,8 +199,10 @@ def _summary(section) -> str:
     est = props["field_solver"]["error_estimate"].get("z0")
     err = "" if est is None else f"  (estimated discretisation error {100 * est:.2g} %)"
     if "z_diff_ohm" in props:
-        return (f"Z_diff {props['z_diff_ohm'][0]:.2f} ohm, Z_common {props['z_common_ohm'][0]:.2f}"
-                f" ohm, eps_eff odd {props['eps_eff_odd'][0]:.3f} {at}{err}")
+        return (
+            f"Z_diff {props['z_diff_ohm'][0]:.2f} ohm, Z_common {props['z_common_ohm'][0]:.2f}"
+            f" ohm, eps_eff odd {props['eps_eff_odd'][0]:.3f} {at}{err}"
+        )
     if "z0_ohm" in props:
         return f"Z0 {props['z0_ohm'][0]:.2f} ohm, eps_eff {props['eps_eff'][0]:.3f} {at}{err}"
     return f"{section.n_conductors} conductors"

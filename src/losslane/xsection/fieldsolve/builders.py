@@ -90,7 +90,7 @@ def _common(kind: str, g: dict[str, float], spec: Mapping, where: str):
         missing = "coating_dielectric" if cd is None else "coating_thickness"
         raise LossLaneError(
             f"{where}: {key_name(where, missing)} is missing; a coating needs both "
-            "coating_thickness and coating_dielectric (e.g. \"solder-mask\")"
+            'coating_thickness and coating_dielectric (e.g. "solder-mask")'
         )
     if c is not None:
         if kind not in _COATED:
@@ -99,9 +99,7 @@ def _common(kind: str, g: dict[str, float], spec: Mapping, where: str):
                 f"coat; coatings go on {', '.join(_COATED)}"
             )
         if not c > 0:
-            raise LossLaneError(
-                f"{key_name(where, 'coating_thickness')} = {c!r} m: it must be > 0"
-            )
+            raise LossLaneError(f"{key_name(where, 'coating_thickness')} = {c!r} m: it must be > 0")
         coating = Coating(c, cd)
     above = _dielectric(spec, where, "dielectric_above")
     if above is not None and kind not in _BURIED:
@@ -123,39 +121,56 @@ def _section(kind: str, geom: Geometry, metal: Metal, accuracy: str, labels) -> 
     return FieldSection(geom, metal, accuracy, kind, labels)
 
 
-def microstrip(g: dict[str, float], d: Dielectric, metal: Metal, spec: Mapping, where: str,
-               kind: str = "microstrip") -> FieldSection:
+def microstrip(
+    g: dict[str, float],
+    d: Dielectric,
+    metal: Metal,
+    spec: Mapping,
+    where: str,
+    kind: str = "microstrip",
+) -> FieldSection:
     acc, top, coat, _ = _common(kind, g, spec, where)
     h, t, w = g["height"], g["thickness"], g["width"]
     if kind == "microstrip-pair":
         s = g["spacing"]
         off = (s + w) / 2
-        traces = (Trace.centred(-off, w, h, t, top, "line 1"),
-                  Trace.centred(off, w, h, t, top, "line 2"))
+        traces = (
+            Trace.centred(-off, w, h, t, top, "line 1"),
+            Trace.centred(off, w, h, t, top, "line 2"),
+        )
     else:
         traces = (Trace.centred(0.0, w, h, t, top, "strip"),)
     geom = Geometry((Layer(h, d),), traces, True, False, coat)
     return _section(kind, geom, metal, acc, _labels(g, top))
 
 
-def stripline(g: dict[str, float], d: Dielectric, metal: Metal, spec: Mapping, where: str,
-              kind: str = "stripline") -> FieldSection:
+def stripline(
+    g: dict[str, float],
+    d: Dielectric,
+    metal: Metal,
+    spec: Mapping,
+    where: str,
+    kind: str = "stripline",
+) -> FieldSection:
     acc, top, _, above = _common(kind, g, spec, where)
     lo, hi, t, w = g["below"], g["above"], g["thickness"], g["width"]
     layers = (Layer(lo, d, "core"), Layer(t + hi, above or d, "prepreg"))
     if kind == "stripline-pair":
         s = g["spacing"]
         off = (s + w) / 2
-        traces = (Trace.centred(-off, w, lo, t, top, "line 1"),
-                  Trace.centred(off, w, lo, t, top, "line 2"))
+        traces = (
+            Trace.centred(-off, w, lo, t, top, "line 1"),
+            Trace.centred(off, w, lo, t, top, "line 2"),
+        )
     else:
         traces = (Trace.centred(0.0, w, lo, t, top, "strip"),)
     geom = Geometry(layers, traces, True, True)
     return _section(kind, geom, metal, acc, _labels(g, top))
 
 
-def coplanar(g: dict[str, float], d: Dielectric, metal: Metal, spec: Mapping, where: str,
-             grounded: bool) -> FieldSection:
+def coplanar(
+    g: dict[str, float], d: Dielectric, metal: Metal, spec: Mapping, where: str, grounded: bool
+) -> FieldSection:
     kind = "gcpw" if grounded else "cpw"
     acc, top, coat, _ = _common(kind, g, spec, where)
     h, t, w, gap = g["height"], g["thickness"], g["width"], g["gap"]

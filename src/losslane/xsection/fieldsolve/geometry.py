@@ -173,8 +173,7 @@ class Geometry:
         """Everything the electrostatic solve depends on (hashable): the shapes and each
         region's permittivity at ``F_REF``. Metals and loss tangents do not enter."""
         eps = tuple(
-            1.0 if d is None else float(d.eps(np.array([F_REF]))[0].real)
-            for _, d in self.regions()
+            1.0 if d is None else float(d.eps(np.array([F_REF]))[0].real) for _, d in self.regions()
         )
         layers = tuple(ly.thickness for ly in self.layers)
         traces = tuple(
@@ -202,9 +201,7 @@ class Geometry:
         if self.coating is not None:
             c = self.coating.thickness
             if not (math.isfinite(c) and c > 0):
-                raise LossLaneError(
-                    f"field solver: coating_thickness = {c!r} m; it must be > 0"
-                )
+                raise LossLaneError(f"field solver: coating_thickness = {c!r} m; it must be > 0")
             if self.plane_above:
                 raise LossLaneError(
                     "field solver: a coating needs an open top face (no upper plane)"
@@ -242,11 +239,13 @@ class Geometry:
                     continue
                 if ta.thickness == 0 and tb.thickness == 0 and abs(ta.y - tb.y) > self.tol:
                     continue
-                lo_a, hi_a = min(ta.corners_x[0], ta.corners_x[2]), max(
-                    ta.corners_x[1], ta.corners_x[3]
+                lo_a, hi_a = (
+                    min(ta.corners_x[0], ta.corners_x[2]),
+                    max(ta.corners_x[1], ta.corners_x[3]),
                 )
-                lo_b, hi_b = min(tb.corners_x[0], tb.corners_x[2]), max(
-                    tb.corners_x[1], tb.corners_x[3]
+                lo_b, hi_b = (
+                    min(tb.corners_x[0], tb.corners_x[2]),
+                    max(tb.corners_x[1], tb.corners_x[3]),
                 )
                 if lo_a < hi_b + self.tol and lo_b < hi_a + self.tol:
                     raise LossLaneError(

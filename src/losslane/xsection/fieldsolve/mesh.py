@@ -204,8 +204,11 @@ def build_mesh(geom: Geometry, prm: MeshParams) -> GridMesh:
     faces = list(geom.interfaces)
     gaps = np.diff(geom.interfaces)
     for i, y in enumerate(faces):
-        near = [g for g in (gaps[i - 1] if i > 0 else None, gaps[i] if i < len(gaps) else None)
-                if g is not None]
+        near = [
+            g
+            for g in (gaps[i - 1] if i > 0 else None, gaps[i] if i < len(gaps) else None)
+            if g is not None
+        ]
         ykeys.add(float(y), prm.face * min(near))
     for tr in geom.traces:
         feat = _feature_size(geom, tr)

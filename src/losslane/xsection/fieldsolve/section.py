@@ -1,23 +1,24 @@
 """The field-solved cross-section: per-unit-length R, L, G, C (N, n, n) over frequency.
 
 From one electrostatic solve at the layers' permittivities at ``F_REF`` (and one in
-vacuum) the line constants at any frequency follow without another solve, from the
-energy partition F_r = dC/d eps_r of each region r and its derivatives
-H_rs = d2C/(d eps_r d eps_s) (one back-substitution per region):
+vacuum) the line constants at any frequency follow without another solve:
 
-* C(f) = sum_r eps_r'(f) F_r + 1/2 sum_rs D_r D_s H_rs, D_r = eps_r'(f) - eps_r'(F_REF):
-  C is homogeneous of degree one in the permittivities (Euler), so the first sum alone
-  is exact at F_REF and whenever all regions keep their ratios (one material
-  everywhere: eps_eff = Dk exactly); the H term makes it second-order accurate in the
-  relative changes between regions (error third order, below 3e-5 of C for the
-  wideband Debye laminates and masks of the tests between 10 MHz and 100 GHz);
-* G(f) = omega sum_r eps_r''(f) F_r(f), F_r(f) = F_r + sum_s H_rs D_s: each region's
-  share of the field energy times its loss (eps'' = Dk Df), with the share taken at
-  eps'(f) to first order; the neglected terms are of relative order Df^2 (below 0.1 %
-  for Df <= 0.03) and of second order in D (below 0.01 % in the tests). Without the H
-  term the error would be first order (0.75 % of G at 10 MHz for a coated microstrip
-  whose mask disperses more than its laminate). With causal layer models C and G stay
-  a Kramers-Kronig pair to that order.
+* the energy partition F_r = eps0 int_r |grad phi|^2 = dC/d eps_r gives each region's
+  share of the field energy; C(eps) is homogeneous of degree one in the permittivities,
+  so sum_r eps_r F_r is exact at F_REF and whenever all regions keep their ratios (one
+  material everywhere: eps_eff = Dk and G/(omega C) = Df exactly);
+* for other frequencies the complex C(f) - j G(f)/omega = C(eps_r(f)) with
+  eps_r(f) = eps' - j eps'' of each layer is evaluated by a reduced Galerkin model of the
+  potential (the solve's potentials, their sensitivities to each region's
+  permittivity, and the vacuum potentials; ``solve.py``). The capacitance is stationary
+  in the potential, so the error is the square of the reduced potential's: fourth order
+  in the relative changes of the permittivities between regions. Measured on a coated
+  microstrip whose mask disperses more than its laminate (10 MHz .. 100 GHz): C within
+  1e-5 and G within 3e-5 of a direct solve at each frequency's real permittivities
+  (that reference drops terms of order Df^2, which is most of the difference); the
+  first-order partition alone would be off by 0.75 % of G at 10 MHz. The loss tangent
+  enters exactly (complex permittivities, not a small-Df expansion), so with causal
+  layer models C and G form a Kramers-Kronig pair to that accuracy.
 * L = L_ext + L_int(f): L_ext = mu0 eps0 C0^-1 from the vacuum capacitance;
 * R(f) + j omega L_int(f): per conductor group the surface-current factor G^g of the
   vacuum solution (``solve.py``) joined to the exact DC resistance by the slab internal
@@ -38,7 +39,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from losslane.errors import LossLaneError, warn
+from losslane.errors import LossLaneError, check_range, warn
 from losslane.materials.conductor import internal_impedance
 from losslane.materials.dielectric import Dielectric
 from losslane.xsection.base import CrossSection, Metal
@@ -87,8 +88,9 @@ class FieldSection(CrossSection):
         g = self.geometry
         tr = g.signals[0]
         faces = g.interfaces
-        idx = int(np.clip(np.searchsorted(faces, tr.y + 0.5 * tr.thickness) - 1, 0,
-                          len(g.layers) - 1))
+        idx = int(
+            np.clip(np.searchsorted(faces, tr.y + 0.5 * tr.thickness) - 1, 0, len(g.layers) - 1)
+        )
         if tr.y >= g.stack_top - g.tol:
             idx = len(g.layers) - 1
         return g.layers[idx].dielectric
@@ -110,14 +112,15 @@ class FieldSection(CrossSection):
         sol = sol or self.solution()
         n = sol.c0.shape[0]
         omega = 2 * np.pi * f
-        eps = np.array([np.ones(f.shape, complex) if d is None else d.eps(f)
-                        for _, d in self.geometry.regions()])  # (regions, N)
-        delta = eps.real - sol.eps_ref[:, None]
-        # partition at eps'(f) to first order, C to second order (see the module docstring)
-        part_f = sol.partition[:, None] + np.einsum("rsij,sf->rfij", sol.hessian, delta)
-        c = np.einsum("rf,rij->fij", eps.real, sol.partition) + 0.5 * np.einsum(
-            "rf,sf,rsij->fij", delta, delta, sol.hessian)
-        g = omega[:, None, None] * np.einsum("rf,rfij->fij", -eps.imag, part_f)
+        eps = np.array(
+            [
+                np.ones(f.shape, complex) if d is None else d.eps(f)
+                for _, d in self.geometry.regions()
+            ]
+        )  # (regions, N), eps' - j eps''
+        cc = complex_capacitance(sol, eps)
+        c = cc.real.copy()
+        g = -omega[:, None, None] * cc.imag
         l_ext = np.broadcast_to(np.linalg.inv(sol.c0) / C0**2, f.shape + (n, n))
         r = np.zeros(f.shape + (n, n))
         l_int = np.zeros(f.shape + (n, n))
@@ -142,6 +145,14 @@ class FieldSection(CrossSection):
                 l_int += lg[:, None, None] * grp.matrix
         return r, l_ext + l_int, g, c, np.array(l_ext)
 
+    def check_validity(self, f: np.ndarray) -> None:
+        """Quasi-TEM holds while the cross-section is small against the wavelength in its
+        densest dielectric (common practice: below a tenth of it)."""
+        g = self.geometry
+        dk = max([1.0] + [float(np.max(d.eps(f).real)) for _, d in g.regions() if d is not None])
+        size = g.scale * np.sqrt(dk) * np.max(f, initial=0.0) / C0
+        check_range("field solver (quasi-static)", "cross-section size/wavelength", size, 0, 0.1)
+
     def _warn_lossless(self, sol: Solution) -> None:
         if sol.lossless:
             warn(
@@ -153,6 +164,7 @@ class FieldSection(CrossSection):
     def rlgc(self, f: np.ndarray) -> RLGC:
         f = np.atleast_1d(np.asarray(f, float))
         sol = self.solution()
+        self.check_validity(f)
         self._warn_lossless(sol)
         r, l, g, c, _ = self.matrices(f, sol)
         return RLGC(f, r, l, g, c)
@@ -160,6 +172,7 @@ class FieldSection(CrossSection):
     def modes(self, f: np.ndarray) -> dict[str, Mode]:
         f = np.atleast_1d(np.asarray(f, float))
         sol = self.solution()
+        self.check_validity(f)
         self._warn_lossless(sol)
         return self._modes(f, sol)
 
@@ -168,8 +181,17 @@ class FieldSection(CrossSection):
         n = c.shape[-1]
         c0 = sol.c0
         if n == 1:
-            return {"single": _mode("single", r[:, 0, 0], l[:, 0, 0], g[:, 0, 0], c[:, 0, 0],
-                                    l_ext[:, 0, 0], float(c0[0, 0]))}
+            return {
+                "single": _mode(
+                    "single",
+                    r[:, 0, 0],
+                    l[:, 0, 0],
+                    g[:, 0, 0],
+                    c[:, 0, 0],
+                    l_ext[:, 0, 0],
+                    float(c0[0, 0]),
+                )
+            }
         if n != 2:
             raise LossLaneError(
                 f"field solver: {n} signal conductors have no even/odd modes; use rlgc() "
@@ -186,8 +208,15 @@ class FieldSection(CrossSection):
 
         out = {}
         for name, s in (("even", 1.0), ("odd", -1.0)):
-            out[name] = _mode(name, split(r, s), split(l, s), split(g, s), split(c, s),
-                              split(l_ext, s), float(split(c0, s)))
+            out[name] = _mode(
+                name,
+                split(r, s),
+                split(l, s),
+                split(g, s),
+                split(c, s),
+                split(l_ext, s),
+                float(split(c0, s)),
+            )
         return out
 
     # -- reporting --------------------------------------------------------------------
@@ -201,8 +230,9 @@ class FieldSection(CrossSection):
         }
         gf = _total_factor(fine)
         gc = _total_factor(coarse)
-        out["conductor_loss"] = relative_change(gf, gc) if gf is not None and gc is not None \
-            else None
+        out["conductor_loss"] = (
+            relative_change(gf, gc) if gf is not None and gc is not None else None
+        )
         zf, zc = _static_modes(fine), _static_modes(coarse)
         out["z0"] = max(abs(zf[k][0] / zc[k][0] - 1) for k in zf) if zf else None
         out["eps_eff"] = max(abs(zf[k][1] / zc[k][1] - 1) for k in zf) if zf else None
@@ -225,9 +255,16 @@ class FieldSection(CrossSection):
             out = super().properties(f)
         else:
             rl = self.rlgc(f)
-            out = {"kind": self.kind, "frequencies_hz": f.tolist(), "rlgc": {
-                "r_ohm_per_m": rl.r.tolist(), "l_h_per_m": rl.l.tolist(),
-                "g_s_per_m": rl.g.tolist(), "c_f_per_m": rl.c.tolist()}}
+            out = {
+                "kind": self.kind,
+                "frequencies_hz": f.tolist(),
+                "rlgc": {
+                    "r_ohm_per_m": rl.r.tolist(),
+                    "l_h_per_m": rl.l.tolist(),
+                    "g_s_per_m": rl.g.tolist(),
+                    "c_f_per_m": rl.c.tolist(),
+                },
+            }
             _, _, _, c, l_ext = self.matrices(f)
             # modal velocities of the lossless line: eigenvalues of L_ext C = eps_eff / c0^2
             lam = np.linalg.eigvals(l_ext @ c).real * C0**2
@@ -235,6 +272,17 @@ class FieldSection(CrossSection):
         out["solver"] = "field"
         out["field_solver"] = self.solver_report()
         return out
+
+
+def complex_capacitance(sol: Solution, eps: np.ndarray) -> np.ndarray:
+    """C - j G/omega (N, n, n) for region permittivities ``eps`` (regions, N), complex,
+    from the solve's reduced model: C = P - Q^T R^-1 Q with P, Q, R linear in eps."""
+    p = np.einsum("rf,rij->fij", eps, sol.partition)
+    if sol.reduced_r.shape[1] == 0:
+        return p
+    q = np.einsum("rf,rki->fki", eps, sol.reduced_q)
+    r = np.einsum("rf,rkl->fkl", eps, sol.reduced_r)
+    return p - np.einsum("fki,fkj->fij", q, np.linalg.solve(r, q))
 
 
 def _mode(name: str, r, l, g, c, l_ext, c0: float) -> Mode:

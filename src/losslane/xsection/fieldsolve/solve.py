@@ -71,7 +71,8 @@ class Solution:
 
     level: int
     partition: np.ndarray  # (regions, n, n) F/m per unit relative permittivity
-    hessian: np.ndarray  # (regions, regions, n, n) derivatives of the partition
+    reduced_q: np.ndarray  # (regions, m, n) reduced model of C(eps), see solve_level
+    reduced_r: np.ndarray  # (regions, m, m)
     eps_ref: np.ndarray  # (regions,) the permittivities of the solve
     c_ref: np.ndarray  # (n, n) at the reference permittivities
     c0: np.ndarray  # (n, n) vacuum
@@ -173,8 +174,9 @@ def _solve_fields(geom: Geometry, level: int, eps: np.ndarray) -> _Solved:
         )
     present = [k for k in k_regions if k is not None]
     k_0 = sum(present[1:], present[0])
-    k_eps = sum((e * k for e, k in zip(eps, k_regions, strict=True) if k is not None),
-                0 * present[0])
+    k_eps = sum(
+        (e * k for e, k in zip(eps, k_regions, strict=True) if k is not None), 0 * present[0]
+    )
 
     sets = _facet_sets(geom, mesh, grid.box)
     sig_dofs: list[np.ndarray] = []
@@ -227,27 +229,38 @@ def solve_level(geom: Geometry, level: int, eps: np.ndarray | None = None) -> So
     c_ref = 0.5 * (c_ref + c_ref.T)
     c0 = 0.5 * (c0 + c0.T)
 
-    # energy partition F_r = dC/d eps_r and its derivatives H_rs = d2C/(d eps_r d eps_s):
-    # du/d eps_s solves K du = -K_s u on the free unknowns (one back-substitution each)
+    # energy partition F_r = eps0 u^T K_r u = dC/d eps_r, and a reduced model of C(eps)
+    # for any (complex) region permittivities: Galerkin on u + span(W), W = the
+    # sensitivities du/d eps_s (K du = -K_s u: one back-substitution each) and the
+    # change to the vacuum solution; C = P - Q^T R^-1 Q is stationary, so its error is
+    # the square of that of the reduced potential (fourth order in the changes of eps)
     nreg = len(eps)
-    part = np.zeros((nreg, n, n))
-    hess = np.zeros((nreg, nreg, n, n))
     ku = [None if k is None else k @ u for k in sv.k_regions]
-    du = []
+    cols = [u0 - u]
     for s_ in range(nreg):
-        d = np.zeros_like(u)
         if ku[s_] is not None:
+            d = np.zeros_like(u)
             d[sv.free] = sv.lu_eps.solve(np.ascontiguousarray(-ku[s_][sv.free])).reshape(-1, n)
-        du.append(d)
+            cols.append(d)
+    w = np.hstack(cols)
+    gram = w.T @ (sv.k_0 @ w)
+    lam, vec = np.linalg.eigh(0.5 * (gram + gram.T))
+    keep = lam > 1e-11 * lam.max()
+    w = w @ (vec[:, keep] / np.sqrt(lam[keep]))
+    m = w.shape[1]
+    part = np.zeros((nreg, n, n))
+    red_q = np.zeros((nreg, m, n))
+    red_r = np.zeros((nreg, m, m))
     for r in range(nreg):
-        if ku[r] is None:
+        k = sv.k_regions[r]
+        if k is None:
             continue
+        kw = k @ w
         part[r] = EPS0 * (u.T @ ku[r])
-        for s_ in range(nreg):
-            h = du[s_].T @ ku[r]
-            hess[r, s_] = EPS0 * (h + h.T)
+        red_q[r] = EPS0 * (w.T @ ku[r])
+        red_r[r] = EPS0 * (w.T @ kw)
     part = 0.5 * (part + np.swapaxes(part, 1, 2))
-    hess = 0.5 * (hess + np.swapaxes(hess, 0, 1))
+    red_r = 0.5 * (red_r + np.swapaxes(red_r, 1, 2))
 
     # conductor-loss factors: Wheeler's rule G = (1/mu0) dL/dn = -eps0 C0^-1 (dC0/dn) C0^-1,
     # the closed integral of the squared vacuum surface current, through the shape
@@ -280,13 +293,25 @@ def solve_level(geom: Geometry, level: int, eps: np.ndarray | None = None) -> So
             lossless.append(label)
     if ground_t:
         groups.append(
-            GroupFactor("coplanar grounds", "ground", -1, factor(ground_vel),
-                        thickness=float(min(ground_t)))
+            GroupFactor(
+                "coplanar grounds", "ground", -1, factor(ground_vel), thickness=float(min(ground_t))
+            )
         )
     for name in sets["planes"]:
         groups.append(GroupFactor(name, "plane", -1, factor(plane_velocity(geom, grid, name))))
-    return Solution(level, part, hess, eps, c_ref, c0, tuple(groups), tuple(lossless),
-                    mesh.t.shape[1], sv.free.size)
+    return Solution(
+        level,
+        part,
+        red_q,
+        red_r,
+        eps,
+        c_ref,
+        c0,
+        tuple(groups),
+        tuple(lossless),
+        mesh.t.shape[1],
+        sv.free.size,
+    )
 
 
 # -- conductor-loss factors -------------------------------------------------------------
@@ -302,8 +327,9 @@ def _neighbours(keys: np.ndarray, lo: float, hi: float, tol: float) -> tuple[flo
 def _ramp(v: np.ndarray, pts: list[float], vals: list[float]) -> np.ndarray:
     """Piecewise-linear profile through (pts, vals), zero outside; tolerates repeats."""
     out = np.zeros(v.shape)
-    for (a, fa), (b, fb) in zip(zip(pts[:-1], vals[:-1], strict=True),
-                                zip(pts[1:], vals[1:], strict=True), strict=True):
+    for (a, fa), (b, fb) in zip(
+        zip(pts[:-1], vals[:-1], strict=True), zip(pts[1:], vals[1:], strict=True), strict=True
+    ):
         if b <= a:
             continue
         sel = (v >= a) & (v <= b)
@@ -397,8 +423,9 @@ def shape_derivative(mesh, basis, u: np.ndarray, vel: np.ndarray) -> np.ndarray:
     return out
 
 
-def charge_factor(mesh, basis, reaction: np.ndarray, facets: np.ndarray,
-                  c0_inv: np.ndarray) -> np.ndarray:
+def charge_factor(
+    mesh, basis, reaction: np.ndarray, facets: np.ndarray, c0_inv: np.ndarray
+) -> np.ndarray:
     """The same factor from the surface charge directly: the L2 projection of the
     finite-element reactions on the conductor's surface, closed integral of sigma_i
     sigma_j, converted to unit currents (a cross-check; it converges slowly because
@@ -452,8 +479,7 @@ def clear_cache() -> None:
 def level_of(accuracy: str) -> int:
     if accuracy not in LEVELS:
         raise LossLaneError(
-            f"accuracy = {accuracy!r}: valid settings are "
-            + ", ".join(repr(k) for k in LEVELS)
+            f"accuracy = {accuracy!r}: valid settings are " + ", ".join(repr(k) for k in LEVELS)
         )
     return LEVELS[accuracy]
 
