@@ -163,7 +163,10 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     ax.set_xlabel("x [mil]")
     ax.set_ylabel("y [mil]")
     handles = []
-    for (name, diel), col in zip(regions, colors, strict=True):
+    present = set(np.unique(fl.grid.region).tolist())
+    for i, ((name, diel), col) in enumerate(zip(regions, colors, strict=True)):
+        if i not in present:
+            continue
         label = name if diel is None else f"{name}: Dk {diel.dk:g}, Df {diel.df:g}"
         handles.append(Patch(facecolor=col, edgecolor="#808080", label=label))
     handles.append(Patch(facecolor=_COPPER, label="conductors"))
