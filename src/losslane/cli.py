@@ -110,6 +110,66 @@ def _material_options(func):
     return func
 
 
+#: field-solver options of `losslane line` (scenario keys of the same names)
+FIELD_OPTIONS = (
+    "top_width",
+    "etch_factor",
+    "coating_thickness",
+    "coating_dielectric",
+    "dielectric_above",
+    "accuracy",
+)
+
+
+def _field_options(func):
+    opts = [
+        click.option(
+            "--top-width",
+            "top_width",
+            metavar="LENGTH",
+            help="field solver: top width of an etched trace (width is the base)",
+        ),
+        click.option(
+            "--etch-factor",
+            "etch_factor",
+            type=float,
+            help="field solver: 2 x thickness / (width - top width)",
+        ),
+        click.option(
+            "--coating-thickness",
+            "coating_thickness",
+            metavar="LENGTH",
+            help="field solver: solder-mask thickness over the outer layer",
+        ),
+        click.option(
+            "--coating-dielectric",
+            "coating_dielectric",
+            metavar="NAME",
+            help="field solver: the coating's dielectric (e.g. solder-mask)",
+        ),
+        click.option(
+            "--dielectric-above",
+            "dielectric_above",
+            metavar="NAME",
+            help="field solver: stripline prepreg above the trace, if not --dielectric",
+        ),
+        click.option(
+            "--accuracy",
+            type=click.Choice(["coarse", "normal", "fine"]),
+            help="field solver: mesh setting (default normal)",
+        ),
+        click.option(
+            "--plot",
+            "plot",
+            metavar="FILE",
+            help="field solver: draw the cross-section and its field (.png/.svg/.pdf)",
+        ),
+    ]
+    for opt in reversed(opts):
+        func = opt(func)
+    return func
+
+
 def line_spec(kind: str, options: dict, where) -> dict:
     """Scenario-style spec from the `line`-family options (shared by size/compare/spread)."""
     from losslane.materials.dielectric import make_dielectric
@@ -174,6 +234,9 @@ def line_spec(kind: str, options: dict, where) -> dict:
         spec["conductivity"] = options["conductivity"]
     if options.get("solver") is not None:
         spec["solver"] = options["solver"]
+    for name in FIELD_OPTIONS:
+        if options.get(name) is not None:
+            spec[name] = options[name]
     return spec
 
 
@@ -197,7 +260,8 @@ def line_spec(kind: str, options: dict, where) -> dict:
     help="frequencies, comma-separated (e.g. 1GHz,10GHz or 1,10,28GHz)",
 )
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
-def line_command(kind: str, at: str, as_json: bool, **options) -> None:
+@_field_options
+def line_command(kind: str, at: str, as_json: bool, plot: str | None = None, **options) -> None:
     """Impedance, delay, loss per inch and RLGC of one cross-section.
 
     KIND is microstrip, stripline, cpw, gcpw, microstrip-pair or stripline-pair.
@@ -217,6 +281,10 @@ def line_command(kind: str, at: str, as_json: bool, **options) -> None:
         freqs = parse_frequency_list(at, "--at")
         section = section_from_spec(spec, where, lib.dielectric, lib.foil)
         props = section.properties(freqs)
+        if plot is not None:
+            from losslane.report.section_plot import plot_section
+
+            plot_section(section, plot, "--plot")
         if as_json:
             click.echo(json.dumps(props))
         else:
@@ -240,6 +308,14 @@ def describe(section) -> str:
     metal = getattr(section, "metal", None)
     if metal is not None:
         parts.append(f"foil {metal.foil.model}")
+    report = getattr(section, "solver_report", None)
+    if report is not None:
+        est = report()["error_estimate"].get("z0")
+        parts.append(
+            f"field solver ({section.accuracy}"
+            + ("" if est is None else f", estimated error of Z0 {100 * est:.2g} %")
+            + ")"
+        )
     return ", ".join(parts)
 
 

@@ -139,7 +139,9 @@ def section_from_spec(
                 f"{key_name(where, 'solver')} = 'field': the field solver is "
                 f"not available for kind {kind!r}"
             )
-        return FIELD_BUILDERS[kind](geometry, d, metal, spec, where)
+        return FIELD_BUILDERS[kind](
+            geometry, d, metal, _field_dielectrics(spec, where, dielectric), where
+        )
     return ks.build(geometry, d, metal)
 
 
@@ -174,3 +176,30 @@ def _name(where: str, spec: Mapping, key: str) -> str:
     if not isinstance(v, str):
         raise LossLaneError(f"{key_name(where, key)} = {v!r}: expected a name")
     return v
+
+
+#: extra keys of the field solver whose values name dielectrics (resolved like "dielectric")
+FIELD_DIELECTRIC_KEYS: tuple[str, ...] = ()
+
+
+def _field_dielectrics(
+    spec: Mapping, where: str, dielectric: Callable[[str, str], Dielectric]
+) -> dict:
+    out = dict(spec)
+    for key in FIELD_DIELECTRIC_KEYS:
+        if key in out and not isinstance(out[key], Dielectric):
+            out[key] = dielectric(_name(where, spec, key), key_name(where, key))
+    return out
+
+
+def _register_field_solver() -> None:
+    """Builders and extra keys of the 2-D field solver (xsection/fieldsolve/builders.py)."""
+    global FIELD_KEYS, FIELD_DIELECTRIC_KEYS
+    from losslane.xsection.fieldsolve import builders
+
+    FIELD_BUILDERS.update(builders.BUILDERS)
+    FIELD_KEYS = tuple(dict.fromkeys(FIELD_KEYS + builders.EXTRA_KEYS))
+    FIELD_DIELECTRIC_KEYS = tuple(dict.fromkeys(FIELD_DIELECTRIC_KEYS + builders.DIELECTRIC_KEYS))
+
+
+_register_field_solver()

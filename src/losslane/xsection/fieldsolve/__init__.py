@@ -1,0 +1,13 @@
+"""2-D quasi-static field solver: layered cross-sections with trapezoidal conductors and
+conformal coatings, solved by finite elements (scikit-fem) into per-unit-length RLGC.
+
+Modules: ``geometry`` (the description), ``mesh`` (graded boundary-fitted triangles),
+``solve`` (electrostatics, energy partition, surface-current loss factors, cache),
+``section`` (the CrossSection giving R, L, G, C over frequency), ``builders`` (the
+scenario kinds mapped onto it), ``plot`` (a picture of the section and its field).
+scikit-fem and matplotlib are imported only inside the functions that use them.
+"""
+
+from losslane.xsection.fieldsolve.geometry import Coating, Geometry, Layer, Trace
+
+__all__ = ["Coating", "Geometry", "Layer", "Trace"]
