@@ -176,3 +176,44 @@ def test_differential_demo_writes_s4p_and_mixed_mode_plot(tmp_path, capsys) -> N
     assert "sensor-lane-mixed-mode.png" in names
     net = skrf.Network(str(tmp_path / "demo" / "sensor-lane.s4p"))
     assert net.nports == 4 and net.f[0] == 0.0
+
+
+def test_field_solver_coated_trapezoidal_pair_builds_an_s4p(tmp_path, capsys) -> None:
+    # The issue's end-to-end case: a coated, etched (trapezoidal) differential pair from the
+    # 2-D field solver, in a scenario, cascaded and written as a 4-port Touchstone file.
+    text = """
+name = "coated pair"
+[sweep]
+start = "0 Hz"
+stop = "20 GHz"
+step = "100 MHz"
+[lines.top]
+kind = "microstrip-pair"
+solver = "field"
+accuracy = "coarse"
+width = "5 mil"
+top_width = "4 mil"
+spacing = "7 mil"
+height = "4 mil"
+thickness = "1.4 mil"
+dielectric = "low-loss"
+coating_thickness = "0.8 mil"
+coating_dielectric = "solder-mask"
+[[channel]]
+line = "top"
+length = "2 in"
+[[channel]]
+via = { barrel = "50 mil", stub = "10 mil", impedance = "46 ohm", dielectric = "low-loss" }
+[[channel]]
+line = "top"
+length = "1 in"
+"""
+    p = tmp_path / "coated.toml"
+    p.write_text(text)
+    rc = main(["build", str(p), "--out", str(tmp_path / "out"), "--no-plots"])
+    assert rc == 0, capsys.readouterr().err
+    net = skrf.Network(str(tmp_path / "out" / "coated-pair.s4p"))
+    assert net.nports == 4
+    assert np.all(net.is_passive()) and net.is_reciprocal(tol=1e-9)
+    # symmetric pair: no mode conversion (Bockelman & Eisenstadt 1995)
+    assert np.abs(mixed_mode(net.s, 50.0).cd[:, 1, 0]).max() < 1e-3
