@@ -75,6 +75,21 @@ class ChannelResult:
         """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
         return self.cumulative_loss_db[-1]
 
+    def return_loss_db(self) -> tuple[np.ndarray, np.ndarray]:
+        """Return loss (positive dB) of the main mode at the input and at the output, (N,)
+        each: |S11|, |S22| of a single-ended channel, |Sdd11|, |Sdd22| of a pair."""
+        from losslane.network.ports import from_order
+
+        s = np.asarray(self.network.s)
+        if self.nports == 2:
+            s11, s22 = s[:, 0, 0], s[:, 1, 1]
+        else:
+            si = from_order(s, 2, self.scenario.ports.order)  # near 1, 2; far 3, 4
+            s11 = 0.5 * (si[:, 0, 0] - si[:, 0, 1] - si[:, 1, 0] + si[:, 1, 1])
+            s22 = 0.5 * (si[:, 2, 2] - si[:, 2, 3] - si[:, 3, 2] + si[:, 3, 3])
+        with np.errstate(divide="ignore"):
+            return tuple(-20.0 * np.log10(np.maximum(np.abs(x), 1e-300)) for x in (s11, s22))
+
 
 def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:
     """Insertion loss (positive dB) of the main mode between matched references: S21 of a

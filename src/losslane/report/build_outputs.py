@@ -9,7 +9,7 @@ from __future__ import annotations
 import re
 import shutil
 import tempfile
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from pathlib import Path
 
 import numpy as np
@@ -62,18 +62,7 @@ def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
 
 def reflection_db(result: ChannelResult) -> tuple[np.ndarray, np.ndarray]:
     """Return loss (positive dB) at the input and the output of the main mode."""
-    s = result.network.s
-    if result.nports == 2:
-        return -to_db(s[:, 0, 0]), -to_db(s[:, 1, 1])
-    from losslane.network.ports import port_permutation
-
-    # back to internal order (near 1, 2; far 3, 4) for the mixed-mode formulas
-    perm = port_permutation(2, result.scenario.ports.order)
-    inv = np.argsort(perm)
-    si = s[:, inv][:, :, inv]
-    sdd11 = 0.5 * (si[:, 0, 0] - si[:, 0, 1] - si[:, 1, 0] + si[:, 1, 1])
-    sdd22 = 0.5 * (si[:, 2, 2] - si[:, 2, 3] - si[:, 3, 2] + si[:, 3, 3])
-    return -to_db(sdd11), -to_db(sdd22)
+    return result.return_loss_db()
 
 
 def summary_rows(result: ChannelResult) -> list[dict]:
@@ -190,7 +179,8 @@ def write_build(
         shutil.rmtree(stage, ignore_errors=True)
 
 
-def summary_text(result: ChannelResult, files: list[Path]) -> str:
+def summary_text(result: ChannelResult, files: list[Path], sections: Sequence[str] = ()) -> str:
+    """The terminal summary; ``sections`` (e.g. the loss budget) go before the file list."""
     sc = result.scenario
     mode = "" if result.nports == 2 else " (differential mode)"
     rows = [
@@ -218,6 +208,9 @@ def summary_text(result: ChannelResult, files: list[Path]) -> str:
             rows,
         ),
     ]
+    for sec in sections:
+        if sec:
+            out += ["", sec]
     if files:
         out += ["", "files written:"] + [f"  {p}" for p in files]
     out += ["", CAUTION]
