@@ -17,7 +17,7 @@ import numpy as np
 from losslane import __version__
 from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
-from losslane.report.channel_plots import Curve, Marker, db_plot, to_db
+from losslane.report.channel_plots import Curve, Marker, db_plot
 from losslane.report.tables import CAUTION, table
 
 
