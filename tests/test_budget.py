@@ -299,3 +299,17 @@ def test_row_name() -> None:
 def test_small_channel_budget_passes() -> None:
     b = evaluate_budget(build_channel(parse(scenario_text(SMALL_CHANNEL, PASSING_BUDGET))))
     assert b.passed and b.nyquist.at == 5e9 and b.nyquist.margin_db > 0
+
+
+@pytest.mark.parametrize(
+    ("budget", "key"),
+    [
+        (Budget(10e9, "nrz", -16.0, ()), "[budget].max_loss = -16 dB"),
+        (Budget(None, "nrz", None, (Check(2e9, None, -10.0),)), "#1.min_return_loss = -10 dB"),
+        (Budget(None, "nrz", None, (Check(2e9, 0.0, None),)), "#1.max_loss = 0 dB"),
+    ],
+)
+def test_limits_are_positive_db(budget: Budget, key: str) -> None:
+    with pytest.raises(LossLaneError, match="positive dB") as exc:
+        check_points(budget, np.linspace(0, 20e9, 401))
+    assert key in str(exc.value)

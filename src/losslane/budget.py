@@ -102,6 +102,14 @@ def _in_sweep(where: str, x: float, f: np.ndarray) -> None:
         )
 
 
+def _positive_limit(where: str, value: float | None) -> None:
+    if value is not None and not value > 0:
+        raise LossLaneError(
+            f"{where} = {value:g} dB: losses are given as positive dB (e.g. \"16 dB\" for "
+            "|S21| = -16 dB); use a value > 0"
+        )
+
+
 def check_points(budget, f: np.ndarray) -> list[CheckPoint]:
     """The budget's check points, Nyquist first, each checked to lie inside the sweep ``f``.
 
@@ -110,6 +118,10 @@ def check_points(budget, f: np.ndarray) -> list[CheckPoint]:
     if budget is None:
         return []
     f = np.asarray(f, dtype=float)
+    _positive_limit("[budget].max_loss", budget.max_loss)
+    for i, c in enumerate(budget.checks):
+        _positive_limit(f"[[budget.check]] #{i + 1}.max_loss", c.max_loss)
+        _positive_limit(f"[[budget.check]] #{i + 1}.min_return_loss", c.min_return_loss)
     out = []
     if budget.data_rate is not None:
         fn = nyquist_frequency(budget.data_rate, budget.modulation)

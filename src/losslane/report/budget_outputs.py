@@ -172,6 +172,9 @@ def report_html(
         f"built by losslane {__version__} from "
         + (sc.path.name if sc.path is not None else "a scenario"),
     ]
+    models = [seg.path.name for seg in sc.channel if seg.type == "touchstone" and seg.path]
+    if models:
+        meta.append("imported Touchstone models: " + ", ".join(models))
     return render_report(
         title=f"{sc.name}: channel report",
         meta=meta,
