@@ -105,7 +105,7 @@ def _in_sweep(where: str, x: float, f: np.ndarray) -> None:
 def _positive_limit(where: str, value: float | None) -> None:
     if value is not None and not value > 0:
         raise LossLaneError(
-            f"{where} = {value:g} dB: losses are given as positive dB (e.g. \"16 dB\" for "
+            f'{where} = {value:g} dB: losses are given as positive dB (e.g. "16 dB" for '
             "|S21| = -16 dB); use a value > 0"
         )
 
