@@ -63,7 +63,7 @@ def nyquist_frequency(data_rate: float, modulation: str = "nrz") -> float:
 
 
 def _ghz(x: float) -> str:
-    return f"{x / 1e9:.6g} GHz"
+    return f"{x / 1e9:.10g} GHz"
 
 
 # ----------------------------------------------------------------------------- check points

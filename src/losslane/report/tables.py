@@ -113,10 +113,10 @@ def point_title(pb, budget) -> str:
     p = pb.point
     if p.nyquist:
         return (
-            f"Nyquist {p.at / 1e9:.6g} GHz ({budget.data_rate / 1e9:.6g} Gb/s "
-            f"{budget.modulation.upper()}, {budget.baud / 1e9:.6g} GBd)"
+            f"Nyquist {p.at / 1e9:.10g} GHz ({budget.data_rate / 1e9:.10g} Gb/s "
+            f"{budget.modulation.upper()}, {budget.baud / 1e9:.10g} GBd)"
         )
-    return f"{p.label} at {p.at / 1e9:.6g} GHz"
+    return f"{p.label} at {p.at / 1e9:.10g} GHz"
 
 
 def budget_rows(pb) -> list[dict]:
@@ -192,7 +192,9 @@ def budget_text(budget, fit=None) -> str:
     """The budget and the fit for the terminal (``budget``: a ChannelBudget or None;
     ``fit``: a LossFit or None)."""
     out: list[str] = []
-    if budget is not None and budget.points:
+    if budget is None or not budget.points:
+        out.append("no [budget] check points: nothing is judged (--strict passes)")
+    else:
         pts = budget.points
         mode = "" if budget.mode == "single-ended" else f" ({budget.mode} mode)"
         out.append(f"loss budget{mode}: each segment alone between matched references")
