@@ -196,3 +196,19 @@ def test_bad_input_from_the_shell_has_no_traceback(tmp_path: Path) -> None:
     assert proc.returncode == 2
     assert "Traceback" not in proc.stderr
     assert proc.stderr.startswith("error: [[budget.check]] #1.at = 40 GHz")
+
+
+def test_a_failure_while_writing_the_report_leaves_nothing(tmp_path: Path, monkeypatch) -> None:
+    # the budget's files are staged with the Touchstone file: if the last one fails, none
+    # of them appears (DESIGN.md: no partial output)
+    import losslane.report.html as page
+    from losslane.api import build as api_build
+
+    def broken(**_):
+        raise RuntimeError("disk full")
+
+    monkeypatch.setattr(page, "render_report", broken)
+    scen = write(tmp_path, scenario_text(SMALL_CHANNEL, PASSING_BUDGET))
+    with pytest.raises(RuntimeError, match="disk full"):
+        api_build(scen, out=tmp_path / "out", plots=False)
+    assert [p.name for p in tmp_path.iterdir()] == ["lane.toml"]
