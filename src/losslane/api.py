@@ -270,9 +270,17 @@ def build(
 ):
     """Build a scenario file: returns (ChannelResult, files, summary text, summary dict).
 
-    The result of ``losslane build SCENARIO`` (``--json`` prints the dict).
+    The result of ``losslane build SCENARIO`` (``--json`` prints the dict; its ``budget``
+    is null without a [budget] section, ``budget.passed`` is what ``--strict`` gates on).
+    Model warnings raised on the way are kept in ``ChannelResult.warnings`` (and listed in
+    the report) and then re-issued, so callers still see them.
     """
+    import warnings
+
+    from losslane.budget import evaluate_budget, fit_channel, validate
     from losslane.channel import build_channel
+    from losslane.errors import LossLaneWarning
+    from losslane.report.budget_outputs import budget_writer
     from losslane.report.build_outputs import (
         prepare_out_dir,
         slug,
@@ -280,10 +288,50 @@ def build(
         summary_text,
         write_build,
     )
+    from losslane.report.tables import budget_text
     from losslane.scenario import load_scenario
 
-    sc = load_scenario(scenario)
-    out_dir = prepare_out_dir(out if out is not None else slug(sc.name))
-    result = build_channel(sc)
-    files = write_build(result, out_dir, version=version, form=form, plots=plots)
-    return result, files, summary_text(result, files), summary_json(result, files)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", LossLaneWarning)
+        try:
+            sc = load_scenario(scenario)
+            validate(sc)  # budget frequencies against the sweep, before any work
+            out_dir = prepare_out_dir(out if out is not None else slug(sc.name))
+            result = build_channel(sc)
+            budget = evaluate_budget(result)
+            fit = fit_channel(result)
+        finally:
+            messages = _reissue(caught, LossLaneWarning)
+    result.warnings = messages
+    files = write_build(
+        result,
+        out_dir,
+        version=version,
+        form=form,
+        plots=plots,
+        extra=budget_writer(budget, fit, plots),
+    )
+    text = summary_text(result, files, sections=[budget_text(budget, fit)])
+    data = summary_json(result, files)
+    nyq = budget.nyquist.at if budget is not None and budget.nyquist is not None else None
+    data["budget"] = None if budget is None else budget.to_json()
+    data["fit"] = None if fit is None else fit.to_json(nyq)
+    data["warnings"] = list(messages)
+    return result, files, text, data
+
+
+def _reissue(caught: list, category: type) -> list[str]:
+    """Re-issue recorded warnings outside the recording block; return the distinct
+    messages of ``category``, in order."""
+    import warnings
+
+    messages: list[str] = []
+    for w in caught:
+        if issubclass(w.category, category):
+            msg = str(w.message)
+            if msg not in messages:
+                messages.append(msg)
+                warnings.warn(msg, category, stacklevel=3)
+        else:
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno, source=w.source)
+    return messages

@@ -23,6 +23,7 @@ from losslane.network.blocks import (
     Via,
 )
 from losslane.network.cascade import build_network
+from losslane.network.mixedmode import MixedMode, mixed_mode
 from losslane.network.scaled import ScaledABCD, forward_transmission, scaled_db
 from losslane.scenario import Scenario, Segment
 
@@ -74,6 +75,25 @@ class ChannelResult:
     def insertion_loss_db(self) -> np.ndarray:
         """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
         return self.cumulative_loss_db[-1]
+
+    def mixed_mode(self) -> MixedMode | None:
+        """Mixed-mode blocks of a 4-port channel (None for a 2-port)."""
+        if self.nports != 4:
+            return None
+        sc = self.scenario
+        return mixed_mode(np.asarray(self.network.s), sc.ports.reference, sc.ports.order)
+
+    def return_loss_db(self) -> tuple[np.ndarray, np.ndarray]:
+        """Return loss (positive dB) of the main mode at the input and at the output, (N,)
+        each: |S11|, |S22| of a single-ended channel, |Sdd11|, |Sdd22| of a pair."""
+        mm = self.mixed_mode()
+        if mm is None:
+            s = np.asarray(self.network.s)
+            s11, s22 = s[:, 0, 0], s[:, 1, 1]
+        else:
+            s11, s22 = mm.dd[:, 0, 0], mm.dd[:, 1, 1]
+        with np.errstate(divide="ignore"):
+            return tuple(-20.0 * np.log10(np.maximum(np.abs(x), 1e-300)) for x in (s11, s22))
 
 
 def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:

@@ -829,6 +829,11 @@ def materials_command(
 )
 @click.option("--no-plots", is_flag=True, help="skip the PNG plots")
 @click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+@click.option(
+    "--strict",
+    is_flag=True,
+    help="exit with code 1 when a budget check fails (files are still written)",
+)
 def build_command(
     scenario: str,
     out: str | None,
@@ -836,8 +841,10 @@ def build_command(
     form: str,
     no_plots: bool,
     as_json: bool,
+    strict: bool,
 ) -> None:
-    """Build a channel from a scenario file: Touchstone file, plots and a summary."""
+    """Build a channel from a scenario file: Touchstone file, plots, the loss budget, a
+    report page and a summary."""
     from losslane.api import build
 
     with _warnings_to_stderr():
@@ -845,6 +852,9 @@ def build_command(
             scenario, out=out, version=int(touchstone_version), form=form, plots=not no_plots
         )
         click.echo(__import__("json").dumps(data) if as_json else text)
+    if strict and data["budget"] is not None and not data["budget"]["passed"]:
+        click.echo("budget check failed (--strict): exit code 1", err=True)
+        raise SystemExit(1)
 
 
 @cli.command("demo")

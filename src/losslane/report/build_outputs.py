@@ -9,7 +9,7 @@ from __future__ import annotations
 import re
 import shutil
 import tempfile
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from pathlib import Path
 
 import numpy as np
@@ -62,23 +62,12 @@ def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
 
 def reflection_db(result: ChannelResult) -> tuple[np.ndarray, np.ndarray]:
     """Return loss (positive dB) at the input and the output of the main mode."""
-    s = result.network.s
-    if result.nports == 2:
-        return -to_db(s[:, 0, 0]), -to_db(s[:, 1, 1])
-    from losslane.network.mixedmode import mixed_mode
-
-    dd = mixed_mode(s, result.scenario.ports.reference, result.scenario.ports.order).dd
-    return -to_db(dd[:, 0, 0]), -to_db(dd[:, 1, 1])
+    return result.return_loss_db()
 
 
 def mixed(result: ChannelResult):
     """Mixed-mode blocks of a 4-port result (None for a 2-port)."""
-    if result.nports != 4:
-        return None
-    from losslane.network.mixedmode import mixed_mode
-
-    sc = result.scenario
-    return mixed_mode(result.network.s, sc.ports.reference, sc.ports.order)
+    return result.mixed_mode()
 
 
 def summary_rows(result: ChannelResult) -> list[dict]:
@@ -230,7 +219,8 @@ def write_build(
         shutil.rmtree(stage, ignore_errors=True)
 
 
-def summary_text(result: ChannelResult, files: list[Path]) -> str:
+def summary_text(result: ChannelResult, files: list[Path], sections: Sequence[str] = ()) -> str:
+    """The terminal summary; ``sections`` (e.g. the loss budget) go before the file list."""
     sc = result.scenario
     four = result.nports == 4
     mode = " (differential mode)" if four else ""
@@ -256,6 +246,9 @@ def summary_text(result: ChannelResult, files: list[Path]) -> str:
         f"reference {sc.ports.reference:g} ohm" + (f", port order {sc.ports.order}" if four else "")
     )
     out = [head, "", f"insertion and return loss{mode}", table(heads, units, rows)]
+    for sec in sections:
+        if sec:
+            out += ["", sec]
     if files:
         out += ["", "files written:"] + [f"  {p}" for p in files]
     out += ["", CAUTION]

@@ -1,0 +1,241 @@
+"""One self-contained HTML page per build, to send to a colleague.
+
+Everything the page shows is inside the file: the charts are embedded as base64
+``data:image/png`` URIs, the styling is an inline ``<style>`` block, and there are no
+scripts, no web fonts and no links to anything outside the file, so it opens the same
+from an e-mail attachment, offline, in any browser. All text from the scenario is
+HTML-escaped.
+"""
+
+from __future__ import annotations
+
+import base64
+from collections.abc import Sequence
+from dataclasses import dataclass
+from html import escape
+
+from losslane.report.tables import CAUTION, budget_rows, point_title, verdict
+
+STYLE = """
+body { font-family: sans-serif; margin: 1.5em auto; max-width: 70em; color: #222;
+       line-height: 1.4; padding: 0 1em; }
+h1 { font-size: 1.5em; margin-bottom: 0.2em; }
+h2 { font-size: 1.2em; border-bottom: 1px solid #ccc; padding-bottom: 0.2em; margin-top: 1.6em; }
+h3 { font-size: 1.02em; margin-bottom: 0.3em; }
+.meta { color: #555; font-size: 0.92em; }
+.caution { background: #fff6e0; border-left: 4px solid #e0a000; padding: 0.6em 0.9em; }
+.verdict { font-size: 1.15em; padding: 0.5em 0.9em; display: inline-block; border-radius: 4px; }
+.pass { background: #e3f4e6; border: 1px solid #3c9a50; }
+.fail { background: #fbe4e4; border: 1px solid #c0392b; }
+table { border-collapse: collapse; margin: 0.4em 0 1em 0; font-size: 0.92em; }
+th, td { border: 1px solid #ccc; padding: 0.25em 0.6em; }
+th { background: #f0f0f0; text-align: left; }
+td.num { text-align: right; font-variant-numeric: tabular-nums; }
+tr.sum td { font-weight: bold; background: #fafafa; }
+td.FAIL { color: #b00; font-weight: bold; }
+figure { margin: 1em 0; }
+figure img { max-width: 100%; border: 1px solid #ddd; }
+figcaption { color: #555; font-size: 0.9em; }
+pre { background: #f6f6f6; border: 1px solid #ddd; padding: 0.8em; overflow-x: auto;
+      font-size: 0.85em; }
+"""
+
+
+@dataclass(frozen=True)
+class Figure:
+    """A chart for the page: its caption and the PNG bytes."""
+
+    caption: str
+    png: bytes
+
+
+def data_uri(png: bytes) -> str:
+    return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
+
+
+def _num(v: float | None, fmt: str) -> str:
+    return "-" if v is None else format(v, fmt)
+
+
+def _td(text: str, cls: str = "num") -> str:
+    return f'<td class="{cls}">{escape(text)}</td>'
+
+
+def _budget_table(pb) -> str:
+    head = (
+        "<tr><th>row</th><th>kind</th><th>loss (dB)</th><th>line loss (dB/in)</th>"
+        "<th>share of max loss</th><th>limit (dB)</th><th>margin (dB)</th><th>result</th></tr>"
+    )
+    body = []
+    for r in budget_rows(pb):
+        share = "-" if r["share"] is None else f"{100 * r['share']:.1f} %"
+        res = verdict(r["result"])
+        cls = ' class="sum"' if r["row"] == "total" else ""
+        body.append(
+            f"<tr{cls}><td>{escape(r['row'])}</td><td>{escape(r['kind'])}</td>"
+            + _td(f"{r['value_db']:.2f}")
+            + _td(_num(r["db_per_in"], ".3f"))
+            + _td(share)
+            + _td(_num(r["limit_db"], ".2f"))
+            + _td(_num(r["margin_db"], "+.2f"))
+            + _td(res, "num FAIL" if res == "FAIL" else "num")
+            + "</tr>"
+        )
+    return "<table>" + head + "".join(body) + "</table>"
+
+
+def _checks_table(budget) -> str:
+    head = (
+        "<tr><th>point</th><th>frequency (GHz)</th><th>insertion loss (dB)</th>"
+        "<th>max loss (dB)</th><th>return loss, worse end (dB)</th>"
+        "<th>min return loss (dB)</th><th>result</th></tr>"
+    )
+    body = []
+    for pb in budget.points:
+        res = verdict(pb.passed)
+        body.append(
+            f"<tr><td>{escape(pb.point.label)}</td>"
+            + _td(f"{pb.at / 1e9:.6g}")
+            + _td(f"{pb.total_db:.2f}")
+            + _td(_num(pb.allowance_db, ".2f"))
+            + _td(f"{pb.return_loss_db:.1f}")
+            + _td(_num(pb.point.min_return_loss, ".1f"))
+            + _td(res, "num FAIL" if res == "FAIL" else "num")
+            + "</tr>"
+        )
+    return "<table>" + head + "".join(body) + "</table>"
+
+
+def _fit_section(fit, budget) -> str:
+    if fit is None:
+        return "<p>No fit: the sweep is too coarse for the four-term fit.</p>"
+    a0, a1, a2, a4 = fit.coefficients
+    rows = [
+        ("fit band", f"{fit.band.start / 1e9:.6g} .. {fit.band.stop / 1e9:.6g} GHz"),
+        ("how the band was chosen", fit.band.rule),
+        ("sweep points in the band", f"{fit.f.size}"),
+        ("a0", f"{a0:.5g} dB"),
+        ("a1", f"{a1:.5g} dB/sqrt(GHz)"),
+        ("a2", f"{a2:.5g} dB/GHz"),
+        ("a4", f"{a4:.5g} dB/GHz^2"),
+    ]
+    ny = budget.nyquist if budget is not None else None
+    if ny is not None:
+        rows.append(
+            (
+                "fitted loss at Nyquist",
+                f"{float(fit.fitted_db(ny.at)[0]):.2f} dB (channel {ny.total_db:.2f} dB)",
+            )
+        )
+    rows += [
+        (
+            "ILD peak (channel minus fit)",
+            f"{fit.ild_peak_db:+.2f} dB at {fit.ild_peak_hz / 1e9:.4g} GHz",
+        ),
+        ("ILD rms over the band", f"{fit.ild_rms_db:.2f} dB"),
+    ]
+    body = "".join(f"<tr><th>{escape(k)}</th><td>{escape(v)}</td></tr>" for k, v in rows)
+    return (
+        "<p>Least-squares fit of IL_fit(f) = a0 + a1&#183;&#8730;f + a2&#183;f + a4&#183;f&#178; "
+        "(f in GHz, equal weights on the sweep points of the band) to the channel's insertion "
+        "loss; the deviation ILD = IL &#8722; IL_fit shows ripple from reflections that a "
+        "smooth loss curve does not have.</p><table>" + body + "</table>"
+    )
+
+
+def render_report(
+    *,
+    title: str,
+    meta: Sequence[str],
+    budget,
+    fit,
+    summary: Sequence[dict],
+    figures: Sequence[Figure],
+    warnings: Sequence[str],
+    scenario_name: str,
+    scenario_text: str,
+    files: Sequence[str],
+    mode: str = "",
+) -> str:
+    """The page as text. ``budget`` a ChannelBudget or None, ``fit`` a LossFit or None,
+    ``summary`` the rows of the terminal summary (at_hz, insertion_loss_db,
+    return_loss_in_db, return_loss_out_db)."""
+    parts = [
+        "<!DOCTYPE html>",
+        '<html lang="en">',
+        "<head>",
+        '<meta charset="utf-8">',
+        f"<title>{escape(title)}</title>",
+        f"<style>{STYLE}</style>",
+        "</head>",
+        "<body>",
+        f"<h1>{escape(title)}</h1>",
+        "".join(f'<p class="meta">{escape(m)}</p>' for m in meta),
+        f'<p class="caution"><strong>Caution:</strong> {escape(CAUTION)}</p>',
+    ]
+    parts.append('<h2 id="verdict">Does it fit?</h2>')
+    if budget is None or not budget.points:
+        parts.append(
+            "<p>No check points: the scenario has no [budget] data_rate or [[budget.check]] "
+            "entries, so nothing is judged. The loss figures below still apply.</p>"
+        )
+    else:
+        ok = budget.passed
+        ny = budget.nyquist
+        text = "All checks pass." if ok else "At least one check fails."
+        if ny is not None and ny.margin_db is not None:
+            text += f" Margin at Nyquist: {ny.margin_db:+.2f} dB."
+        cls = "pass" if ok else "fail"
+        parts.append(f'<p class="verdict {cls}">{escape(text)}</p>')
+        parts.append(_checks_table(budget))
+        parts.append(f'<h2 id="budget">Where the loss goes{escape(mode)}</h2>')
+        parts.append(
+            "<p>Each segment's own insertion loss, that block alone between matched "
+            "references; the row <em>reflections and interaction</em> is the cascaded total "
+            "minus the sum of the parts (negative where reflections happen to cancel). Line "
+            "loss per inch is the line model's attenuation of the matched line.</p>"
+        )
+        for pb in budget.points:
+            parts.append(f"<h3>{escape(point_title(pb, budget))}</h3>")
+            parts.append(_budget_table(pb))
+    parts.append('<h2 id="fit">Fitted insertion loss and deviation</h2>')
+    parts.append(_fit_section(fit, budget))
+    parts.append(f'<h2 id="summary">Insertion and return loss{escape(mode)}</h2>')
+    srows = "".join(
+        "<tr>"
+        + _td(f"{r['at_hz'] / 1e9:.6g}")
+        + _td(f"{r['insertion_loss_db']:.2f}")
+        + _td(f"{r['return_loss_in_db']:.1f}")
+        + _td(f"{r['return_loss_out_db']:.1f}")
+        + "</tr>"
+        for r in summary
+    )
+    parts.append(
+        "<table><tr><th>frequency (GHz)</th><th>insertion loss (dB)</th>"
+        "<th>return loss in (dB)</th><th>return loss out (dB)</th></tr>" + srows + "</table>"
+    )
+    parts.append('<h2 id="charts">Charts</h2>')
+    if figures:
+        for fig in figures:
+            parts.append(
+                f'<figure><img src="{data_uri(fig.png)}" alt="{escape(fig.caption)}">'
+                f"<figcaption>{escape(fig.caption)}</figcaption></figure>"
+            )
+    else:
+        parts.append("<p>Charts were not drawn for this build (--no-plots).</p>")
+    parts.append('<h2 id="warnings">Warnings</h2>')
+    if warnings:
+        parts.append(
+            "<p>Inputs outside a model's stated validity range; the results there are "
+            "extrapolations.</p><ul>" + "".join(f"<li>{escape(w)}</li>" for w in warnings) + "</ul>"
+        )
+    else:
+        parts.append("<p>None: every model stayed inside its stated validity range.</p>")
+    parts.append('<h2 id="scenario">Scenario file</h2>')
+    parts.append(f'<p class="meta">{escape(scenario_name)}, as read for this build:</p>')
+    parts.append(f"<pre>{escape(scenario_text)}</pre>")
+    parts.append('<h2 id="files">Files of this build</h2>')
+    parts.append("<ul>" + "".join(f"<li>{escape(n)}</li>" for n in files) + "</ul>")
+    parts.append(f'<p class="caution">{escape(CAUTION)}</p>')
+    parts += ["</body>", "</html>", ""]
+    return "\n".join(parts)
