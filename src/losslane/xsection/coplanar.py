@@ -29,7 +29,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.special import ellipk
 
 from losslane.errors import LossLaneError, check_range, warn
 from losslane.materials.dielectric import Dielectric
@@ -39,6 +38,8 @@ from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode
 
 def k_over_kp(k: np.ndarray) -> np.ndarray:
     """K(k)/K(k') with k' = sqrt(1 - k^2), for 0 < k < 1 (modulus k, not parameter)."""
+    from scipy.special import ellipk  # here, not at import: scipy.special costs start-up time
+
     k = np.asarray(k, float)
     return ellipk(k * k) / ellipk(1.0 - k * k)
 
