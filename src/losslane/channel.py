@@ -21,10 +21,12 @@ from losslane.network.blocks import (
     ShuntCapacitor,
     TouchstoneBlock,
     Via,
+    line_scaled_abcd,
 )
 from losslane.network.cascade import build_network
 from losslane.network.scaled import ScaledABCD, abcd_to_s, transmission_db
 from losslane.scenario import Scenario, Segment
+from losslane.xsection.rlgc import RLGC
 
 
 def make_block(seg: Segment, n: int, default_order: str) -> Block:
@@ -89,6 +91,22 @@ def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:
         return -20.0 * np.log10(np.maximum(np.abs(sdd21), 1e-300))
 
 
+def _evaluate(blocks: list[Block], f: np.ndarray) -> list[ScaledABCD]:
+    """Each block's scaled chain matrix on ``f``. Segments of the same [lines.*] section
+    share one RLGC evaluation (the cross-section models are the costly part of a build)."""
+    rlgc: dict[int, RLGC] = {}
+    items = []
+    for b in blocks:
+        if isinstance(b, LineSegment) and not isinstance(b.source, RLGC):
+            key = id(b.source)
+            if key not in rlgc:
+                rlgc[key] = b.rlgc(f)
+            items.append(line_scaled_abcd(rlgc[key], b.length))
+        else:
+            items.append(b.scaled_abcd(f))
+    return items
+
+
 def build_channel(scenario: Scenario) -> ChannelResult:
     """Cascade the scenario's channel on its sweep."""
     f = scenario.frequencies()
@@ -96,7 +114,7 @@ def build_channel(scenario: Scenario) -> ChannelResult:
     order = scenario.ports.order
     blocks = [make_block(seg, n, order) for seg in scenario.channel]
     z_ref = scenario.ports.reference
-    items = [b.scaled_abcd(f) for b in blocks]
+    items = _evaluate(blocks, f)
     seg_loss = np.array([_loss_db(it, z_ref) for it in items])
     cum = []
     acc = None
