@@ -18,7 +18,6 @@ import tomllib
 import warnings
 from pathlib import Path
 
-import numpy as np
 import skrf
 from skrf.media import MLine
 

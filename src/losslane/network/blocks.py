@@ -507,15 +507,15 @@ class TouchstoneBlock(Block):
 
     On a sweep the data are interpolated linearly in real/imaginary parts (what scikit-rf's
     linear interpolation does; a convex combination of passive matrices is passive, so
-    interpolation cannot create a passivity violation). A sweep reaching outside the file's band is a LossLaneError --
-    S-parameters are never extrapolated silently -- except f = 0: when the sweep asks for
-    DC and the file lacks it, the DC point is extrapolated with scikit-rf's
-    ``extrapolate_to_dc`` from the first two points (its imaginary part, non-physical at
-    DC, is dropped) and a LossLaneWarning says so; sweep points between 0 and the file's
-    first frequency are then interpolated towards that DC point. The chain matrix uses the
-    file's own reference impedances and carries the file's reverse direction exactly (no
-    reciprocity assumed). A file that is not passive (IEEE 370-2020: a singular value of
-    S above 1) is accepted with a LossLaneWarning.
+    interpolation cannot create a passivity violation). A sweep reaching outside the file's
+    band is a LossLaneError -- S-parameters are never extrapolated silently -- except
+    f = 0: when the sweep asks for DC and the file lacks it, the DC point is extrapolated
+    with scikit-rf's ``extrapolate_to_dc`` from the first two points (its imaginary part,
+    non-physical at DC, is dropped) and a LossLaneWarning says so; sweep points between 0
+    and the file's first frequency are then interpolated towards that DC point. The chain
+    matrix uses the file's own reference impedances and carries the file's reverse
+    direction exactly (no reciprocity assumed). A file that is not passive (IEEE 370-2020:
+    a singular value of S above 1) is accepted with a LossLaneWarning.
     """
 
     kind = "touchstone"
