@@ -9,6 +9,7 @@ the cumulative loss after each segment.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -23,7 +24,7 @@ from losslane.network.blocks import (
     Via,
     line_scaled_abcd,
 )
-from losslane.network.cascade import build_network
+from losslane.network.cascade import build_network, cascade_scaled
 from losslane.network.scaled import ScaledABCD, abcd_to_s, transmission_db
 from losslane.scenario import Scenario, Segment
 from losslane.xsection.rlgc import RLGC
@@ -55,27 +56,46 @@ class ChannelResult:
     """The built channel.
 
     ``network``: the S-parameters (skrf.Network, ports in the scenario's order);
+    ``items``: each block's scaled chain matrix on ``f``, ``chain`` their cascade;
     ``segment_loss_db``: each segment alone between matched references, insertion loss in
     dB (positive), (K, N); ``cumulative_loss_db``: loss from the input through segment k,
-    (K, N). For a differential channel both are the differential mode (issue: pairs).
+    (K, N); ``insertion_loss_db``: the whole channel's, (N,). For a differential channel
+    they are the differential mode. The per-segment arrays are computed when first asked
+    for (plots, budget), so a build that needs neither does not pay for them.
     """
 
     scenario: Scenario
     f: np.ndarray
     blocks: list[Block]
     network: object
-    segment_loss_db: np.ndarray
-    cumulative_loss_db: np.ndarray
+    items: list[ScaledABCD] = field(repr=False)
+    chain: ScaledABCD = field(repr=False)
     warnings: list[str] = field(default_factory=list)
 
     @property
     def nports(self) -> int:
         return int(self.network.nports)
 
-    @property
+    @cached_property
+    def segment_loss_db(self) -> np.ndarray:
+        z_ref = self.scenario.ports.reference
+        return np.array([_loss_db(it, z_ref) for it in self.items])
+
+    @cached_property
+    def cumulative_loss_db(self) -> np.ndarray:
+        z_ref = self.scenario.ports.reference
+        cum = []
+        acc = None
+        for it in self.items[:-1]:
+            acc = it if acc is None else acc @ it
+            cum.append(_loss_db(acc, z_ref))
+        cum.append(self.insertion_loss_db)  # through the last segment: the whole channel
+        return np.array(cum)
+
+    @cached_property
     def insertion_loss_db(self) -> np.ndarray:
         """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
-        return self.cumulative_loss_db[-1]
+        return _loss_db(self.chain, self.scenario.ports.reference)
 
 
 def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:
@@ -115,11 +135,6 @@ def build_channel(scenario: Scenario) -> ChannelResult:
     blocks = [make_block(seg, n, order) for seg in scenario.channel]
     z_ref = scenario.ports.reference
     items = _evaluate(blocks, f)
-    seg_loss = np.array([_loss_db(it, z_ref) for it in items])
-    cum = []
-    acc = None
-    for it in items:
-        acc = it if acc is None else acc @ it
-        cum.append(_loss_db(acc, z_ref))
-    net = build_network(items, f, z_ref=z_ref, name=scenario.name, order=order)
-    return ChannelResult(scenario, f, blocks, net, seg_loss, np.array(cum))
+    chain = cascade_scaled(items)
+    net = build_network([chain], f, z_ref=z_ref, name=scenario.name, order=order)
+    return ChannelResult(scenario, f, blocks, net, items, chain)
