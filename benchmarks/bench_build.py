@@ -10,9 +10,13 @@ Rows ``(name, measured, target, unit)``; times are medians of a few runs.
   wall time (the ratio row);
 * ``losslane demo --no-plots``: goal 1.5 s; ``losslane demo`` with its two plots: goal 3 s.
 
-Both programs' insertion loss at the top of the sweep is reported for information: they
-use the same published microstrip formulas but different conductor-loss methods, so the
-figures agree to within a few per cent, not exactly.
+The CPU-time ratio (user + system time of the child processes) is reported beside the
+wall-time ratio: it is less sensitive to other work on a shared machine. Both programs'
+insertion loss at the top of the sweep is reported for information only: they share the
+published microstrip Z0 / eps_eff formulas and the wideband Debye dielectric, but not the
+conductor-loss method (losslane: Wheeler's incremental-inductance rule on the
+thickness-corrected impedance; scikit-rf's MLine: a closed-form current-distribution
+factor), so the figures differ.
 Run standalone with ``python benchmarks/bench_build.py``.
 """
 

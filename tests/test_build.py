@@ -353,6 +353,14 @@ def test_build_cascade_equals_skrf_cascade_of_the_same_blocks(tmp_path):
     assert np.max(np.abs(written.s - ref.s)) < 1e-9
     # and the scikit-rf cascade_list of the same blocks
     assert np.max(np.abs(skrf.network.cascade_list(nets).s - written.s)) < 1e-9
+    # each segment's own insertion loss and the cumulative loss through segment k (the
+    # plots' curves) are -20 log10 |S21| of the same scikit-rf networks
+    for k, net in enumerate(nets):
+        own = -20 * np.log10(np.abs(net.s[:, 1, 0]))
+        through = -20 * np.log10(np.abs(skrf.network.cascade_list(nets[: k + 1]).s[:, 1, 0]))
+        assert np.max(np.abs(result.segment_loss_db[k] - own)) < 1e-9
+        assert np.max(np.abs(result.cumulative_loss_db[k] - through)) < 1e-9
+    np.testing.assert_array_equal(result.cumulative_loss_db[-1], result.insertion_loss_db)
 
 
 # ---------------------------------------------------------------- DC
