@@ -101,7 +101,7 @@ def run() -> list[tuple[str, float, float | None, str]]:
     t_ours, t_skrf = _median_walls(
         lambda d: _losslane("build", str(SCENARIO), "--no-plots", "--out", str(d / "o")),
         lambda d: [sys.executable, str(SKRF_SCRIPT), str(SCENARIO), str(d)],
-        runs=RUNS + 2,
+        runs=RUNS + 4,
     )
     t_demo, t_plots = _median_walls(
         lambda d: _losslane("demo", "--no-plots", "--out", str(d / "o")),
