@@ -11,8 +11,8 @@ import skrf
 from network_channels import pair_channel
 
 from losslane.budget import evaluate_budget, fit_channel
-from losslane.channel import ChannelResult, _loss_db
-from losslane.network.cascade import build_network
+from losslane.channel import ChannelResult
+from losslane.network.cascade import build_network, cascade_scaled
 from losslane.scenario import Budget, Check, Ports
 
 F = np.linspace(50e6, 20e9, 400)  # 50 MHz steps: 8 GHz is on the grid
@@ -22,12 +22,8 @@ F = np.linspace(50e6, 20e9, 400)  # 50 MHz steps: 8 GHz is on the grid
 def pair_result():
     blocks = pair_channel(F)
     items = [b.scaled_abcd(F) for b in blocks]
-    seg = np.array([_loss_db(it, 50.0) for it in items])
-    cum, acc = [], None
-    for it in items:
-        acc = it if acc is None else acc @ it
-        cum.append(_loss_db(acc, 50.0))
-    net = build_network(items, F, z_ref=50.0, name="pair", order="in-in-out-out")
+    chain = cascade_scaled(items)
+    net = build_network([chain], F, z_ref=50.0, name="pair", order="in-in-out-out")
     budget = Budget(16e9, "nrz", 20.0, (Check(F[100], 10.0, 8.0),))
     scenario = SimpleNamespace(
         name="pair",
@@ -35,7 +31,7 @@ def pair_result():
         channel=[SimpleNamespace(type=b.kind) for b in blocks],
         ports=Ports(50.0, "in-in-out-out"),
     )
-    return ChannelResult(scenario, F, blocks, net, seg, np.array(cum)), blocks
+    return ChannelResult(scenario, F, blocks, net, items, chain), blocks
 
 
 def _dd(s4: np.ndarray) -> skrf.Network:

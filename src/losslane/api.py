@@ -291,17 +291,19 @@ def build(
     from losslane.report.tables import budget_text
     from losslane.scenario import load_scenario
 
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", LossLaneWarning)
-        try:
+    caught: list = []
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", LossLaneWarning)
             sc = load_scenario(scenario)
             validate(sc)  # budget frequencies against the sweep, before any work
             out_dir = prepare_out_dir(out if out is not None else slug(sc.name))
             result = build_channel(sc)
             budget = evaluate_budget(result)
             fit = fit_channel(result)
-        finally:
-            messages = _reissue(caught, LossLaneWarning)
+    finally:
+        # outside the recording block, so the caller's own filters see them again
+        messages = _reissue(caught, LossLaneWarning)
     result.warnings = messages
     files = write_build(
         result,

@@ -9,6 +9,7 @@ the cumulative loss after each segment.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -22,7 +23,7 @@ from losslane.network.blocks import (
     TouchstoneBlock,
     Via,
 )
-from losslane.network.cascade import build_network
+from losslane.network.cascade import build_network, cascade_scaled
 from losslane.network.mixedmode import MixedMode, mixed_mode
 from losslane.network.scaled import ScaledABCD, forward_transmission, scaled_db
 from losslane.scenario import Scenario, Segment
@@ -54,27 +55,46 @@ class ChannelResult:
     """The built channel.
 
     ``network``: the S-parameters (skrf.Network, ports in the scenario's order);
+    ``items``: each block's scaled chain matrix on ``f``, ``chain`` their cascade;
     ``segment_loss_db``: each segment alone between matched references, insertion loss in
     dB (positive), (K, N); ``cumulative_loss_db``: loss from the input through segment k,
-    (K, N). For a differential channel both are the differential mode (issue: pairs).
+    (K, N); ``insertion_loss_db``: the whole channel's, (N,). For a differential channel
+    they are the differential mode. The per-segment arrays are computed when first asked
+    for (plots, budget), so a build that needs neither does not pay for them.
     """
 
     scenario: Scenario
     f: np.ndarray
     blocks: list[Block]
     network: object
-    segment_loss_db: np.ndarray
-    cumulative_loss_db: np.ndarray
+    items: list[ScaledABCD] = field(repr=False)
+    chain: ScaledABCD = field(repr=False)
     warnings: list[str] = field(default_factory=list)
 
     @property
     def nports(self) -> int:
         return int(self.network.nports)
 
-    @property
+    @cached_property
+    def segment_loss_db(self) -> np.ndarray:
+        z_ref = self.scenario.ports.reference
+        return np.array([_loss_db(it, z_ref) for it in self.items])
+
+    @cached_property
+    def cumulative_loss_db(self) -> np.ndarray:
+        z_ref = self.scenario.ports.reference
+        cum = []
+        acc = None
+        for it in self.items[:-1]:
+            acc = it if acc is None else acc @ it
+            cum.append(_loss_db(acc, z_ref))
+        cum.append(self.insertion_loss_db)  # through the last segment: the whole channel
+        return np.array(cum)
+
+    @cached_property
     def insertion_loss_db(self) -> np.ndarray:
         """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
-        return self.cumulative_loss_db[-1]
+        return _loss_db(self.chain, self.scenario.ports.reference)
 
     def mixed_mode(self) -> MixedMode | None:
         """Mixed-mode blocks of a 4-port channel (None for a 2-port)."""
@@ -115,12 +135,8 @@ def build_channel(scenario: Scenario) -> ChannelResult:
     order = scenario.ports.order
     blocks = [make_block(seg, n, order) for seg in scenario.channel]
     z_ref = scenario.ports.reference
+    # segments of one [lines.*] section share its RLGC (LineSegment caches it per sweep)
     items = [b.scaled_abcd(f) for b in blocks]
-    seg_loss = np.array([_loss_db(it, z_ref) for it in items])
-    cum = []
-    acc = None
-    for it in items:
-        acc = it if acc is None else acc @ it
-        cum.append(_loss_db(acc, z_ref))
-    net = build_network(items, f, z_ref=z_ref, name=scenario.name, order=order)
-    return ChannelResult(scenario, f, blocks, net, seg_loss, np.array(cum))
+    chain = cascade_scaled(items)
+    net = build_network([chain], f, z_ref=z_ref, name=scenario.name, order=order)
+    return ChannelResult(scenario, f, blocks, net, items, chain)

@@ -162,7 +162,17 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
         where = str(path) if path else "scenario"
         raise LossLaneError(f"{where}: not valid TOML: {exc}") from None
     base = Path(base)
-    check_keys("scenario", data, TOP_KEYS, required=("sweep", "channel"))
+    check_keys("scenario", data, TOP_KEYS)
+    if "sweep" not in data:
+        raise LossLaneError(
+            "scenario: missing the [sweep] section (start, stop and step or points, e.g. "
+            'start = "0 Hz", stop = "20 GHz", step = "10 MHz")'
+        )
+    if "channel" not in data:
+        raise LossLaneError(
+            "scenario: missing the [[channel]] segments (one [[channel]] table per segment, "
+            "in order from the transmitter)"
+        )
     name = data.get("name") or (path.stem if path else "channel")
     if not isinstance(name, str) or not name.strip():
         raise LossLaneError(f"scenario: name = {name!r}: expected a non-empty text")

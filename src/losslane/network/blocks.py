@@ -521,6 +521,21 @@ class Via(Block):
         return ScaledABCD.reciprocal(block_diagonal_legs(leg.matrix, self.n), leg.log_scale)
 
 
+def linear_interpolation(x: np.ndarray, xq: np.ndarray, *arrays: np.ndarray) -> list[np.ndarray]:
+    """Piecewise-linear interpolation along the first axis of each array (complex values:
+    real and imaginary parts alike), from the increasing grid ``x`` to ``xq`` (within
+    ``x[0]..x[-1]``). The same as scikit-rf's ``Network.interpolate(kind="linear")`` in its
+    default Cartesian coordinates, vectorized over all entries without scipy.interpolate
+    (whose import costs a command's start-up more than the interpolation itself)."""
+    k = np.clip(np.searchsorted(x, xq, side="right") - 1, 0, x.size - 2)
+    w = (xq - x[k]) / (x[k + 1] - x[k])
+    out = []
+    for a in arrays:
+        wb = w.reshape(w.shape + (1,) * (a.ndim - 1))
+        out.append(a[k] * (1.0 - wb) + a[k + 1] * wb)
+    return out
+
+
 class TouchstoneBlock(Block):
     """An S-parameter model from a Touchstone file (a connector, a package, a measured
     launch), read with scikit-rf.
@@ -531,17 +546,17 @@ class TouchstoneBlock(Block):
     ("in-in-out-out": 1, 2 near ends, 3, 4 far ends; "in-out-in-out": 1 -> 2 is line 1,
     3 -> 4 line 2).
 
-    On a sweep the data are interpolated with scikit-rf (linear in real/imaginary parts: a
-    convex combination of passive matrices is passive, so interpolation cannot create a
-    passivity violation). A sweep reaching outside the file's band is a LossLaneError --
-    S-parameters are never extrapolated silently -- except f = 0: when the sweep asks for
-    DC and the file lacks it, the DC point is extrapolated with scikit-rf's
-    ``extrapolate_to_dc`` from the first two points (its imaginary part, non-physical at
-    DC, is dropped) and a LossLaneWarning says so; sweep points between 0 and the file's
-    first frequency are then interpolated towards that DC point. The chain matrix uses the
-    file's own reference impedances and carries the file's reverse direction exactly (no
-    reciprocity assumed). A file that is not passive (IEEE 370-2020: a singular value of
-    S above 1) is accepted with a LossLaneWarning.
+    On a sweep the data are interpolated linearly in real/imaginary parts (what scikit-rf's
+    linear interpolation does; a convex combination of passive matrices is passive, so
+    interpolation cannot create a passivity violation). A sweep reaching outside the file's
+    band is a LossLaneError -- S-parameters are never extrapolated silently -- except
+    f = 0: when the sweep asks for DC and the file lacks it, the DC point is extrapolated
+    with scikit-rf's ``extrapolate_to_dc`` from the first two points (its imaginary part,
+    non-physical at DC, is dropped) and a LossLaneWarning says so; sweep points between 0
+    and the file's first frequency are then interpolated towards that DC point. The chain
+    matrix uses the file's own reference impedances and carries the file's reverse
+    direction exactly (no reciprocity assumed). A file that is not passive (IEEE 370-2020:
+    a singular value of S above 1) is accepted with a LossLaneWarning.
     """
 
     kind = "touchstone"
@@ -610,8 +625,6 @@ class TouchstoneBlock(Block):
 
     def sampled(self, f: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """S (N, 2n, 2n) in internal port order and reference impedances (N, 2n) on ``f``."""
-        import skrf
-
         from losslane.units import format_frequency as fmt
 
         f = check_sweep(f)
@@ -644,17 +657,17 @@ class TouchstoneBlock(Block):
                 f"start the sweep at or above {fmt(lo)} (only f = 0 is extrapolated)"
             )
         fq = np.clip(f, net.f[0], net.f[-1])  # within tol of the band edges
+        s, z0 = np.asarray(net.s), np.asarray(net.z0)
         same = fq.shape == net.f.shape and np.array_equal(fq, net.f)
         if not same:
-            net = net.interpolate(skrf.Frequency.from_f(fq, unit="Hz"), kind="linear")
-        z0 = np.asarray(net.z0)
+            s, z0 = linear_interpolation(np.asarray(net.f), fq, s, z0)
         if np.any(z0.imag != 0):
             raise LossLaneError(
                 f"touchstone file '{self.path}' has complex reference impedances; "
                 "only real ones are supported"
             )
         inv = np.argsort(port_permutation(self.n, self.order))  # file port -> internal
-        return np.asarray(net.s)[:, inv][:, :, inv], z0.real[:, inv]
+        return s[:, inv][:, :, inv], z0.real[:, inv]
 
     def scaled_abcd(self, f: np.ndarray) -> ScaledABCD:
         s, z = self.sampled(f)

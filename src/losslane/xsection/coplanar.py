@@ -29,7 +29,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.special import ellipkm1
 
 from losslane.errors import LossLaneError, check_range, warn
 from losslane.materials.dielectric import Dielectric
@@ -46,6 +45,8 @@ def k_over_kp(k: np.ndarray) -> np.ndarray:
 def ratio_from_m(m: np.ndarray, m1: np.ndarray) -> np.ndarray:
     """K(k)/K(k') from m = k^2 and m1 = 1 - k^2, each given accurately: ellipkm1 keeps the
     precision of whichever of k, k' is near 1 (a very wide or very narrow line)."""
+    from scipy.special import ellipkm1  # here, not at import: scipy.special costs start-up
+
     return ellipkm1(np.asarray(m1, float)) / ellipkm1(np.asarray(m, float))
 
 

@@ -19,7 +19,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.special import ellipkm1
 
 from losslane.errors import check_range, warn
 from losslane.materials.dielectric import Dielectric
@@ -29,6 +28,8 @@ from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode, wh
 
 def k_ratio_sech(x: np.ndarray) -> np.ndarray:
     """K(k)/K(k') for k = sech(x), k' = tanh(x), accurate for any x > 0."""
+    from scipy.special import ellipkm1  # here, not at import: scipy.special costs start-up time
+
     x = np.asarray(x, float)
     th2 = np.tanh(x) ** 2
     sech2 = 1.0 / np.cosh(x) ** 2
