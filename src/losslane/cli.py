@@ -293,11 +293,19 @@ def line_command(kind: str, at: str, as_json: bool, plot: str | None = None, **o
 
 def describe(section) -> str:
     """One heading line naming the cross-section, its geometry and materials."""
+    import dataclasses
+
     from losslane.units import MIL
 
     parts = [section.kind]
+    # dataclass fields only: a derived property (a stripline's plane spacing) is no input
+    fields = (
+        {f.name for f in dataclasses.fields(section)}
+        if dataclasses.is_dataclass(section)
+        else set()
+    )
     for key in ("width", "spacing", "gap", "height", "below", "above", "thickness"):
-        v = getattr(section, key, None)
+        v = getattr(section, key, None) if key in fields else None
         if isinstance(v, float):
             parts.append(f"{key} {v / MIL:.4g} mil")
     d = section.dielectric

@@ -117,7 +117,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         f,
         curves,
         f"{sc.name}: insertion loss{mode}, cumulative through each segment",
-        "insertion loss, 20 log10 |S21| (dB)",
+        ("Sdd21" if result.nports == 4 else "S21") + " (dB), insertion loss below 0",
         markers,
         floor_db=-200,
     )
