@@ -1,6 +1,7 @@
 """Speed of the design helpers (issue 6 goals).
 
-* spread: 100 000 Monte Carlo samples of a closed-form line at 3 frequencies <= 2 s;
+* spread: 100 000 Monte Carlo samples of a closed-form line at 3 frequencies <= 2 s
+  (single lines and, since the pair models are array-native too, pairs);
 * compare: 6 materials x 3 foils, each re-sized to the target, <= 1 s;
 * size: one width solve with sensitivities (no stated goal; shown for reference).
 
@@ -47,6 +48,7 @@ def run() -> list[tuple[str, float, float | None, str]]:
     from losslane.errors import LossLaneWarning
     from losslane.materials.library import load_library
     from losslane.xsection import Metal, Microstrip, Stripline
+    from losslane.xsection.coupled import MicrostripPair, StriplinePair
 
     lib = load_library()
     metal = Metal(foil=lib.foil("very-low-profile"))
@@ -61,6 +63,11 @@ def run() -> list[tuple[str, float, float | None, str]]:
         "thickness": 0.1 * MIL,
         "dk": 0.1,
     }
+    mp = MicrostripPair(5 * MIL, 7 * MIL, 3.5 * MIL, 1.4 * MIL, lib.dielectric("low-loss"), metal)
+    sp = StriplinePair(
+        5 * MIL, 7 * MIL, 6 * MIL, 6 * MIL, 0.6 * MIL, lib.dielectric("low-loss"), metal
+    )
+    tol_pair = {"width": 0.5 * MIL, "spacing": 0.5 * MIL, "thickness": 0.2 * MIL, "dk": 0.1}
     mats = {n: lib.dielectric(n) for n in MATERIALS}
     foils = {n: lib.foil(n) for n in FOILS}
     rows = []
@@ -82,6 +89,15 @@ def run() -> list[tuple[str, float, float | None, str]]:
                 "s",
             )
         )
+        for name, pair in (("microstrip-pair", mp), ("stripline-pair", sp)):
+            rows.append(
+                (
+                    f"spread {name}, 100k samples x 3 frequencies",
+                    _median(lambda p=pair: spread(p, tol_pair, freqs, samples=100_000, seed=1)),
+                    2.0,
+                    "s",
+                )
+            )
         rows.append(
             (
                 "compare microstrip, 6 materials x 3 foils re-sized",

@@ -1,8 +1,10 @@
-"""The vectorized evaluation path (xsection.batch) against the scalar models it mirrors.
+"""The vectorized evaluation path (xsection.batch) against scalar calls of the models.
 
-These are consistency checks of one implementation against another inside the project;
-the outside references for the models themselves are in the model tests. Each sample of
-a batch call must equal the scalar model built with that sample's geometry, to rounding.
+The closed-form models have one implementation that takes scalars or arrays of geometry
+samples; these checks guard its broadcasting (and the batch plumbing: Dk scaling, main
+mode, impedance, warnings and errors). They compare the project's code with itself; the
+outside references for the models themselves are in the model tests. Each sample of a
+batch call must equal the scalar model built with that sample's geometry, to rounding.
 """
 
 from __future__ import annotations
@@ -18,6 +20,7 @@ from losslane.materials.library import load_library
 from losslane.xsection import Coplanar, Metal, Microstrip, Stripline
 from losslane.xsection.base import _mode_numbers
 from losslane.xsection.batch import evaluate, is_vectorized, nominal_geometry
+from losslane.xsection.coupled import MicrostripPair, StriplinePair
 
 MIL = 25.4e-6
 LIB = load_library()
@@ -88,7 +91,7 @@ def test_dk_scale_equals_a_refit_at_the_scaled_dk() -> None:
 
 
 class _Unvectorized(Microstrip):
-    """A subclass takes the per-sample path (stands in for pair and field-solver kinds)."""
+    """A subclass takes the per-sample path (stands in for the field-solver kinds)."""
 
 
 def test_per_sample_fallback_matches_vectorized_path() -> None:
@@ -122,3 +125,92 @@ def test_dc_and_extreme_frequencies_stay_finite() -> None:
     for a in (res.impedance, res.r, res.l, res.g, res.c, *res.loss_db_per_in()):
         assert np.all(np.isfinite(a))
     assert np.all(res.g[:, 0] == 0)  # no dielectric loss at DC
+
+
+def pair_sections(foil: str) -> list:
+    m = Metal(foil=LIB.foil(foil))
+    d = LIB.dielectric("low-loss")
+    return [
+        MicrostripPair(5 * MIL, 7 * MIL, 3.5 * MIL, 1.4 * MIL, d, m),
+        MicrostripPair(5 * MIL, 7 * MIL, 3.5 * MIL, 0.0, d, m),
+        StriplinePair(5 * MIL, 7 * MIL, 6 * MIL, 6 * MIL, 0.6 * MIL, d, m),
+        StriplinePair(5 * MIL, 7 * MIL, 4 * MIL, 8 * MIL, 0.6 * MIL, d, m),
+        StriplinePair(5 * MIL, 7 * MIL, 4 * MIL, 8 * MIL, 0.0, d, m),
+    ]
+
+
+@pytest.mark.parametrize("foil", ["smooth", "standard-ed"])
+def test_pair_batch_equals_scalar_models(foil: str) -> None:
+    # the batch reports a pair's differential mode: the odd mode, with Z_diff = 2 Z_odd
+    rng = np.random.default_rng(11)
+    for sec in pair_sections(foil):
+        assert is_vectorized(sec)
+        geo = nominal_geometry(sec)
+        n = 8
+        samples = {k: v * (1 + 0.2 * rng.uniform(-1, 1, n)) for k, v in geo.items()}
+        if isinstance(sec, StriplinePair) and sec.below == sec.above:
+            samples["above"] = samples["below"].copy()  # keep the centred formula in play
+        scale = 1 + 0.05 * rng.uniform(-1, 1, n)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", LossLaneWarning)
+            res = evaluate(sec, F, dk_scale=scale, **samples)
+            total, cond, diel = res.loss_db_per_in()
+            assert res.differential
+            for i in range(n):
+                d = dataclasses.replace(sec.dielectric, dk=sec.dielectric.dk * scale[i])
+                one = dataclasses.replace(
+                    sec, dielectric=d, **{k: float(v[i]) for k, v in samples.items()}
+                )
+                odd = one.modes(F)["odd"]
+                props = one.properties(F)
+                for got, want in (
+                    (res.r[i], odd.r),
+                    (res.l[i], odd.l),
+                    (res.g[i], odd.g),
+                    (res.c[i], odd.c),
+                    (res.eps_eff[i], props["eps_eff_odd"]),
+                    (res.impedance[i], props["z_diff_ohm"]),
+                    (total[i], props["loss_db_per_in"]),
+                    (cond[i], props["conductor_db_per_in"]),
+                    (diel[i], props["dielectric_db_per_in"]),
+                ):
+                    np.testing.assert_allclose(
+                        got, want, rtol=1e-9, atol=1e-15, err_msg=f"{sec.kind} {foil} sample {i}"
+                    )
+
+
+def test_validity_warnings_fire_when_any_sample_is_outside() -> None:
+    # one sample of three beyond Hammerstad-Jensen's w/h <= 100: the batch warns with the
+    # message the scalar model gives for that sample
+    ms = sections("smooth")[0]
+    w = ms.width * np.array([1.0, 1.1, 70.0])
+    head = r"microstrip \(Hammerstad-Jensen\): width/height = "
+    with pytest.warns(LossLaneWarning, match=head + "1.714..120 is outside"):
+        evaluate(ms, F[1:], width=w)
+    with pytest.warns(LossLaneWarning, match=head + "120 is outside"):
+        dataclasses.replace(ms, width=float(w[2])).modes(F[1:])
+    # the offset-stripline range applies to offset samples only
+    sl = sections("smooth")[2]  # centred
+    narrow = np.full(3, 1.0 * MIL)  # w/(b - t) = 0.1, below the offset combination's 0.35
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", LossLaneWarning)
+        evaluate(sl, F[1:], width=narrow)
+    with pytest.warns(LossLaneWarning, match="offset stripline"):
+        evaluate(sl, F[1:], width=narrow, above=sl.above * np.array([1.0, 1.0, 1.2]))
+
+
+def test_model_errors_fire_for_any_sample() -> None:
+    cpw = sections("smooth")[5]
+    # one sample whose thickness-widened strip closes the gap: the constructor's error
+    gap = cpw.gap * np.array([1.0, 0.3])
+    with pytest.raises(LossLaneError, match="close the gap"):
+        Coplanar(cpw.width, float(gap[1]), cpw.height, cpw.thickness, cpw.dielectric)
+    with pytest.raises(LossLaneError, match="close the gap"):
+        evaluate(cpw, F, gap=gap)
+    # a zero thickness means no conductor loss at all, so samples must agree on it
+    ms = sections("smooth")[0]
+    with pytest.raises(LossLaneError, match="mix zero and non-zero"):
+        evaluate(ms, F, thickness=np.array([ms.thickness, 0.0]))
+    with pytest.warns(LossLaneWarning, match="thickness = 0"):
+        res = evaluate(ms, F, thickness=np.zeros(2))
+    assert np.all(res.r == 0)

@@ -162,7 +162,7 @@ def test_result_does_not_depend_on_chunking() -> None:
 
 
 class _Unvectorized(Microstrip):
-    """Takes the per-sample path, as pair and field-solver kinds do."""
+    """Takes the per-sample path, as the field-solver kinds do."""
 
 
 def test_per_sample_path_gives_the_same_statistics() -> None:

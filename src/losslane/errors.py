@@ -20,11 +20,17 @@ def warn(message: str) -> None:
     warnings.warn(message, LossLaneWarning, stacklevel=3)
 
 
-def check_range(model: str, name: str, value, low: float | None, high: float | None) -> None:
-    """Warn when ``value`` (scalar or array) leaves ``[low, high]`` of ``model``."""
+def check_range(
+    model: str, name: str, value, low: float | None, high: float | None, where=None
+) -> None:
+    """Warn when ``value`` (scalar or array) leaves ``[low, high]`` of ``model``; with
+    ``where`` (a mask that broadcasts against ``value``) only those entries are checked."""
     import numpy as np
 
     v = np.asarray(value, dtype=float)
+    if where is not None:
+        v, mask = np.broadcast_arrays(v, np.asarray(where, dtype=bool))
+        v = v[mask]
     if v.size == 0:
         return
     vmin, vmax = float(np.nanmin(v)), float(np.nanmax(v))

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from losslane.errors import LossLaneError
 
@@ -68,9 +69,9 @@ def _coth_excess(x2: np.ndarray) -> np.ndarray:
 def internal_impedance(
     f: np.ndarray,
     conductor: Conductor,
-    geometry_factor: float,
-    depth: float,
-    roughness: np.ndarray | float = 1.0,
+    geometry_factor: ArrayLike,
+    depth: ArrayLike,
+    roughness: ArrayLike = 1.0,
 ) -> tuple[np.ndarray, np.ndarray]:
     """Internal resistance and inductance per unit length of one conductor group.
 
@@ -89,18 +90,28 @@ def internal_impedance(
     ``roughness`` K(f) scales the part of the impedance above the DC resistance, so the
     DC value stays exact whatever the roughness model:
     Z = R_dc (1 + K (k tau coth(k tau) - 1)).
+
+    ``geometry_factor`` and ``depth`` may be arrays (e.g. one value per geometry sample,
+    shape (S, 1)) that broadcast against ``f``; where G = 0 the group carries no loss.
     """
     f = np.asarray(f, dtype=float)
-    if geometry_factor == 0.0:
-        return np.zeros(f.shape), np.zeros(f.shape)
-    if not np.isfinite(depth) or depth <= 0:
-        raise LossLaneError(f"conductor depth {depth!r} m must be > 0")
+    gf = np.asarray(geometry_factor, dtype=float)
+    depth = np.asarray(depth, dtype=float)
+    live = gf != 0.0
+    bad = live & ~(np.isfinite(depth) & (depth > 0))
+    if np.any(bad):
+        shown = depth if depth.ndim == 0 else np.broadcast_to(depth, bad.shape)[bad][0]
+        raise LossLaneError(f"conductor depth {float(shown)!r} m must be > 0")
+    if not np.any(live):
+        shape = np.broadcast_shapes(f.shape, gf.shape, depth.shape)
+        return np.zeros(shape), np.zeros(shape)
+    tau = np.where(live, depth, 1.0)
     mu = MU0 * conductor.mu_r
     omega = 2 * np.pi * f
-    x2 = 1j * omega * mu * conductor.sigma * depth**2
+    x2 = 1j * omega * mu * conductor.sigma * tau**2
     kh = np.asarray(roughness) * _coth_excess(x2)
-    r_dc = geometry_factor / (conductor.sigma * depth)
+    r_dc = np.where(live, gf, 0.0) / (conductor.sigma * tau)
     # Z = r_dc (1 + K x^2 h(x^2)) and x^2 = j w mu sigma tau^2, so both parts stay finite at DC
-    resistance = r_dc * (1.0 - omega * mu * conductor.sigma * depth**2 * kh.imag)
-    inductance = r_dc * mu * conductor.sigma * depth**2 * kh.real
+    resistance = r_dc * (1.0 - omega * mu * conductor.sigma * tau**2 * kh.imag)
+    inductance = r_dc * mu * conductor.sigma * tau**2 * kh.real
     return resistance, inductance

@@ -6,8 +6,9 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
+from numpy.typing import ArrayLike
 
-from losslane.errors import LossLaneError
+from losslane.errors import LossLaneError, warn
 from losslane.materials.conductor import COPPER, Conductor
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness, Smooth
@@ -34,14 +35,37 @@ class Metal:
         return self.foil if self.plane_foil is None else self.plane_foil
 
 
-def positive(kind: str, key: str, value: float, allow_zero: bool = False) -> float:
-    ok = np.isfinite(value) and (value >= 0 if allow_zero else value > 0)
-    if not ok:
+def positive(kind: str, key: str, value: ArrayLike, allow_zero: bool = False) -> None:
+    """A LossLaneError unless the length ``value`` (a scalar, or an array of geometry
+    samples: the first bad one is named) is finite and > 0 (>= 0 with ``allow_zero``)."""
+    v = np.asarray(value, dtype=float)
+    bad = ~np.isfinite(v) | ((v < 0) if allow_zero else (v <= 0))
+    if np.any(bad):
+        shown = value if v.ndim == 0 else float(v[bad][0])
         bound = ">= 0" if allow_zero else "> 0"
         raise LossLaneError(
-            f"{kind}: {key} = {value!r} m is not a valid length; it must be {bound}"
+            f"{kind}: {key} = {shown!r} m is not a valid length; it must be {bound}"
         )
-    return float(value)
+
+
+def strip_loss_modelled(kind: str, thickness: ArrayLike, what: str, example: str) -> bool:
+    """Whether the closed-form conductor loss applies: not for a strip of zero thickness
+    (Wheeler's rule needs the strip's walls; the edge current of a zero-thickness strip
+    makes its factor diverge), which is said in a warning. Geometry samples must agree.
+    """
+    t = np.asarray(thickness, dtype=float)
+    if np.all(t == 0):
+        warn(
+            f"{kind}: thickness = 0, so {what} is not modelled "
+            f"(give the copper thickness, e.g. {example})"
+        )
+        return False
+    if np.any(t == 0):
+        raise LossLaneError(
+            f"{kind}: thickness samples mix zero and non-zero values; evaluate the "
+            "zero-thickness samples separately"
+        )
+    return True
 
 
 class CrossSection:
@@ -51,13 +75,32 @@ class CrossSection:
     the propagation modes ('single' for one signal conductor; 'even' and 'odd' for a
     symmetric pair) with their per-line R, L, G, C over the frequency array ``f`` (Hz,
     f = 0 allowed).
+
+    The closed-form models instead implement ``mode_arrays`` and name their length fields
+    in ``dimensions``; their ``modes(f)`` is then ``mode_arrays`` at the section's own
+    dimensions, so one code path serves a single line and a batch of geometry samples
+    (``xsection.batch``).
     """
 
     kind: str = ""
     n_conductors: int = 1
     dielectric: Dielectric
+    #: the length fields that ``mode_arrays`` takes as keyword arguments
+    dimensions: tuple[str, ...] = ()
 
     def modes(self, f: np.ndarray) -> dict[str, Mode]:
+        f = np.atleast_1d(np.asarray(f, dtype=float))
+        dims = {k: getattr(self, k) for k in self.dimensions}
+        return self.mode_arrays(f, self.dielectric.eps(f), **dims)
+
+    def mode_arrays(
+        self, f: np.ndarray, eps_r: np.ndarray, **dimensions: ArrayLike
+    ) -> dict[str, Mode]:
+        """The modes with the ``dimensions`` given as arrays of geometry samples that
+        broadcast against ``f`` (F,), e.g. (S, 1), and the laminate's permittivity
+        ``eps_r`` ((F,), or (S, F) with a Dk per sample); the modes' arrays are then
+        (S, F). The section supplies everything else (metal, grounded...). Validity
+        warnings and input errors fire when any sample triggers them."""
         raise NotImplementedError
 
     def rlgc(self, f: np.ndarray) -> RLGC:

@@ -29,10 +29,11 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
+from numpy.typing import ArrayLike
 
-from losslane.errors import LossLaneError, check_range, warn
+from losslane.errors import LossLaneError, check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, positive
+from losslane.xsection.base import CrossSection, Metal, positive, strip_loss_modelled
 from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
 
 
@@ -60,7 +61,7 @@ def _log_cosh(y: np.ndarray) -> np.ndarray:
     return y + np.log1p(np.exp(-2.0 * y)) - np.log(2.0)
 
 
-def ratio_tanh(a, b, h) -> np.ndarray:
+def ratio_tanh(a: ArrayLike, b: ArrayLike, h: ArrayLike) -> np.ndarray:
     """K(k)/K(k') for k = tanh(pi a/2h)/tanh(pi b/2h) (the lower-plane term of GCPW), in
     log form so that a strip many times wider than the substrate (k -> 1) stays exact."""
     x1, x2 = np.pi * np.asarray(a) / (2 * h), np.pi * np.asarray(b) / (2 * h)
@@ -70,7 +71,7 @@ def ratio_tanh(a, b, h) -> np.ndarray:
     return ratio_from_m(np.exp(log_m), np.exp(log_m1))
 
 
-def ratio_sinh(a, b, h) -> np.ndarray:
+def ratio_sinh(a: ArrayLike, b: ArrayLike, h: ArrayLike) -> np.ndarray:
     """K(k)/K(k') for k = sinh(pi a/2h)/sinh(pi b/2h) (the finite substrate of CPW)."""
     x1, x2 = np.pi * np.asarray(a) / (2 * h), np.pi * np.asarray(b) / (2 * h)
     log_m = 2.0 * (_log_sinh(x1) - _log_sinh(x2))
@@ -79,45 +80,61 @@ def ratio_sinh(a, b, h) -> np.ndarray:
     return ratio_from_m(np.exp(log_m), np.exp(log_m1))
 
 
-def thickness_delta(w: float, t: float) -> float:
-    return 0.0 if t <= 0 else 1.25 * t / np.pi * (1.0 + np.log(4.0 * np.pi * w / t))
+def thickness_delta(w: ArrayLike, t: ArrayLike) -> np.ndarray:
+    """Gupta et al.'s widening Delta of a strip of thickness t (0 where t <= 0)."""
+    t = np.asarray(t, float)
+    thick = t > 0
+    tt = np.where(thick, t, 1.0)  # the t -> 0 limit is t log(1/t) -> 0
+    return np.where(thick, 1.25 * tt / np.pi * (1.0 + np.log(4.0 * np.pi * w / tt)), 0.0)
 
 
-def _k0(w: float, gap: float, t: float) -> float:
-    d = thickness_delta(w, t)
-    return (w + d) / (w + 2 * gap - d)
+def check_gap(kind: str, w: ArrayLike, gap: ArrayLike, t: ArrayLike) -> None:
+    """A LossLaneError where the thickness-widened strip closes the gap: Gupta's
+    k_e = (w + Delta)/(w + 2 gap - Delta) reaches 1 at Delta = gap (names the first such
+    sample)."""
+    closed = np.asarray(gap, float) - thickness_delta(w, t) <= 0
+    if np.any(closed):
+        t_bad, gap_bad = (float(np.broadcast_to(v, closed.shape)[closed][0]) for v in (t, gap))
+        raise LossLaneError(
+            f"{kind}: thickness = {t_bad:g} m is too large for gap = "
+            f"{gap_bad:g} m (the thickness-widened strip would close the gap); use a "
+            "wider gap or the field solver"
+        )
 
 
-def cpw_z_air(w: float, gap: float, t: float, h: float, grounded: bool) -> float:
+def cpw_z_air(
+    w: ArrayLike, gap: ArrayLike, t: ArrayLike, h: ArrayLike, grounded: bool
+) -> np.ndarray:
     """Air-filled impedance (thickness-corrected) of CPW or GCPW."""
-    r0 = float(k_over_kp(_k0(w, gap, t)))
+    w = np.asarray(w, float)
+    d = thickness_delta(w, t)
+    r0 = k_over_kp((w + d) / (w + 2 * gap - d))
     if not grounded:
         return ETA0 / (4.0 * r0)
     a, b = w / 2.0, w / 2.0 + gap
-    r3 = float(ratio_tanh(a, b, h))
+    r3 = ratio_tanh(a, b, h)
     return ETA0 / (2.0 * (r0 + r3))
 
 
 def cpw_eps_quasi_static(
-    w: float, gap: float, t: float, h: float, er: np.ndarray, grounded: bool
+    w: ArrayLike, gap: ArrayLike, t: ArrayLike, h: ArrayLike, er: ArrayLike, grounded: bool
 ) -> np.ndarray:
     """Quasi-static eps_eff with the thickness correction."""
+    w, gap, er = (np.asarray(v, float) for v in (w, gap, er))
     a, b = w / 2.0, w / 2.0 + gap
-    r0z = float(k_over_kp(a / b))  # zero-thickness modulus in the filling factor
+    r0z = k_over_kp(a / b)  # zero-thickness modulus in the filling factor
     if grounded:
-        r3 = float(ratio_tanh(a, b, h))
+        r3 = ratio_tanh(a, b, h)
         eps = 1.0 + r3 / (r0z + r3) * (er - 1.0)
     else:
-        r1 = float(ratio_sinh(a, b, h))
+        r1 = ratio_sinh(a, b, h)
         eps = 1.0 + (er - 1.0) / 2.0 * r1 / r0z
-    if t > 0:
-        x = 0.7 * t / gap
-        eps = eps - (eps - 1.0) * x / (r0z + x)
-    return eps
+    x = 0.7 * np.asarray(t, float) / gap
+    return eps - (eps - 1.0) * x / (r0z + x)  # exactly eps at t = 0
 
 
 def frankel_eps(
-    w: float, gap: float, h: float, er: np.ndarray, eps_q: np.ndarray, f: np.ndarray
+    w: ArrayLike, gap: ArrayLike, h: ArrayLike, er: ArrayLike, eps_q: ArrayLike, f: ArrayLike
 ) -> np.ndarray:
     """Frankel et al. (1991) dispersive eps_eff(f) of a coplanar line."""
     p = np.log(w / h)
@@ -145,6 +162,7 @@ class Coplanar(CrossSection):
     dielectric: Dielectric
     grounded: bool = False
     metal: Metal = field(default_factory=Metal)
+    dimensions = ("width", "gap", "height", "thickness")
 
     @property
     def kind(self) -> str:  # type: ignore[override]
@@ -155,37 +173,53 @@ class Coplanar(CrossSection):
         positive(self.kind, "gap", self.gap)
         positive(self.kind, "height", self.height)
         positive(self.kind, "thickness", self.thickness, allow_zero=True)
-        if self.gap - thickness_delta(self.width, self.thickness) <= 0:
-            raise LossLaneError(
-                f"{self.kind}: thickness = {self.thickness:g} m is too large for gap = "
-                f"{self.gap:g} m (the thickness-widened strip would close the gap); use a "
-                "wider gap or the field solver"
-            )
+        check_gap(self.kind, self.width, self.gap, self.thickness)
 
-    def check_validity(self, er: np.ndarray, f: np.ndarray) -> None:
+    def mode_arrays(
+        self,
+        f: np.ndarray,
+        eps_r: np.ndarray,
+        *,
+        width: ArrayLike,
+        gap: ArrayLike,
+        height: ArrayLike,
+        thickness: ArrayLike,
+    ) -> dict[str, Mode]:
+        w, s, t, h = (np.asarray(x, float) for x in (width, gap, thickness, height))
+        check_gap(self.kind, w, s, t)
+        er = eps_r.real
+        self._check_validity(w, s, t, h, er, f)
+        eps_q = cpw_eps_quasi_static(w, s, t, h, er, self.grounded)
+        eps_f = frankel_eps(w, s, h, er, eps_q, f)
+        z0 = cpw_z_air(w, s, t, h, self.grounded) / np.sqrt(eps_f)
+        return {"single": assemble_mode("single", f, eps_r, eps_f, z0, self._groups(w, s, t, h))}
+
+    def _check_validity(
+        self,
+        w: np.ndarray,
+        s: np.ndarray,
+        t: np.ndarray,
+        h: np.ndarray,
+        er: np.ndarray,
+        f: np.ndarray,
+    ) -> None:
         name = f"{self.kind} (conformal mapping)"
-        check_range(name, "thickness/gap", self.thickness / self.gap, 0, 0.5)
+        check_range(name, "thickness/gap", t / s, 0, 0.5)
         if np.any(f > 0):
             disp = f"{self.kind} dispersion (Frankel)"
-            check_range(disp, "width/height", self.width / self.height, 0.1, 5)
-            check_range(disp, "width/gap", self.width / self.gap, 0.1, 5)
+            check_range(disp, "width/height", w / h, 0.1, 5)
+            check_range(disp, "width/gap", w / s, 0.1, 5)
             check_range(disp, "dk", er, 1.5, 50)
-            f_te = C0 / (4.0 * self.height * np.sqrt(np.maximum(er - 1.0, 1e-12)))
+            f_te = C0 / (4.0 * h * np.sqrt(np.maximum(er - 1.0, 1e-12)))
             check_range(disp, "f/f_TE", f / f_te, 0, 10)
 
-    def z_air(self, w: float, gap: float, t: float, h: float) -> float:
-        return cpw_z_air(w, gap, t, h, self.grounded)
-
-    def _groups(self) -> list[ConductorGroup]:
-        w, s, t, h = self.width, self.gap, self.thickness, self.height
-        if t == 0:
-            warn(
-                f"{self.kind}: thickness = 0, so conductor loss is not modelled "
-                "(give the copper thickness, e.g. '1.4 mil' or '1 oz')"
-            )
+    def _groups(
+        self, w: np.ndarray, s: np.ndarray, t: np.ndarray, h: np.ndarray
+    ) -> list[ConductorGroup]:
+        if not strip_loss_modelled(self.kind, t, "conductor loss", "'1.4 mil' or '1 oz'"):
             return []
-        scale = min(w, s, t)
-        za = lambda p: self.z_air(*p)  # noqa: E731
+        scale = np.minimum(np.minimum(w, s), t)
+        za = lambda p: cpw_z_air(*p, self.grounded)  # noqa: E731
         p0 = (w, s, t, h)
         # one thickness parameter serves strip and grounds: each gets half its recession
         g_sig = wheeler_factor(za, p0, lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - d, p[3]), scale)
@@ -196,21 +230,11 @@ class Coplanar(CrossSection):
             ConductorGroup("coplanar grounds", g_cop, t / 2.0, m.conductor, m.foil),
         ]
         if self.grounded:
-            g_pl = wheeler_factor(za, p0, lambda p, d: (p[0], p[1], p[2], p[3] + d), min(scale, h))
+            g_pl = wheeler_factor(
+                za, p0, lambda p, d: (p[0], p[1], p[2], p[3] + d), np.minimum(scale, h)
+            )
             groups.append(ConductorGroup("plane", g_pl, m.plane_thickness, m.conductor, m.planes))
         return groups
-
-    def modes(self, f: np.ndarray) -> dict[str, Mode]:
-        f = np.atleast_1d(np.asarray(f, float))
-        eps_r = self.dielectric.eps(f)
-        er = eps_r.real
-        self.check_validity(er, f)
-        w, s, t, h = self.width, self.gap, self.thickness, self.height
-        eps_q = cpw_eps_quasi_static(w, s, t, h, er, self.grounded)
-        eps_f = frankel_eps(w, s, h, er, eps_q, f)
-        z_air = self.z_air(w, s, t, h)
-        z0 = z_air / np.sqrt(eps_f)
-        return {"single": assemble_mode("single", f, eps_r, eps_f, z0, self._groups())}
 
 
 def CPW(

@@ -18,10 +18,11 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
+from numpy.typing import ArrayLike
 
-from losslane.errors import check_range, warn
+from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, positive
+from losslane.xsection.base import CrossSection, Metal, positive, strip_loss_modelled
 from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
 
 
@@ -45,21 +46,27 @@ def hj_eps_eff(u: np.ndarray, er: np.ndarray) -> np.ndarray:
     return (er + 1.0) / 2.0 + (er - 1.0) / 2.0 * (1.0 + 10.0 / u) ** (-a * b)
 
 
-def hj_thickness(u: float, t_h: float, er: np.ndarray) -> tuple[float, np.ndarray]:
+def hj_thickness(u: ArrayLike, t_h: ArrayLike, er: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     """Hammerstad-Jensen strip-thickness correction: widened ratios (u1 in air, ur in the
-    dielectric) of a strip of thickness ratio t_h = t/h."""
+    dielectric) of a strip of thickness ratio t_h = t/h (arrays broadcast; no widening
+    where t_h <= 0)."""
+    u = np.asarray(u, float)
+    t_h = np.asarray(t_h, float)
     er = np.asarray(er, float)
-    if t_h <= 0:
-        return u, np.full(er.shape, u)
-    du1 = t_h / np.pi * np.log(1.0 + 4.0 * np.e / (t_h / np.tanh(np.sqrt(6.517 * u)) ** 2))
+    thick = t_h > 0
+    th = np.where(thick, t_h, 1.0)  # the formula's t_h -> 0 limit is 0 * log(inf)
+    du1 = th / np.pi * np.log(1.0 + 4.0 * np.e / (th / np.tanh(np.sqrt(6.517 * u)) ** 2))
+    du1 = np.where(thick, du1, 0.0)
     dur = 0.5 * (1.0 + 1.0 / np.cosh(np.sqrt(np.maximum(er - 1.0, 0.0)))) * du1
     return u + du1, u + dur
 
 
-def hj_quasi_static(w: float, h: float, t: float, er: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def hj_quasi_static(
+    w: ArrayLike, h: ArrayLike, t: ArrayLike, er: ArrayLike
+) -> tuple[np.ndarray, np.ndarray]:
     """(Z0, eps_eff) of the Hammerstad-Jensen model with thickness correction."""
-    u = w / h
-    u1, ur = hj_thickness(u, t / h, er)
+    u = np.asarray(w, float) / h
+    u1, ur = hj_thickness(u, np.asarray(t, float) / h, er)
     e_r = hj_eps_eff(ur, er)
     z_r = hj_z_air(ur)
     z0 = z_r / np.sqrt(e_r)
@@ -67,7 +74,14 @@ def hj_quasi_static(w: float, h: float, t: float, er: np.ndarray) -> tuple[np.nd
     return z0, eps_eff
 
 
-def kj_eps_eff(u: float, er: np.ndarray, eps0: np.ndarray, fn: np.ndarray) -> np.ndarray:
+def hj_thick_z_air(w: ArrayLike, h: ArrayLike, t: ArrayLike) -> np.ndarray:
+    """Air-filled impedance with thickness correction (the incremental-inductance base)."""
+    u = np.asarray(w, float) / h
+    u1, _ = hj_thickness(u, np.asarray(t, float) / h, 1.0)
+    return hj_z_air(u1)
+
+
+def kj_eps_eff(u: ArrayLike, er: ArrayLike, eps0: ArrayLike, fn: ArrayLike) -> np.ndarray:
     """Kirschning-Jansen dispersive eps_eff(f); fn = f[GHz] * h[mm]."""
     p1 = 0.27488 + (0.6315 + 0.525 / (1.0 + 0.0157 * fn) ** 20) * u - 0.065683 * np.exp(-8.7513 * u)
     p2 = 0.33622 * (1.0 - np.exp(-0.03442 * er))
@@ -78,7 +92,7 @@ def kj_eps_eff(u: float, er: np.ndarray, eps0: np.ndarray, fn: np.ndarray) -> np
 
 
 def jk_z0(
-    u: float, er: np.ndarray, eps0: np.ndarray, eps_f: np.ndarray, z00: np.ndarray, fn: np.ndarray
+    u: ArrayLike, er: ArrayLike, eps0: ArrayLike, eps_f: ArrayLike, z00: ArrayLike, fn: ArrayLike
 ) -> np.ndarray:
     """Jansen-Kirschning dispersive Z0(f); fn = f[GHz] * h[mm]."""
     r1 = 0.03891 * er**1.4
@@ -127,49 +141,50 @@ class Microstrip(CrossSection):
     dielectric: Dielectric
     metal: Metal = field(default_factory=Metal)
     kind = "microstrip"
+    dimensions = ("width", "height", "thickness")
 
     def __post_init__(self) -> None:
         positive(self.kind, "width", self.width)
         positive(self.kind, "height", self.height)
         positive(self.kind, "thickness", self.thickness, allow_zero=True)
 
-    def check_validity(self, er: np.ndarray, fn: np.ndarray) -> None:
-        u = self.width / self.height
+    def mode_arrays(
+        self,
+        f: np.ndarray,
+        eps_r: np.ndarray,
+        *,
+        width: ArrayLike,
+        height: ArrayLike,
+        thickness: ArrayLike,
+    ) -> dict[str, Mode]:
+        w, h, t = (np.asarray(x, float) for x in (width, height, thickness))
+        er = eps_r.real
+        u = w / h
+        fn = f * 1e-9 * h * 1e3
+        self._check_validity(u, t / h, er, fn)
+        z00, eps0 = hj_quasi_static(w, h, t, er)
+        eps_f = kj_eps_eff(u, er, eps0, fn)
+        z0 = jk_z0(u, er, eps0, eps_f, z00, fn)
+        return {"single": assemble_mode("single", f, eps_r, eps_f, z0, self._groups(w, h, t))}
+
+    @staticmethod
+    def _check_validity(u: np.ndarray, t_h: np.ndarray, er: np.ndarray, fn: np.ndarray) -> None:
         check_range("microstrip (Hammerstad-Jensen)", "width/height", u, 0.01, 100)
         check_range("microstrip (Hammerstad-Jensen)", "dk", er, 1, 128)
-        check_range(
-            "microstrip (Hammerstad-Jensen thickness)",
-            "thickness/height",
-            self.thickness / self.height,
-            0,
-            0.5,
-        )
+        check_range("microstrip (Hammerstad-Jensen thickness)", "thickness/height", t_h, 0, 0.5)
         if np.any(fn > 0):
-            check_range("microstrip dispersion (Kirschning-Jansen)", "width/height", u, 0.1, 100)
-            check_range("microstrip dispersion (Kirschning-Jansen)", "dk", er, 1, 20)
-            check_range(
-                "microstrip dispersion (Kirschning-Jansen)",
-                "height/wavelength",
-                fn / (C0 * 1e-6),
-                0,
-                0.13,
-            )
+            name = "microstrip dispersion (Kirschning-Jansen)"
+            check_range(name, "width/height", u, 0.1, 100)
+            check_range(name, "dk", er, 1, 20)
+            check_range(name, "height/wavelength", fn / (C0 * 1e-6), 0, 0.13)
 
-    def z_air(self, w: float, h: float, t: float) -> float:
-        """Air-filled impedance with thickness correction (the incremental-inductance base)."""
-        u1, _ = hj_thickness(w / h, t / h, np.array([1.0]))
-        return float(hj_z_air(u1))
-
-    def _groups(self) -> list[ConductorGroup]:
-        w, h, t = self.width, self.height, self.thickness
-        if t == 0:
-            warn(
-                "microstrip: thickness = 0, so the strip's conductor loss is not modelled "
-                "(give the copper thickness, e.g. '1.4 mil' or '1 oz')"
-            )
+    def _groups(self, w: np.ndarray, h: np.ndarray, t: np.ndarray) -> list[ConductorGroup]:
+        if not strip_loss_modelled(
+            self.kind, t, "the strip's conductor loss", "'1.4 mil' or '1 oz'"
+        ):
             return []
-        scale = min(w, h, t)
-        za = lambda p: self.z_air(*p)  # noqa: E731
+        scale = np.minimum(np.minimum(w, h), t)
+        za = lambda p: hj_thick_z_air(*p)  # noqa: E731
         g_strip = wheeler_factor(
             za, (w, h, t), lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - 2 * d), scale
         )
@@ -179,15 +194,3 @@ class Microstrip(CrossSection):
             ConductorGroup("strip", g_strip, g_strip * w * t, m.conductor, m.foil),
             ConductorGroup("plane", g_plane, m.plane_thickness, m.conductor, m.planes),
         ]
-
-    def modes(self, f: np.ndarray) -> dict[str, Mode]:
-        f = np.atleast_1d(np.asarray(f, float))
-        eps_r = self.dielectric.eps(f)
-        er = eps_r.real
-        u = self.width / self.height
-        fn = f * 1e-9 * self.height * 1e3
-        self.check_validity(er, fn)
-        z00, eps0 = hj_quasi_static(self.width, self.height, self.thickness, er)
-        eps_f = kj_eps_eff(u, er, eps0, fn)
-        z0 = jk_z0(u, er, eps0, eps_f, z00, fn)
-        return {"single": assemble_mode("single", f, eps_r, eps_f, z0, self._groups())}

@@ -23,6 +23,7 @@ from dataclasses import dataclass
 from typing import TypeVar
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from losslane.materials.conductor import MU0, Conductor, internal_impedance
 from losslane.materials.roughness import Roughness, Smooth
@@ -95,19 +96,21 @@ class ConductorGroup:
     """The walls of one conductor (or set of conductors) that share a current path.
 
     ``geometry_factor`` is Wheeler's G (1/m): R_ac = R_s * G. ``depth`` tau is chosen so
-    that G / (sigma tau) is the group's DC resistance (see ``internal_impedance``).
+    that G / (sigma tau) is the group's DC resistance (see ``internal_impedance``). Both
+    are scalars, or arrays of one value per geometry sample (shape (S, 1)).
     """
 
     name: str
-    geometry_factor: float
-    depth: float
+    geometry_factor: float | np.ndarray
+    depth: float | np.ndarray
     conductor: Conductor
     roughness: Roughness = Smooth()
 
 
 @dataclass(frozen=True)
 class Mode:
-    """One propagation mode of a line: its field quantities and its per-line RLGC (N,)."""
+    """One propagation mode of a line: its field quantities and its per-line RLGC, (N,)
+    over frequency, or (S, N) for S geometry samples."""
 
     name: str
     eps_eff: np.ndarray
@@ -119,17 +122,22 @@ class Mode:
 
 
 def wheeler_factor(
-    z_air: Callable[[P], float], params: P, recede: Callable[[P, float], P], scale: float
-) -> float:
+    z_air: Callable[[P], ArrayLike],
+    params: P,
+    recede: Callable[[P, ArrayLike], P],
+    scale: ArrayLike,
+) -> np.ndarray:
     """Wheeler's geometry factor G = (1/eta0) dZ0_air/dn for one conductor group.
 
     ``recede(params, dn)`` returns the geometry with that group's walls moved by ``dn``
     into the metal (dn < 0: out of it); ``scale`` is the smallest dimension involved,
-    which sets the finite-difference step (central difference, step 1e-4 of it).
+    which sets the finite-difference step (central difference, step 1e-4 of it). The
+    parameters may be arrays of geometry samples (elementwise ``z_air``); G then has
+    their shape.
     """
-    dn = 1e-4 * scale
+    dn = 1e-4 * np.asarray(scale, float)
     dz = z_air(recede(params, dn)) - z_air(recede(params, -dn))
-    return float(dz / (2 * dn) / ETA0)
+    return dz / (2 * dn) / ETA0
 
 
 def filling_factor(eps_eff: np.ndarray, eps_r_real: np.ndarray) -> np.ndarray:
@@ -154,11 +162,14 @@ def assemble_mode(
     ``eps_r`` is the laminate's complex permittivity eps' - j eps'' (N,); ``eps_eff`` the
     mode's real effective permittivity and ``z0`` its lossless impedance (N,), both with
     the model's dispersion; ``q`` the filling factor (default from eps_eff and eps_r').
+    For S geometry samples at once every input may carry a leading sample axis ((S, N),
+    or (S, 1) for the groups' factors): the mode's arrays are then (S, N).
     """
     f = np.asarray(f, float)
     omega = 2 * np.pi * f
-    eps_eff = np.broadcast_to(np.asarray(eps_eff, float), f.shape)
-    z0 = np.broadcast_to(np.asarray(z0, float), f.shape)
+    shape = np.broadcast_shapes(f.shape, np.shape(eps_eff), np.shape(z0))
+    eps_eff = np.broadcast_to(np.asarray(eps_eff, float), shape)
+    z0 = np.broadcast_to(np.asarray(z0, float), shape)
     root = np.sqrt(eps_eff)
     l_ext = z0 * root / C0
     c = root / (z0 * C0)
@@ -166,8 +177,8 @@ def assemble_mode(
         q = filling_factor(eps_eff, eps_r.real)
     eps_eff_loss = q * (-np.asarray(eps_r).imag)
     g = omega * c * eps_eff_loss / eps_eff
-    r = np.zeros(f.shape)
-    l_int = np.zeros(f.shape)
+    r = np.zeros(shape)
+    l_int = np.zeros(shape)
     for grp in groups:
         k = grp.roughness.factor(f, grp.conductor)
         dr, dl = internal_impedance(f, grp.conductor, grp.geometry_factor, grp.depth, k)

@@ -19,10 +19,11 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
+from numpy.typing import ArrayLike
 
-from losslane.errors import check_range, warn
+from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, positive
+from losslane.xsection.base import CrossSection, Metal, positive, strip_loss_modelled
 from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
 
 
@@ -37,45 +38,41 @@ def k_ratio_sech(x: np.ndarray) -> np.ndarray:
     return ellipkm1(th2) / ellipkm1(sech2)
 
 
-def cohn_z_air(w: float, b: float) -> float:
+def cohn_z_air(w: ArrayLike, b: ArrayLike) -> np.ndarray:
     """Cohn's exact air-filled impedance of a zero-thickness centred stripline."""
-    return float(ETA0 / 4.0 * k_ratio_sech(np.pi * w / (2.0 * b)))
+    return ETA0 / 4.0 * k_ratio_sech(np.pi * np.asarray(w, float) / (2.0 * np.asarray(b, float)))
 
 
-def wheeler_z_air(w: float, b: float, t: float) -> float:
+def wheeler_z_air(w: ArrayLike, b: ArrayLike, t: ArrayLike) -> np.ndarray:
     """Wheeler's (1978) air-filled impedance of a centred stripline with a thick strip."""
-    x = t / b
-    if x > 0:
-        m = 6.0 / (3.0 + 2.0 * x / (1.0 - x))
-        dw = (
-            x
-            / (np.pi * (1.0 - x))
-            * (1.0 - 0.5 * np.log((x / (2.0 - x)) ** 2 + (0.0796 * x / (w / b + 1.1 * x)) ** m))
-        ) * (b - t)
-    else:
-        dw = 0.0
+    w, b, t = (np.asarray(v, float) for v in (w, b, t))
+    thick = t / b > 0
+    x = np.where(thick, t / b, 0.5)  # the widening's x -> 0 limit is 0 * log(0)
+    m = 6.0 / (3.0 + 2.0 * x / (1.0 - x))
+    dw = (
+        x
+        / (np.pi * (1.0 - x))
+        * (1.0 - 0.5 * np.log((x / (2.0 - x)) ** 2 + (0.0796 * x / (w / b + 1.1 * x)) ** m))
+    ) * (b - t)
+    dw = np.where(thick, dw, 0.0)
     wp = (w + dw) / (b - t)
     a = 8.0 / (np.pi * wp)
-    return float(
-        ETA0 / (4 * np.pi) * np.log(1.0 + 4.0 / (np.pi * wp) * (a + np.sqrt(a * a + 6.27)))
-    )
+    return ETA0 / (4 * np.pi) * np.log(1.0 + 4.0 / (np.pi * wp) * (a + np.sqrt(a * a + 6.27)))
 
 
-def centred_z_air(w: float, b: float, t: float) -> float:
-    """Cohn's exact zero-thickness value scaled by Wheeler's thickness ratio."""
-    z = cohn_z_air(w, b)
-    if t > 0:
-        z *= wheeler_z_air(w, b, t) / wheeler_z_air(w, b, 0.0)
-    return z
+def centred_z_air(w: ArrayLike, b: ArrayLike, t: ArrayLike) -> np.ndarray:
+    """Cohn's exact zero-thickness value scaled by Wheeler's thickness ratio (exactly 1 at
+    t = 0)."""
+    return cohn_z_air(w, b) * (wheeler_z_air(w, b, t) / wheeler_z_air(w, b, 0.0))
 
 
-def stripline_z_air(w: float, below: float, above: float, t: float) -> float:
+def stripline_z_air(w: ArrayLike, below: ArrayLike, above: ArrayLike, t: ArrayLike) -> np.ndarray:
     """Air-filled impedance of a centred or offset stripline (distances strip to planes)."""
-    if abs(below - above) <= 1e-12 * (below + above):
-        return centred_z_air(w, below + above + t, t)
+    below, above, t = (np.asarray(v, float) for v in (below, above, t))
+    centred = np.abs(below - above) <= 1e-12 * (below + above)
     z1 = centred_z_air(w, 2 * below + t, t)
     z2 = centred_z_air(w, 2 * above + t, t)
-    return 2 * z1 * z2 / (z1 + z2)
+    return np.where(centred, centred_z_air(w, below + above + t, t), 2 * z1 * z2 / (z1 + z2))
 
 
 @dataclass(frozen=True)
@@ -90,6 +87,7 @@ class Stripline(CrossSection):
     dielectric: Dielectric
     metal: Metal = field(default_factory=Metal)
     kind = "stripline"
+    dimensions = ("width", "below", "above", "thickness")
 
     def __post_init__(self) -> None:
         positive(self.kind, "width", self.width)
@@ -102,28 +100,45 @@ class Stripline(CrossSection):
         """Plane-to-plane spacing b."""
         return self.below + self.above + self.thickness
 
-    def check_validity(self) -> None:
-        b, t = self.spacing, self.thickness
-        if t > 0:
-            check_range("stripline (Wheeler thickness)", "thickness/spacing", t / b, 0, 0.25)
-        if abs(self.below - self.above) > 1e-9 * b:
-            check_range(
-                "offset stripline", "width/(spacing - thickness)", self.width / (b - t), 0.35, None
-            )
+    def mode_arrays(
+        self,
+        f: np.ndarray,
+        eps_r: np.ndarray,
+        *,
+        width: ArrayLike,
+        below: ArrayLike,
+        above: ArrayLike,
+        thickness: ArrayLike,
+    ) -> dict[str, Mode]:
+        w, lo, hi, t = (np.asarray(x, float) for x in (width, below, above, thickness))
+        self._check_validity(w, lo, hi, t)
+        er = eps_r.real
+        z0 = stripline_z_air(w, lo, hi, t) / np.sqrt(er)
+        groups = self._groups(w, lo, hi, t)
+        return {"single": assemble_mode("single", f, eps_r, er, z0, groups, q=np.ones(er.shape))}
 
-    def z_air(self, w: float, below: float, above: float, t: float) -> float:
-        return stripline_z_air(w, below, above, t)
+    @staticmethod
+    def _check_validity(w: np.ndarray, lo: np.ndarray, hi: np.ndarray, t: np.ndarray) -> None:
+        b = lo + hi + t
+        check_range("stripline (Wheeler thickness)", "thickness/spacing", t / b, 0, 0.25)
+        check_range(
+            "offset stripline",
+            "width/(spacing - thickness)",
+            w / (b - t),
+            0.35,
+            None,
+            where=np.abs(lo - hi) > 1e-9 * b,
+        )
 
-    def _groups(self) -> list[ConductorGroup]:
-        w, lo, hi, t = self.width, self.below, self.above, self.thickness
-        if t == 0:
-            warn(
-                "stripline: thickness = 0, so the strip's conductor loss is not modelled "
-                "(give the copper thickness, e.g. '0.6 mil' or '0.5 oz')"
-            )
+    def _groups(
+        self, w: np.ndarray, lo: np.ndarray, hi: np.ndarray, t: np.ndarray
+    ) -> list[ConductorGroup]:
+        if not strip_loss_modelled(
+            self.kind, t, "the strip's conductor loss", "'0.6 mil' or '0.5 oz'"
+        ):
             return []
-        scale = min(w, lo, hi, t)
-        za = lambda p: self.z_air(*p)  # noqa: E731
+        scale = np.minimum(np.minimum(w, lo), np.minimum(hi, t))
+        za = lambda p: stripline_z_air(*p)  # noqa: E731
         p0 = (w, lo, hi, t)
         g_strip = wheeler_factor(
             za, p0, lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] + d, p[3] - 2 * d), scale
@@ -136,14 +151,3 @@ class Stripline(CrossSection):
             ConductorGroup("lower plane", g_low, m.plane_thickness, m.conductor, m.planes),
             ConductorGroup("upper plane", g_high, m.plane_thickness, m.conductor, m.planes),
         ]
-
-    def modes(self, f: np.ndarray) -> dict[str, Mode]:
-        f = np.atleast_1d(np.asarray(f, float))
-        self.check_validity()
-        eps_r = self.dielectric.eps(f)
-        er = eps_r.real
-        z_air = self.z_air(self.width, self.below, self.above, self.thickness)
-        z0 = z_air / np.sqrt(er)
-        return {
-            "single": assemble_mode("single", f, eps_r, er, z0, self._groups(), q=np.ones(f.shape))
-        }
