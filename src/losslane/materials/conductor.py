@@ -66,30 +66,52 @@ def _coth_excess(x2: np.ndarray) -> np.ndarray:
     return out
 
 
+def _tanh_ratio(x2: np.ndarray) -> np.ndarray:
+    """tanh(x)/x as a function of x^2 (complex), exact at x = 0, no overflow."""
+    x2 = np.asarray(x2, dtype=complex)
+    out = np.empty_like(x2)
+    small = np.abs(x2) < 2.5e-3
+    xs = x2[small]
+    out[small] = 1 - xs / 3 + 2 * xs**2 / 15 - 17 * xs**3 / 315
+    x = np.sqrt(x2[~small])
+    out[~small] = np.tanh(x) / x
+    return out
+
+
 def internal_impedance(
     f: np.ndarray,
     conductor: Conductor,
     geometry_factor: ArrayLike,
     depth: ArrayLike,
     roughness: ArrayLike = 1.0,
+    wide: bool = False,
 ) -> tuple[np.ndarray, np.ndarray]:
     """Internal resistance and inductance per unit length of one conductor group.
 
-    Returns ``(R, L_int)`` in ohm/m and H/m, from
+    Returns ``(R, L_int)`` in ohm/m and H/m. ``geometry_factor`` G (1/m) is Wheeler's
+    incremental-inductance factor of the group, so that at high frequency both forms below
+    tend to Z_int = (1 + j) R_s G, Wheeler's skin-effect result (Proc. IRE 30, 1942);
+    k = (1 + j)/delta.
 
-    Z_int = (k / sigma) G coth(k tau),  k = (1 + j)/delta,
+    * A signal conductor (``wide=False``): Z_int = (k / sigma) G coth(k tau), the exact
+      internal impedance of a conducting slab of half-thickness tau carrying current on
+      its faces. The caller picks tau so that the DC limit G/(sigma tau) is the exact DC
+      resistance (tau = G * area for a strip). The internal inductance at DC is
+      mu G tau / 3.
+    * A return plane or a wide coplanar ground (``wide=True``), tau its thickness:
+      Z_int = (k / sigma) G tanh(k tau), the slab whose far face rests on a lossless
+      path. A plane many times wider than the trace has a DC resistance per unit length
+      that is negligible beside the strip's (a 1 oz plane 25 mm wide: 0.02 ohm/m against
+      3 ohm/m for a 6 x 1.4 mil trace), and this form gives it exactly 0 at DC while the
+      current is still confined under the strip at high frequency; the internal
+      inductance at DC is mu G tau.
 
-    the exact internal impedance of a conducting slab of half-thickness tau carrying
-    current on its faces. ``geometry_factor`` G (1/m) is Wheeler's incremental-
-    inductance factor of the group, so at high frequency Z_int -> (1 + j) R_s G, Wheeler's
-    skin-effect result (Proc. IRE 30, 1942). The caller picks ``depth`` tau so that the
-    DC limit G/(sigma tau) is the group's DC resistance (tau = G * area for a strip).
-    The internal inductance is finite at DC, mu G tau / 3, and falls toward 0 as the
-    frequency rises, so the total inductance falls toward the external one.
+    In both the internal inductance is finite at DC and falls toward 0 as the frequency
+    rises, so the total inductance falls toward the external one.
 
     ``roughness`` K(f) scales the part of the impedance above the DC resistance, so the
-    DC value stays exact whatever the roughness model:
-    Z = R_dc (1 + K (k tau coth(k tau) - 1)).
+    DC value stays exact whatever the roughness model: for a signal conductor
+    Z = R_dc (1 + K (k tau coth(k tau) - 1)); for a wide plane Z = K (k/sigma) G tanh(k tau).
 
     ``geometry_factor`` and ``depth`` may be arrays (e.g. one value per geometry sample,
     shape (S, 1)) that broadcast against ``f``; where G = 0 the group carries no loss.
@@ -109,6 +131,11 @@ def internal_impedance(
     mu = MU0 * conductor.mu_r
     omega = 2 * np.pi * f
     x2 = 1j * omega * mu * conductor.sigma * tau**2
+    if wide:
+        # Z = K j w mu G tau tanh(x)/x with x^2 = j w mu sigma tau^2: R(0) = 0 exactly
+        kt = np.asarray(roughness) * _tanh_ratio(x2)
+        g_live = np.where(live, gf, 0.0)
+        return -omega * mu * g_live * tau * kt.imag, mu * g_live * tau * kt.real
     kh = np.asarray(roughness) * _coth_excess(x2)
     r_dc = np.where(live, gf, 0.0) / (conductor.sigma * tau)
     # Z = r_dc (1 + K x^2 h(x^2)) and x^2 = j w mu sigma tau^2, so both parts stay finite at DC

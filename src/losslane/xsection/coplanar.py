@@ -227,13 +227,15 @@ class Coplanar(CrossSection):
         m = self.metal
         groups = [
             ConductorGroup("strip", g_sig, g_sig * w * t, m.conductor, m.foil),
-            ConductorGroup("coplanar grounds", g_cop, t / 2.0, m.conductor, m.foil),
+            ConductorGroup("coplanar grounds", g_cop, t, m.conductor, m.foil, wide=True),
         ]
         if self.grounded:
             g_pl = wheeler_factor(
                 za, p0, lambda p, d: (p[0], p[1], p[2], p[3] + d), np.minimum(scale, h)
             )
-            groups.append(ConductorGroup("plane", g_pl, m.plane_thickness, m.conductor, m.planes))
+            groups.append(
+                ConductorGroup("plane", g_pl, m.plane_thickness, m.conductor, m.planes, wide=True)
+            )
         return groups
 
 

@@ -444,7 +444,9 @@ def _mode_groups(
     groups = [ConductorGroup("strips", g_strip, g_strip * area, metal.conductor, metal.foil)]
     for name, recede in planes:
         g = wheeler_factor(z_air, p0, recede, scale)
-        groups.append(ConductorGroup(name, g, metal.plane_thickness, metal.conductor, metal.planes))
+        groups.append(
+            ConductorGroup(name, g, metal.plane_thickness, metal.conductor, metal.planes, True)
+        )
     return groups
 
 

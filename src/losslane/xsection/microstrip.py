@@ -192,5 +192,5 @@ class Microstrip(CrossSection):
         m = self.metal
         return [
             ConductorGroup("strip", g_strip, g_strip * w * t, m.conductor, m.foil),
-            ConductorGroup("plane", g_plane, m.plane_thickness, m.conductor, m.planes),
+            ConductorGroup("plane", g_plane, m.plane_thickness, m.conductor, m.planes, True),
         ]

@@ -95,9 +95,11 @@ class RLGC:
 class ConductorGroup:
     """The walls of one conductor (or set of conductors) that share a current path.
 
-    ``geometry_factor`` is Wheeler's G (1/m): R_ac = R_s * G. ``depth`` tau is chosen so
-    that G / (sigma tau) is the group's DC resistance (see ``internal_impedance``). Both
-    are scalars, or arrays of one value per geometry sample (shape (S, 1)).
+    ``geometry_factor`` is Wheeler's G (1/m): R_ac = R_s * G. For a signal conductor
+    ``depth`` tau is chosen so that G / (sigma tau) is its DC resistance; ``wide`` marks a
+    return plane or wide coplanar ground (``depth`` its thickness), whose DC resistance is
+    negligible (see ``internal_impedance``). G and tau are scalars, or arrays of one value
+    per geometry sample (shape (S, 1)).
     """
 
     name: str
@@ -105,6 +107,7 @@ class ConductorGroup:
     depth: float | np.ndarray
     conductor: Conductor
     roughness: Roughness = Smooth()
+    wide: bool = False
 
 
 @dataclass(frozen=True)
@@ -181,7 +184,9 @@ def assemble_mode(
     l_int = np.zeros(shape)
     for grp in groups:
         k = grp.roughness.factor(f, grp.conductor)
-        dr, dl = internal_impedance(f, grp.conductor, grp.geometry_factor, grp.depth, k)
+        dr, dl = internal_impedance(
+            f, grp.conductor, grp.geometry_factor, grp.depth, k, wide=grp.wide
+        )
         r = r + dr
         l_int = l_int + dl
     return Mode(name, np.array(eps_eff), np.array(z0), r, l_ext + l_int, g, c)

@@ -148,6 +148,6 @@ class Stripline(CrossSection):
         m = self.metal
         return [
             ConductorGroup("strip", g_strip, g_strip * w * t, m.conductor, m.foil),
-            ConductorGroup("lower plane", g_low, m.plane_thickness, m.conductor, m.planes),
-            ConductorGroup("upper plane", g_high, m.plane_thickness, m.conductor, m.planes),
+            ConductorGroup("lower plane", g_low, m.plane_thickness, m.conductor, m.planes, True),
+            ConductorGroup("upper plane", g_high, m.plane_thickness, m.conductor, m.planes, True),
         ]

@@ -24,8 +24,9 @@ vacuum) the line constants at any frequency follow without another solve:
   vacuum solution (``solve.py``) joined to the exact DC resistance by the slab internal
   impedance of ``materials.conductor.internal_impedance`` (the same DC-to-skin transition
   and depth convention as the closed-form models: depth = G * area for a signal
-  conductor, the plane thickness for planes, half the copper thickness for coplanar
-  grounds), with the foil's roughness factor on the part above DC.
+  conductor, which makes its DC resistance exact; planes and coplanar grounds are wide,
+  with their thickness as depth and a negligible DC resistance), with the foil's
+  roughness factor on the part above DC.
 
 This is a quasi-static (quasi-TEM) model: eps_eff(f) follows the materials' dispersion
 only, not the geometric dispersion of microstrip and coplanar lines (the Kirschning-
@@ -137,10 +138,12 @@ class FieldSection(CrossSection):
                 r[:, k, k] += r_dc
                 l_int += lk[:, None, None] * shape
             else:
-                depth = m.plane_thickness if grp.kind == "plane" else grp.thickness / 2.0
+                # planes and coplanar grounds are wide: negligible DC resistance, the
+                # same convention as the closed-form models
+                depth = m.plane_thickness if grp.kind == "plane" else grp.thickness
                 rough_model = m.planes if grp.kind == "plane" else m.foil
                 rough = rough_model.factor(f, m.conductor)
-                rg, lg = internal_impedance(f, m.conductor, 1.0, depth, rough)
+                rg, lg = internal_impedance(f, m.conductor, 1.0, depth, rough, wide=True)
                 r += rg[:, None, None] * grp.matrix
                 l_int += lg[:, None, None] * grp.matrix
         return r, l_ext + l_int, g, c, np.array(l_ext)
