@@ -43,7 +43,12 @@ DEMO_PLOTS_TARGET_S = 3.0
 
 def _env() -> dict[str, str]:
     path = os.environ.get("PYTHONPATH", "")
-    return {**os.environ, "PYTHONPATH": str(SRC) + (os.pathsep + path if path else "")}
+    env = {**os.environ, "PYTHONPATH": str(SRC) + (os.pathsep + path if path else "")}
+    # as on a user's machine: compiled bytecode is cached after the first run (installed
+    # packages such as scikit-rf have theirs from pip already); some shells set
+    # PYTHONDONTWRITEBYTECODE, which would recompile losslane's sources on every run
+    env.pop("PYTHONDONTWRITEBYTECODE", None)
+    return env
 
 
 def _cpu_children() -> float:

@@ -172,27 +172,41 @@ def modal_scaled_abcd(
 
 def line_scaled_abcd(rlgc: RLGC, length: float) -> ScaledABCD:
     """Scaled chain matrix (with its reverse) of ``length`` metres of a uniform line."""
-    z, y = rlgc.z(), rlgc.y()
     if rlgc.n == 1:
-        m, s = single_scaled_abcd(z[:, 0, 0], y[:, 0, 0], length)
-    else:
-        m, s = modal_scaled_abcd(z, y, length, decomposition=_decomposition(rlgc))
+        z, y, gamma = _line_constants(rlgc)
+        gl = gamma * length
+        s = np.abs(gl.real)
+        ch, shc = scaled_cosh_sinhc(gl, s)
+        # built frequency-last, the layout the cascade multiplies in
+        fl = np.empty((2, 2) + z.shape, dtype=complex)
+        fl[0, 0] = fl[1, 1] = ch
+        fl[0, 1] = z * (length * shc)
+        fl[1, 0] = y * (length * shc)
+        return ScaledABCD.reciprocal_fl(fl, s)
+    z, y = rlgc.z(), rlgc.y()
+    m, s = modal_scaled_abcd(z, y, length, decomposition=_line_constants(rlgc))
     return ScaledABCD.reciprocal(m, s)
 
 
-# one channel reuses a cross-section in several segments: its RLGC and the (length-
-# independent) modal decomposition are computed once per sweep
-_DECOMPOSITIONS: dict[int, tuple] = {}
+# one channel reuses a cross-section in several segments: its RLGC and the length-
+# independent line constants (Z, Y and gamma, or the modal decomposition) are computed
+# once per sweep
+_CONSTANTS: dict[int, tuple] = {}
 
 
-def _decomposition(rlgc: RLGC) -> tuple:
+def _line_constants(rlgc: RLGC) -> tuple:
     key = id(rlgc)
-    hit = _DECOMPOSITIONS.get(key)
+    hit = _CONSTANTS.get(key)
     if hit is None or hit[0] is not rlgc:
-        if len(_DECOMPOSITIONS) > 16:
-            _DECOMPOSITIONS.clear()
-        hit = (rlgc, modal_decomposition(rlgc.z(), rlgc.y()))
-        _DECOMPOSITIONS[key] = hit
+        if len(_CONSTANTS) > 16:
+            _CONSTANTS.clear()
+        if rlgc.n == 1:
+            z, y = rlgc.z()[:, 0, 0], rlgc.y()[:, 0, 0]
+            value = (z, y, np.sqrt(z * y))
+        else:
+            value = modal_decomposition(rlgc.z(), rlgc.y())
+        hit = (rlgc, value)
+        _CONSTANTS[key] = hit
     return hit[1]
 
 

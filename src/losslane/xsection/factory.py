@@ -192,14 +192,25 @@ def _field_dielectrics(
     return out
 
 
-def _register_field_solver() -> None:
-    """Builders and extra keys of the 2-D field solver (xsection/fieldsolve/builders.py)."""
-    global FIELD_KEYS, FIELD_DIELECTRIC_KEYS
-    from losslane.xsection.fieldsolve import builders
+def _field_builder(kind: str) -> Callable[..., CrossSection]:
+    """The field solver's builder for ``kind``, imported on first use (start-up time)."""
 
-    FIELD_BUILDERS.update(builders.BUILDERS)
-    FIELD_KEYS = tuple(dict.fromkeys(FIELD_KEYS + builders.EXTRA_KEYS))
-    FIELD_DIELECTRIC_KEYS = tuple(dict.fromkeys(FIELD_DIELECTRIC_KEYS + builders.DIELECTRIC_KEYS))
+    def build(*args):
+        from losslane.xsection.fieldsolve.builders import BUILDERS
+
+        return BUILDERS[kind](*args)
+
+    return build
+
+
+def _register_field_solver() -> None:
+    """Builders and extra keys of the 2-D field solver (xsection/fieldsolve/)."""
+    global FIELD_KEYS, FIELD_DIELECTRIC_KEYS
+    from losslane.xsection.fieldsolve import keys
+
+    FIELD_BUILDERS.update({kind: _field_builder(kind) for kind in keys.KINDS})
+    FIELD_KEYS = tuple(dict.fromkeys(FIELD_KEYS + keys.EXTRA_KEYS))
+    FIELD_DIELECTRIC_KEYS = tuple(dict.fromkeys(FIELD_DIELECTRIC_KEYS + keys.DIELECTRIC_KEYS))
 
 
 _register_field_solver()

@@ -8,6 +8,13 @@ scenario kinds mapped onto it), ``plot`` (a picture of the section and its field
 scikit-fem and matplotlib are imported only inside the functions that use them.
 """
 
-from losslane.xsection.fieldsolve.geometry import Coating, Geometry, Layer, Trace
-
 __all__ = ["Coating", "Geometry", "Layer", "Trace"]
+
+
+def __getattr__(name: str):
+    # lazy: the line factory imports fieldsolve.keys at start-up, not the solver
+    if name in __all__:
+        from losslane.xsection.fieldsolve import geometry
+
+        return getattr(geometry, name)
+    raise AttributeError(name)

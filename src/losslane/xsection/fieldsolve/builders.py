@@ -27,20 +27,9 @@ from losslane.materials.dielectric import Dielectric
 from losslane.spec import key_name, number, quantity, text
 from losslane.xsection.base import Metal
 from losslane.xsection.fieldsolve.geometry import Coating, Geometry, Layer, Trace
+from losslane.xsection.fieldsolve.keys import DIELECTRIC_KEYS, EXTRA_KEYS, KINDS
 from losslane.xsection.fieldsolve.section import FieldSection
 from losslane.xsection.fieldsolve.solve import LEVELS
-
-#: extra keys the field solver accepts on top of each kind's own keys
-EXTRA_KEYS = (
-    "top_width",
-    "etch_factor",
-    "coating_thickness",
-    "coating_dielectric",
-    "dielectric_above",
-    "accuracy",
-)
-#: extra keys whose values are dielectrics (names are resolved by the caller)
-DIELECTRIC_KEYS = ("coating_dielectric", "dielectric_above")
 
 _COATED = ("microstrip", "cpw", "gcpw", "microstrip-pair")
 _BURIED = ("stripline", "stripline-pair")
@@ -193,3 +182,6 @@ BUILDERS: dict[str, Callable[..., FieldSection]] = {
     "microstrip-pair": lambda g, d, m, s, w: microstrip(g, d, m, s, w, "microstrip-pair"),
     "stripline-pair": lambda g, d, m, s, w: stripline(g, d, m, s, w, "stripline-pair"),
 }
+
+assert tuple(BUILDERS) == KINDS, "fieldsolve.keys.KINDS must list every builder"
+__all__ = ["BUILDERS", "DIELECTRIC_KEYS", "EXTRA_KEYS", "KINDS"]

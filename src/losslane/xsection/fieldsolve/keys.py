@@ -1,0 +1,16 @@
+"""The scenario keys and kinds of the field solver, kept apart from the solver so that the
+line factory can check a spec without importing the solver (start-up time)."""
+
+#: extra keys the field solver accepts on top of each kind's own keys
+EXTRA_KEYS = (
+    "top_width",
+    "etch_factor",
+    "coating_thickness",
+    "coating_dielectric",
+    "dielectric_above",
+    "accuracy",
+)
+#: extra keys whose values are dielectrics (names are resolved by the caller)
+DIELECTRIC_KEYS = ("coating_dielectric", "dielectric_above")
+#: the line kinds the solver builds (builders.BUILDERS has one entry for each)
+KINDS = ("microstrip", "stripline", "cpw", "gcpw", "microstrip-pair", "stripline-pair")
