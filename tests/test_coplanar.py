@@ -130,7 +130,7 @@ def test_zero_thickness_matches_scikit_rf(w, gap, h, er, tand, grounded) -> None
     # part of eps_r, as losslane does. Both implement the same published formulas; the
     # tolerance 1e-5 covers scikit-rf's K/K' (Hilberg's approximation, 2 ppm).
     # Dispersion is compared over the whole sweep, past Frankel's fitted 10 f_TE for the
-    # thicker substrates: this is a transcription check, not an accuracy claim.
+    # thicker substrates: this checks the written-out formula, not an accuracy claim.
     line = Coplanar(w, gap, h, 0.0, WidebandDebye(er, tand, 10e9), grounded)
     m = quiet(line.modes, F)["single"]
     sk = skrf_cpw(w, gap, h, 0.0, er, tand, grounded, "qucs")

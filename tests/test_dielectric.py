@@ -84,7 +84,7 @@ def test_constant_model_is_flagged_non_causal() -> None:
 
 @pytest.mark.parametrize(("dk", "df", "at"), CASES)
 def test_matches_scikit_rf_djordjevic_svensson(dk: float, df: float, at: float) -> None:
-    # scikit-rf's MLine carries its own transcription of the same model (diel=
+    # scikit-rf's MLine carries its own implementation of the same model (diel=
     # 'djordjevicsvensson', Djordjevic 2001 / Svensson-Dermer 2001) with the same corner
     # frequencies 1 kHz and 1 THz: the complex permittivities agree to rounding
     import skrf as rf

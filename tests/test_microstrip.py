@@ -69,7 +69,7 @@ def laminate(er, tand, diel):
 def test_zero_thickness_matches_scikit_rf(u, er, tand, diel) -> None:
     # Hammerstad & Jensen (IEEE MTT-S Digest 1980) quasi-static, Kirschning & Jansen
     # (Electron. Lett. 18(6) 1982) eps_eff dispersion, Jansen & Kirschning (AEU 37, 1983)
-    # Z0 dispersion. scikit-rf's MLine is a separate transcription of the same papers.
+    # Z0 dispersion. scikit-rf's MLine is a separate implementation of the same papers.
     # Its 'qucs' mode evaluates them with the real part of eps_r, as losslane does; the two
     # then agree to 1e-8 (the published accuracies, 0.2 % for HJ eps_eff and 0.6 % for KJ,
     # are against field solutions; here the same formulas are compared, and what is left is

@@ -80,7 +80,7 @@ def test_zero_thickness_centred_stripline_is_cohns_exact_value(wb: float, er: fl
     np.testing.assert_allclose(zr, cohn_z0(wb * b, b, er), rtol=1e-9)
 
 
-def test_wheelers_formula_transcription_agrees_with_cohn_at_zero_thickness() -> None:
+def test_wheelers_formula_as_written_agrees_with_cohn_at_zero_thickness() -> None:
     # a check of the test's own Wheeler formula: at t = 0 it must sit within its quoted
     # 0.5 % of the exact value over its range
     b = 1.0
