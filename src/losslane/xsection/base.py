@@ -3,6 +3,7 @@ the derived line properties (impedance, delay, loss per inch) that the outputs r
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -48,6 +49,16 @@ def positive(kind: str, key: str, value: ArrayLike, allow_zero: bool = False) ->
         )
 
 
+#: dimensions for which 0 is a valid limit (a zero-thickness strip); every other is > 0
+MAY_BE_ZERO = ("thickness",)
+
+
+def check_dimensions(kind: str, dimensions: Mapping[str, ArrayLike]) -> None:
+    """``positive`` for each {key: length or samples}, in order (0 allowed in ``MAY_BE_ZERO``)."""
+    for key, value in dimensions.items():
+        positive(kind, key, value, allow_zero=key in MAY_BE_ZERO)
+
+
 def strip_loss_modelled(kind: str, thickness: ArrayLike, what: str, example: str) -> bool:
     """Whether the closed-form conductor loss applies: not for a strip of zero thickness
     (Wheeler's rule needs the strip's walls; the edge current of a zero-thickness strip
@@ -79,7 +90,8 @@ class CrossSection:
     The closed-form models instead implement ``mode_arrays`` and name their length fields
     in ``dimensions``; their ``modes(f)`` is then ``mode_arrays`` at the section's own
     dimensions, so one code path serves a single line and a batch of geometry samples
-    (``xsection.batch``).
+    (``xsection.batch``), and each dimension is checked on construction
+    (``check_dimensions``).
     """
 
     kind: str = ""
@@ -88,10 +100,16 @@ class CrossSection:
     #: the length fields that ``mode_arrays`` takes as keyword arguments
     dimensions: tuple[str, ...] = ()
 
+    def __post_init__(self) -> None:
+        # run by the dataclass __init__ of the closed-form models
+        check_dimensions(self.kind, self._dimension_values())
+
+    def _dimension_values(self) -> dict[str, float]:
+        return {k: getattr(self, k) for k in self.dimensions}
+
     def modes(self, f: np.ndarray) -> dict[str, Mode]:
         f = np.atleast_1d(np.asarray(f, dtype=float))
-        dims = {k: getattr(self, k) for k in self.dimensions}
-        return self.mode_arrays(f, self.dielectric.eps(f), **dims)
+        return self.mode_arrays(f, self.dielectric.eps(f), **self._dimension_values())
 
     def mode_arrays(
         self, f: np.ndarray, eps_r: np.ndarray, **dimensions: ArrayLike

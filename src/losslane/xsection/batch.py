@@ -33,7 +33,7 @@ import numpy as np
 from losslane.errors import LossLaneError, LossLaneWarning, warn
 from losslane.materials.dielectric import Dielectric
 from losslane.units import INCH
-from losslane.xsection.base import CrossSection, positive
+from losslane.xsection.base import CrossSection, check_dimensions
 from losslane.xsection.coplanar import Coplanar
 from losslane.xsection.coupled import MicrostripPair, StriplinePair
 from losslane.xsection.microstrip import Microstrip
@@ -150,8 +150,7 @@ def evaluate(
         for k, v in nominal.items()
     }
     scale = np.broadcast_to(scale, n).astype(float)
-    for key, v in geo.items():
-        positive(section.kind, key, v, allow_zero=key == "thickness")
+    check_dimensions(section.kind, geo)
     if np.any(~np.isfinite(scale) | (scale * section.dielectric.dk < 1.0)):
         raise LossLaneError(
             f"{section.kind}: a Dk sample falls below 1 (air); use a smaller Dk tolerance"

@@ -33,7 +33,7 @@ from numpy.typing import ArrayLike
 
 from losslane.errors import LossLaneError, check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, positive, strip_loss_modelled
+from losslane.xsection.base import CrossSection, Metal, strip_loss_modelled
 from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
 
 
@@ -169,10 +169,7 @@ class Coplanar(CrossSection):
         return "gcpw" if self.grounded else "cpw"
 
     def __post_init__(self) -> None:
-        positive(self.kind, "width", self.width)
-        positive(self.kind, "gap", self.gap)
-        positive(self.kind, "height", self.height)
-        positive(self.kind, "thickness", self.thickness, allow_zero=True)
+        super().__post_init__()
         check_gap(self.kind, self.width, self.gap, self.thickness)
 
     def mode_arrays(

@@ -59,7 +59,7 @@ from numpy.typing import ArrayLike
 
 from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, positive, strip_loss_modelled
+from losslane.xsection.base import CrossSection, Metal, strip_loss_modelled
 from losslane.xsection.microstrip import (
     hj_eps_eff,
     hj_quasi_static,
@@ -470,12 +470,6 @@ class MicrostripPair(CrossSection):
     n_conductors = 2
     dimensions = ("width", "spacing", "height", "thickness")
 
-    def __post_init__(self) -> None:
-        positive(self.kind, "width", self.width)
-        positive(self.kind, "spacing", self.spacing)
-        positive(self.kind, "height", self.height)
-        positive(self.kind, "thickness", self.thickness, allow_zero=True)
-
     def mode_arrays(
         self,
         f: np.ndarray,
@@ -557,13 +551,6 @@ class StriplinePair(CrossSection):
     kind = "stripline-pair"
     n_conductors = 2
     dimensions = ("width", "spacing", "below", "above", "thickness")
-
-    def __post_init__(self) -> None:
-        positive(self.kind, "width", self.width)
-        positive(self.kind, "spacing", self.spacing)
-        positive(self.kind, "below", self.below)
-        positive(self.kind, "above", self.above)
-        positive(self.kind, "thickness", self.thickness, allow_zero=True)
 
     @property
     def plane_spacing(self) -> float:

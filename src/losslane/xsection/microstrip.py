@@ -22,7 +22,7 @@ from numpy.typing import ArrayLike
 
 from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, positive, strip_loss_modelled
+from losslane.xsection.base import CrossSection, Metal, strip_loss_modelled
 from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
 
 
@@ -142,11 +142,6 @@ class Microstrip(CrossSection):
     metal: Metal = field(default_factory=Metal)
     kind = "microstrip"
     dimensions = ("width", "height", "thickness")
-
-    def __post_init__(self) -> None:
-        positive(self.kind, "width", self.width)
-        positive(self.kind, "height", self.height)
-        positive(self.kind, "thickness", self.thickness, allow_zero=True)
 
     def mode_arrays(
         self,

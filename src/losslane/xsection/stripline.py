@@ -23,7 +23,7 @@ from numpy.typing import ArrayLike
 
 from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, positive, strip_loss_modelled
+from losslane.xsection.base import CrossSection, Metal, strip_loss_modelled
 from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
 
 
@@ -88,12 +88,6 @@ class Stripline(CrossSection):
     metal: Metal = field(default_factory=Metal)
     kind = "stripline"
     dimensions = ("width", "below", "above", "thickness")
-
-    def __post_init__(self) -> None:
-        positive(self.kind, "width", self.width)
-        positive(self.kind, "below", self.below)
-        positive(self.kind, "above", self.above)
-        positive(self.kind, "thickness", self.thickness, allow_zero=True)
 
     @property
     def spacing(self) -> float:
