@@ -3,7 +3,7 @@ the derived line properties (impedance, delay, loss per inch) that the outputs r
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -14,7 +14,14 @@ from losslane.materials.conductor import COPPER, Conductor
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness, Smooth
 from losslane.units import INCH, OZ_COPPER
-from losslane.xsection.rlgc import NP_TO_DB, RLGC, Mode, attenuation_split
+from losslane.xsection.rlgc import (
+    NP_TO_DB,
+    RLGC,
+    ConductorGroup,
+    Mode,
+    attenuation_split,
+    wheeler_factor,
+)
 
 
 @dataclass(frozen=True)
@@ -77,6 +84,35 @@ def strip_loss_modelled(kind: str, thickness: ArrayLike, what: str, example: str
             "zero-thickness samples separately"
         )
     return True
+
+
+#: how a conductor's walls recede by dn into the metal: (geometry params, dn) -> params
+Recede = Callable[[tuple, np.ndarray], tuple]
+
+
+def strip_and_planes(
+    z_air: Callable[[tuple], np.ndarray],
+    p0: tuple,
+    strip: tuple[str, Recede],
+    planes: list[tuple[str, Recede]],
+    scale: np.ndarray,
+    area: np.ndarray,
+    metal: Metal,
+) -> list[ConductorGroup]:
+    """Wheeler's conductor groups of one mode: the strip(s), then each return plane.
+
+    The strips' depth is G * ``area`` (their exact DC resistance); a plane's is
+    ``metal.plane_thickness`` with the planes' foil, marked wide.
+    """
+    name, recede = strip
+    g_strip = wheeler_factor(z_air, p0, recede, scale)
+    groups = [ConductorGroup(name, g_strip, g_strip * area, metal.conductor, metal.foil)]
+    for name, recede in planes:
+        g = wheeler_factor(z_air, p0, recede, scale)
+        groups.append(
+            ConductorGroup(name, g, metal.plane_thickness, metal.conductor, metal.planes, True)
+        )
+    return groups
 
 
 class CrossSection:

@@ -51,7 +51,6 @@ depth G * w * t makes the DC resistance of a strip 1/(sigma w t) in both modes.
 
 from __future__ import annotations
 
-from collections.abc import Callable
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -59,7 +58,7 @@ from numpy.typing import ArrayLike
 
 from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, strip_loss_modelled
+from losslane.xsection.base import CrossSection, Metal, strip_and_planes, strip_loss_modelled
 from losslane.xsection.microstrip import (
     hj_eps_eff,
     hj_quasi_static,
@@ -68,7 +67,7 @@ from losslane.xsection.microstrip import (
     jk_z0,
     kj_eps_eff,
 )
-from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
+from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode
 from losslane.xsection.stripline import centred_z_air, cohn_z_air
 
 MODES = ("even", "odd")
@@ -430,26 +429,6 @@ def stripline_pair_z_air(
 # ---------------------------------------------------------------------------------------
 
 
-def _mode_groups(
-    z_air: Callable[[tuple], np.ndarray],
-    p0: tuple,
-    strip_recede: Callable[[tuple, np.ndarray], tuple],
-    planes: list[tuple[str, Callable[[tuple, np.ndarray], tuple]]],
-    scale: np.ndarray,
-    area: np.ndarray,
-    metal: Metal,
-) -> list[ConductorGroup]:
-    """Wheeler's conductor groups of one mode: both strips, then each return plane."""
-    g_strip = wheeler_factor(z_air, p0, strip_recede, scale)
-    groups = [ConductorGroup("strips", g_strip, g_strip * area, metal.conductor, metal.foil)]
-    for name, recede in planes:
-        g = wheeler_factor(z_air, p0, recede, scale)
-        groups.append(
-            ConductorGroup(name, g, metal.plane_thickness, metal.conductor, metal.planes, True)
-        )
-    return groups
-
-
 #: what the zero-thickness warning of a pair names, and the thickness it suggests
 _NO_THICKNESS = ("the strips' conductor loss", "'1.4 mil' or '1 oz'")
 
@@ -524,10 +503,10 @@ class MicrostripPair(CrossSection):
     def _groups(
         self, mode: str, w: np.ndarray, s: np.ndarray, h: np.ndarray, t: np.ndarray
     ) -> list[ConductorGroup]:
-        return _mode_groups(
+        return strip_and_planes(
             lambda p: kj_mode_z_air(mode, *p),
             (w, s, h, t),
-            lambda p, d: (p[0] - 2 * d, p[1] + 2 * d, p[2] + d, p[3] - 2 * d),
+            ("strips", lambda p, d: (p[0] - 2 * d, p[1] + 2 * d, p[2] + d, p[3] - 2 * d)),
             [("plane", lambda p, d: (p[0], p[1], p[2] + d, p[3]))],
             np.minimum(np.minimum(w, s), np.minimum(h, t)),
             w * t,
@@ -612,10 +591,10 @@ class StriplinePair(CrossSection):
         hi: np.ndarray,
         t: np.ndarray,
     ) -> list[ConductorGroup]:
-        return _mode_groups(
+        return strip_and_planes(
             lambda p: stripline_pair_z_air(mode, *p),
             (w, s, lo, hi, t),
-            lambda p, d: (p[0] - 2 * d, p[1] + 2 * d, p[2] + d, p[3] + d, p[4] - 2 * d),
+            ("strips", lambda p, d: (p[0] - 2 * d, p[1] + 2 * d, p[2] + d, p[3] + d, p[4] - 2 * d)),
             [
                 ("lower plane", lambda p, d: (p[0], p[1], p[2] + d, p[3], p[4])),
                 ("upper plane", lambda p, d: (p[0], p[1], p[2], p[3] + d, p[4])),

@@ -22,8 +22,8 @@ from numpy.typing import ArrayLike
 
 from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, strip_loss_modelled
-from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
+from losslane.xsection.base import CrossSection, Metal, strip_and_planes, strip_loss_modelled
+from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode
 
 
 def hj_z_air(u: np.ndarray) -> np.ndarray:
@@ -178,14 +178,12 @@ class Microstrip(CrossSection):
             self.kind, t, "the strip's conductor loss", "'1.4 mil' or '1 oz'"
         ):
             return []
-        scale = np.minimum(np.minimum(w, h), t)
-        za = lambda p: hj_thick_z_air(*p)  # noqa: E731
-        g_strip = wheeler_factor(
-            za, (w, h, t), lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - 2 * d), scale
+        return strip_and_planes(
+            lambda p: hj_thick_z_air(*p),
+            (w, h, t),
+            ("strip", lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - 2 * d)),
+            [("plane", lambda p, d: (p[0], p[1] + d, p[2]))],
+            np.minimum(np.minimum(w, h), t),
+            w * t,
+            self.metal,
         )
-        g_plane = wheeler_factor(za, (w, h, t), lambda p, d: (p[0], p[1] + d, p[2]), scale)
-        m = self.metal
-        return [
-            ConductorGroup("strip", g_strip, g_strip * w * t, m.conductor, m.foil),
-            ConductorGroup("plane", g_plane, m.plane_thickness, m.conductor, m.planes, True),
-        ]

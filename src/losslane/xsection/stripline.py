@@ -23,8 +23,8 @@ from numpy.typing import ArrayLike
 
 from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, strip_loss_modelled
-from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
+from losslane.xsection.base import CrossSection, Metal, strip_and_planes, strip_loss_modelled
+from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode
 
 
 def k_ratio_sech(x: np.ndarray) -> np.ndarray:
@@ -131,17 +131,15 @@ class Stripline(CrossSection):
             self.kind, t, "the strip's conductor loss", "'0.6 mil' or '0.5 oz'"
         ):
             return []
-        scale = np.minimum(np.minimum(w, lo), np.minimum(hi, t))
-        za = lambda p: stripline_z_air(*p)  # noqa: E731
-        p0 = (w, lo, hi, t)
-        g_strip = wheeler_factor(
-            za, p0, lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] + d, p[3] - 2 * d), scale
+        return strip_and_planes(
+            lambda p: stripline_z_air(*p),
+            (w, lo, hi, t),
+            ("strip", lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] + d, p[3] - 2 * d)),
+            [
+                ("lower plane", lambda p, d: (p[0], p[1] + d, p[2], p[3])),
+                ("upper plane", lambda p, d: (p[0], p[1], p[2] + d, p[3])),
+            ],
+            np.minimum(np.minimum(w, lo), np.minimum(hi, t)),
+            w * t,
+            self.metal,
         )
-        g_low = wheeler_factor(za, p0, lambda p, d: (p[0], p[1] + d, p[2], p[3]), scale)
-        g_high = wheeler_factor(za, p0, lambda p, d: (p[0], p[1], p[2] + d, p[3]), scale)
-        m = self.metal
-        return [
-            ConductorGroup("strip", g_strip, g_strip * w * t, m.conductor, m.foil),
-            ConductorGroup("lower plane", g_low, m.plane_thickness, m.conductor, m.planes, True),
-            ConductorGroup("upper plane", g_high, m.plane_thickness, m.conductor, m.planes, True),
-        ]
