@@ -64,8 +64,10 @@ from losslane.xsection.microstrip import (
     hj_quasi_static,
     hj_thickness,
     hj_z_air,
+    jk_exponent,
     jk_z0,
     kj_eps_eff,
+    kj_p1_p4,
 )
 from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode
 from losslane.xsection.stripline import centred_z_air, cohn_z_air
@@ -206,28 +208,11 @@ def kj_quasi_static(
     return out
 
 
-def _jk_exponent(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> np.ndarray:
-    """The exponent R17 of Jansen-Kirschning's single-strip Z0(f) (as in ``jk_z0``), which
-    Kirschning-Jansen's even-mode Z0(f) uses as Q0."""
-    r1 = 0.03891 * er**1.4
-    r2 = 0.267 * u**7
-    r7 = 1.206 - 0.3144 * np.exp(-r1) * (1.0 - np.exp(-r2))
-    r10 = 0.00044 * er**2.136 + 0.0184
-    r11 = (fn / 19.47) ** 6 / (1.0 + 0.0962 * (fn / 19.47) ** 6)
-    r12 = 1.0 / (1.0 + 0.00245 * u**2)
-    r15 = 0.707 * r10 * (fn / 12.3) ** 1.097
-    r16 = 1.0 + 0.0503 * er**2 * r11 * (1.0 - np.exp(-((u / 15.0) ** 6)))
-    return r7 * (1.0 - 1.1241 * r12 / r16 * np.exp(-0.026 * fn**1.15656 - r15))
-
-
 def kj_dispersion_eps(
     u: ArrayLike, g: ArrayLike, er: ArrayLike, eps_e0: ArrayLike, eps_o0: ArrayLike, fn: ArrayLike
 ) -> tuple[np.ndarray, np.ndarray]:
     """Kirschning-Jansen eps_e(f), eps_o(f) from the quasi-static values; fn = f[GHz] h[mm]."""
-    p1 = 0.27488 + (0.6315 + 0.525 / (1.0 + 0.0157 * fn) ** 20) * u - 0.065683 * np.exp(-8.7513 * u)
-    p2 = 0.33622 * (1.0 - np.exp(-0.03442 * er))
-    p3 = 0.0363 * np.exp(-4.6 * u) * (1.0 - np.exp(-((fn / 38.7) ** 4.97)))
-    p4 = 1.0 + 2.751 * (1.0 - np.exp(-((er / 15.916) ** 8)))
+    p1, p2, p3, p4 = kj_p1_p4(u, er, fn)
     p5 = 0.334 * np.exp(-3.3 * (er / 15.0) ** 3) + 0.746
     p6 = p5 * np.exp(-((fn / 18.0) ** 0.368))
     p7 = 1.0 + 4.069 * p6 * g**0.479 * np.exp(-1.347 * g**0.595 - 0.17 * g**2.5)
@@ -308,7 +293,8 @@ def kj_dispersion_z(
         + q18
         + q20
     )
-    q0 = _jk_exponent(u, er, fn)
+    # R2's coefficient as this model was written (0.267; the single strip's jk_z0: 0.2671)
+    q0 = jk_exponent(u, er, fn, r2_coefficient=0.267)
     num = 0.9408 * epsf**ce - 0.9603
     den = (0.9408 - de) * eps0**ce - 0.9603
     with np.errstate(invalid="ignore", divide="ignore"):
@@ -530,11 +516,6 @@ class StriplinePair(CrossSection):
     kind = "stripline-pair"
     n_conductors = 2
     dimensions = ("width", "spacing", "below", "above", "thickness")
-
-    @property
-    def plane_spacing(self) -> float:
-        """Plane-to-plane spacing b."""
-        return self.below + self.above + self.thickness
 
     def mode_arrays(
         self,

@@ -81,27 +81,47 @@ def hj_thick_z_air(w: ArrayLike, h: ArrayLike, t: ArrayLike) -> np.ndarray:
     return hj_z_air(u1)
 
 
-def kj_eps_eff(u: ArrayLike, er: ArrayLike, eps0: ArrayLike, fn: ArrayLike) -> np.ndarray:
-    """Kirschning-Jansen dispersive eps_eff(f); fn = f[GHz] * h[mm]."""
+def kj_p1_p4(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> tuple[np.ndarray, ...]:
+    """Kirschning-Jansen's dispersion terms P1..P4 of the single strip, which their coupled-
+    line eps_e(f), eps_o(f) use as well; fn = f[GHz] * h[mm]."""
     p1 = 0.27488 + (0.6315 + 0.525 / (1.0 + 0.0157 * fn) ** 20) * u - 0.065683 * np.exp(-8.7513 * u)
     p2 = 0.33622 * (1.0 - np.exp(-0.03442 * er))
     p3 = 0.0363 * np.exp(-4.6 * u) * (1.0 - np.exp(-((fn / 38.7) ** 4.97)))
     p4 = 1.0 + 2.751 * (1.0 - np.exp(-((er / 15.916) ** 8)))
+    return p1, p2, p3, p4
+
+
+def kj_eps_eff(u: ArrayLike, er: ArrayLike, eps0: ArrayLike, fn: ArrayLike) -> np.ndarray:
+    """Kirschning-Jansen dispersive eps_eff(f); fn = f[GHz] * h[mm]."""
+    p1, p2, p3, p4 = kj_p1_p4(u, er, fn)
     p = p1 * p2 * ((0.1844 + p3 * p4) * fn) ** 1.5763
     return er - (er - eps0) / (1.0 + p)
+
+
+def jk_exponent(
+    u: ArrayLike, er: ArrayLike, fn: ArrayLike, r2_coefficient: float = 0.2671
+) -> np.ndarray:
+    """The exponent R17 of Jansen-Kirschning's Z0(f) (``jk_z0``), which Kirschning-Jansen's
+    coupled-line even-mode Z_e(f) uses as Q0; fn = f[GHz] * h[mm]."""
+    r1 = 0.03891 * er**1.4
+    r2 = r2_coefficient * u**7
+    r7 = 1.206 - 0.3144 * np.exp(-r1) * (1.0 - np.exp(-r2))
+    r10 = 0.00044 * er**2.136 + 0.0184
+    r11 = (fn / 19.47) ** 6 / (1.0 + 0.0962 * (fn / 19.47) ** 6)
+    r12 = 1.0 / (1.0 + 0.00245 * u**2)
+    r15 = 0.707 * r10 * (fn / 12.3) ** 1.097
+    r16 = 1.0 + 0.0503 * er**2 * r11 * (1.0 - np.exp(-((u / 15.0) ** 6)))
+    return r7 * (1.0 - 1.1241 * r12 / r16 * np.exp(-0.026 * fn**1.15656 - r15))
 
 
 def jk_z0(
     u: ArrayLike, er: ArrayLike, eps0: ArrayLike, eps_f: ArrayLike, z00: ArrayLike, fn: ArrayLike
 ) -> np.ndarray:
     """Jansen-Kirschning dispersive Z0(f); fn = f[GHz] * h[mm]."""
-    r1 = 0.03891 * er**1.4
-    r2 = 0.2671 * u**7
     r3 = 4.766 * np.exp(-3.228 * u**0.641)
     r4 = 0.016 + (0.0514 * er) ** 4.524
     r5 = (fn / 28.843) ** 12
     r6 = 22.2 * u**1.92
-    r7 = 1.206 - 0.3144 * np.exp(-r1) * (1.0 - np.exp(-r2))
     r8 = 1.0 + 1.275 * (1.0 - np.exp(-0.004625 * r3 * er**1.674 * (fn / 18.365) ** 2.745))
     r9 = (
         5.086
@@ -113,14 +133,9 @@ def jk_z0(
         * (er - 1.0) ** 6
         / (1.0 + 10.0 * (er - 1.0) ** 6)
     )
-    r10 = 0.00044 * er**2.136 + 0.0184
-    r11 = (fn / 19.47) ** 6 / (1.0 + 0.0962 * (fn / 19.47) ** 6)
-    r12 = 1.0 / (1.0 + 0.00245 * u**2)
     r13 = 0.9408 * eps_f**r8 - 0.9603
     r14 = (0.9408 - r9) * eps0**r8 - 0.9603
-    r15 = 0.707 * r10 * (fn / 12.3) ** 1.097
-    r16 = 1.0 + 0.0503 * er**2 * r11 * (1.0 - np.exp(-((u / 15.0) ** 6)))
-    r17 = r7 * (1.0 - 1.1241 * r12 / r16 * np.exp(-0.026 * fn**1.15656 - r15))
+    r17 = jk_exponent(u, er, fn)
     with np.errstate(invalid="ignore", divide="ignore"):
         ratio = r13 / r14
     # Near eps_r = 1 both terms approach -0.0195 and the ratio loses meaning; the line is
