@@ -5,11 +5,12 @@ from __future__ import annotations
 from collections.abc import Iterable, Mapping
 from pathlib import Path
 
+from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric, make_dielectric
 from losslane.materials.library import Library, load_library
 from losslane.materials.roughness import Roughness
 from losslane.spec import Where
-from losslane.units import parse_frequency_list
+from losslane.units import parse_frequency, parse_frequency_list
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
 
@@ -40,23 +41,20 @@ def line(
 
     ``geometry`` takes the scenario keys with units, e.g. ``width="6 mil"``.
     """
-    from losslane.errors import LossLaneError
-    from losslane.units import parse_frequency
-
-    lib = load_library(library_files)
-    spec: dict = {"kind": kind, **geometry}
-    if dielectric is not None and dk is not None:
-        raise LossLaneError("give either a dielectric name or dk/df values, not both")
-    if dk is not None:
-        at_hz = parse_frequency(dk_at, "dk_at") if dk_at is not None else None
-        spec["dielectric"] = make_dielectric(dk, df, at_hz, dielectric_model, "dielectric")
-    elif dielectric is not None:
-        spec["dielectric"] = dielectric
-    if foil is not None:
-        spec["foil"] = foil
-    section = section_from_spec(spec, where, lib.dielectric, lib.foil)
-    freqs = parse_frequency_list(at, "at")
-    return section.properties(freqs)
+    section = _design_section(
+        kind,
+        None,
+        dk=dk,
+        df=df,
+        dk_at=dk_at,
+        dielectric=dielectric,
+        dielectric_model=dielectric_model,
+        foil=foil,
+        library=load_library(library_files),
+        where=where,
+        geometry=geometry,
+    )
+    return section.properties(parse_frequency_list(at, "at"))
 
 
 def _design_section(
@@ -70,13 +68,10 @@ def _design_section(
     dielectric_model: str,
     foil: str | Roughness | None,
     library: Library,
-    where: str,
+    where: str | Where,
     geometry: dict,
 ) -> CrossSection:
     """A section from ``line``-style arguments; ``placeholder`` names the solved dimension."""
-    from losslane.errors import LossLaneError
-    from losslane.units import parse_frequency
-
     spec: dict = {"kind": kind, **geometry}
     if placeholder is not None:
         if placeholder in spec:
@@ -130,8 +125,6 @@ def size(
         where="size",
         geometry=geometry,
     )
-    from losslane.units import parse_frequency
-
     floss = parse_frequency_list(loss_at, "loss_at") if loss_at is not None else None
     return size_(
         sec, parse_target(target, "target"), at=parse_frequency(at, "at"), vary=vary, loss_at=floss
@@ -153,7 +146,6 @@ def compare(
     """The result of ``losslane compare --json`` (without the chart)."""
     from losslane.design.compare import compare as compare_
     from losslane.design.sizing import parse_target
-    from losslane.units import parse_frequency
 
     lib = load_library(library_files)
     mats = {n: lib.dielectric(n, "materials") for n in materials}
