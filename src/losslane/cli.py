@@ -44,6 +44,53 @@ def cli() -> None:
     """
 
 
+def _options(*decorators):
+    """One decorator applying ``decorators`` so that they show in --help in the order given."""
+
+    def apply(func):
+        for decorate in reversed(decorators):
+            func = decorate(func)
+        return func
+
+    return apply
+
+
+_JSON_OPTION = click.option(
+    "--json", "as_json", is_flag=True, help="print one JSON object instead of tables"
+)
+_LIBRARY_OPTION = click.option(
+    "--library",
+    "library_files",
+    multiple=True,
+    metavar="FILE",
+    help="extra library file(s) with [dielectrics.*] / [foils.*] entries",
+)
+_SOLVER_OPTION = click.option(
+    "--solver",
+    type=click.Choice(["closed-form", "field"]),
+    default="closed-form",
+    show_default=True,
+    help="closed-form models or the 2-D field solver",
+)
+_NO_PLOTS_OPTION = click.option("--no-plots", is_flag=True, help="skip the PNG plots")
+
+
+def _at_option(help: str, default: str = "1GHz,10GHz,28GHz", metavar: str = "FREQS"):
+    return click.option(
+        "--at", "at", default=default, show_default=True, metavar=metavar, help=help
+    )
+
+
+def _plot_options(default: str, help: str, no_plot_help: str):
+    """--plot FILE (a chart written by default) and --no-plot."""
+    return _options(
+        click.option(
+            "--plot", "plot", default=default, show_default=True, metavar="FILE", help=help
+        ),
+        click.option("--no-plot", is_flag=True, help=no_plot_help),
+    )
+
+
 LENGTH_OPTIONS = (
     "width",
     "thickness",
@@ -56,118 +103,100 @@ LENGTH_OPTIONS = (
 )
 
 
-def _geometry_options(func):
-    for name in reversed(LENGTH_OPTIONS):
-        func = click.option(
+_geometry_options = _options(
+    *(
+        click.option(
             f"--{name.replace('_', '-')}",
             name,
             metavar="LENGTH",
             help=f"{name.replace('_', ' ')} with a unit, e.g. 5mil, 0.127mm",
-        )(func)
-    return func
-
-
-def _material_options(func):
-    opts = [
-        click.option("--dk", type=float, help="relative permittivity of the dielectric"),
-        click.option("--df", type=float, help="loss tangent of the dielectric (default 0)"),
-        click.option("--dk-at", metavar="FREQ", help="frequency of the --dk/--df values"),
-        click.option(
-            "--dielectric-model",
-            type=click.Choice(["wideband-debye", "constant"]),
-            default="wideband-debye",
-            show_default=True,
-            help="causal wideband Debye fit, or constant (non-causal)",
-        ),
-        click.option(
-            "--dielectric",
-            "dielectric_name",
-            metavar="NAME",
-            help="a dielectric from the library (see `losslane materials`)",
-        ),
-        click.option("--foil", metavar="NAME", help="a copper foil from the library"),
-        click.option(
-            "--roughness-model",
-            type=click.Choice(["none", "hammerstad", "groiss"]),
-            help="roughness model with --rq, instead of --foil",
-        ),
-        click.option("--rq", metavar="LENGTH", help="RMS roughness for --roughness-model"),
-        click.option(
-            "--conductivity",
-            metavar="S/m",
-            help="conductor conductivity (default copper, 5.8e7 S/m)",
-        ),
-        click.option(
-            "--library",
-            "library_files",
-            multiple=True,
-            metavar="FILE",
-            help="extra library file(s) with [dielectrics.*] / [foils.*] entries",
-        ),
-    ]
-    for opt in reversed(opts):
-        func = opt(func)
-    return func
-
-
-#: field-solver options of `losslane line` (scenario keys of the same names)
-FIELD_OPTIONS = (
-    "top_width",
-    "etch_factor",
-    "coating_thickness",
-    "coating_dielectric",
-    "dielectric_above",
-    "accuracy",
+        )
+        for name in LENGTH_OPTIONS
+    )
 )
 
 
-def _field_options(func):
-    opts = [
-        click.option(
-            "--top-width",
-            "top_width",
-            metavar="LENGTH",
-            help="field solver: top width of an etched trace (width is the base)",
-        ),
-        click.option(
-            "--etch-factor",
-            "etch_factor",
-            type=float,
-            help="field solver: 2 x thickness / (width - top width)",
-        ),
-        click.option(
-            "--coating-thickness",
-            "coating_thickness",
-            metavar="LENGTH",
-            help="field solver: solder-mask thickness over the outer layer",
-        ),
-        click.option(
-            "--coating-dielectric",
-            "coating_dielectric",
-            metavar="NAME",
-            help="field solver: the coating's dielectric (e.g. solder-mask)",
-        ),
-        click.option(
-            "--dielectric-above",
-            "dielectric_above",
-            metavar="NAME",
-            help="field solver: stripline prepreg above the trace, if not --dielectric",
-        ),
-        click.option(
-            "--accuracy",
-            type=click.Choice(["coarse", "normal", "fine"]),
-            help="field solver: mesh setting (default normal)",
-        ),
-        click.option(
-            "--plot",
-            "plot",
-            metavar="FILE",
-            help="field solver: draw the cross-section and its field (.png/.svg/.pdf)",
-        ),
-    ]
-    for opt in reversed(opts):
-        func = opt(func)
-    return func
+_material_options = _options(
+    click.option("--dk", type=float, help="relative permittivity of the dielectric"),
+    click.option("--df", type=float, help="loss tangent of the dielectric (default 0)"),
+    click.option("--dk-at", metavar="FREQ", help="frequency of the --dk/--df values"),
+    click.option(
+        "--dielectric-model",
+        type=click.Choice(["wideband-debye", "constant"]),
+        default="wideband-debye",
+        show_default=True,
+        help="causal wideband Debye fit, or constant (non-causal)",
+    ),
+    click.option(
+        "--dielectric",
+        "dielectric_name",
+        metavar="NAME",
+        help="a dielectric from the library (see `losslane materials`)",
+    ),
+    click.option("--foil", metavar="NAME", help="a copper foil from the library"),
+    click.option(
+        "--roughness-model",
+        type=click.Choice(["none", "hammerstad", "groiss"]),
+        help="roughness model with --rq, instead of --foil",
+    ),
+    click.option("--rq", metavar="LENGTH", help="RMS roughness for --roughness-model"),
+    click.option(
+        "--conductivity",
+        metavar="S/m",
+        help="conductor conductivity (default copper, 5.8e7 S/m)",
+    ),
+    _LIBRARY_OPTION,
+)
+
+
+#: what every line-family command takes to describe the cross-section
+_section_options = _options(_geometry_options, _material_options, _SOLVER_OPTION)
+
+#: field-solver options of `losslane line`: the scenario keys of the same names
+#: (``fieldsolve.keys.EXTRA_KEYS``), and --plot
+_field_options = _options(
+    click.option(
+        "--top-width",
+        "top_width",
+        metavar="LENGTH",
+        help="field solver: top width of an etched trace (width is the base)",
+    ),
+    click.option(
+        "--etch-factor",
+        "etch_factor",
+        type=float,
+        help="field solver: 2 x thickness / (width - top width)",
+    ),
+    click.option(
+        "--coating-thickness",
+        "coating_thickness",
+        metavar="LENGTH",
+        help="field solver: solder-mask thickness over the outer layer",
+    ),
+    click.option(
+        "--coating-dielectric",
+        "coating_dielectric",
+        metavar="NAME",
+        help="field solver: the coating's dielectric (e.g. solder-mask)",
+    ),
+    click.option(
+        "--dielectric-above",
+        "dielectric_above",
+        metavar="NAME",
+        help="field solver: stripline prepreg above the trace, if not --dielectric",
+    ),
+    click.option(
+        "--accuracy",
+        type=click.Choice(["coarse", "normal", "fine"]),
+        help="field solver: mesh setting (default normal)",
+    ),
+    click.option(
+        "--plot",
+        "plot",
+        metavar="FILE",
+        help="field solver: draw the cross-section and its field (.png/.svg/.pdf)",
+    ),
+)
 
 
 def line_spec(kind: str, options: dict, where) -> dict:
@@ -175,6 +204,7 @@ def line_spec(kind: str, options: dict, where) -> dict:
     from losslane.materials.dielectric import make_dielectric
     from losslane.materials.library import foil_from_spec
     from losslane.units import parse_frequency
+    from losslane.xsection.fieldsolve.keys import EXTRA_KEYS
 
     spec: dict = {"kind": kind}
     for name in LENGTH_OPTIONS:
@@ -234,41 +264,44 @@ def line_spec(kind: str, options: dict, where) -> dict:
         spec["conductivity"] = options["conductivity"]
     if options.get("solver") is not None:
         spec["solver"] = options["solver"]
-    for name in FIELD_OPTIONS:
+    for name in EXTRA_KEYS:
         if options.get(name) is not None:
             spec[name] = options[name]
     return spec
 
 
+def _library(options: dict):
+    """The material library with the --library files (taken out of ``options``)."""
+    from losslane.materials.library import load_library
+
+    return load_library(options.pop("library_files"))
+
+
+def _line_section(kind: str, options: dict, where, lib):
+    """The cross-section the line-family options describe, names resolved in ``lib``."""
+    from losslane.xsection.factory import section_from_spec
+
+    return section_from_spec(line_spec(kind, options, where), where, lib.dielectric, lib.foil)
+
+
+def _echo(out: dict, as_json: bool, table) -> None:
+    """``out`` as one JSON object on stdout, or the text ``table(out)``."""
+    import json
+
+    click.echo(json.dumps(out) if as_json else table(out))
+
+
 @cli.command("line")
 @click.argument("kind")
-@_geometry_options
-@_material_options
-@click.option(
-    "--solver",
-    type=click.Choice(["closed-form", "field"]),
-    default="closed-form",
-    show_default=True,
-    help="closed-form models or the 2-D field solver",
-)
-@click.option(
-    "--at",
-    "at",
-    default="1GHz,10GHz,28GHz",
-    show_default=True,
-    metavar="FREQS",
-    help="frequencies, comma-separated (e.g. 1GHz,10GHz or 1,10,28GHz)",
-)
-@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+@_section_options
+@_at_option("frequencies, comma-separated (e.g. 1GHz,10GHz or 1,10,28GHz)")
+@_JSON_OPTION
 @_field_options
 def line_command(kind: str, at: str, as_json: bool, plot: str | None = None, **options) -> None:
     """Impedance, delay, loss per inch and RLGC of one cross-section.
 
     KIND is microstrip, stripline, cpw, gcpw, microstrip-pair or stripline-pair.
     """
-    import json
-
-    from losslane.materials.library import load_library
     from losslane.report.tables import line_table
     from losslane.spec import cli_where
     from losslane.units import parse_frequency_list
@@ -276,7 +309,7 @@ def line_command(kind: str, at: str, as_json: bool, plot: str | None = None, **o
 
     where = cli_where("losslane line")
     with _warnings_to_stderr():
-        lib = load_library(options.pop("library_files"))
+        lib = _library(options)
         spec = line_spec(kind, options, where)
         freqs = parse_frequency_list(at, "--at")
         section = section_from_spec(spec, where, lib.dielectric, lib.foil)
@@ -285,10 +318,7 @@ def line_command(kind: str, at: str, as_json: bool, plot: str | None = None, **o
             from losslane.report.section_plot import plot_section
 
             plot_section(section, plot, "--plot")
-        if as_json:
-            click.echo(json.dumps(props))
-        else:
-            click.echo(line_table(props, describe(section)))
+        _echo(props, as_json, lambda p: line_table(p, describe(section)))
 
 
 def describe(section) -> str:
@@ -328,14 +358,6 @@ def describe(section) -> str:
 
 
 # --- design helpers: size, compare, spread, materials --------------------------------------
-
-_SOLVER_OPTION = click.option(
-    "--solver",
-    type=click.Choice(["closed-form", "field"]),
-    default="closed-form",
-    show_default=True,
-    help="closed-form models or the 2-D field solver",
-)
 
 
 def _placeholder(options: dict, key: str, command: str) -> None:
@@ -397,23 +419,14 @@ def _progress(samples: int, work: int):
     help="the dimension solved (spacing: pairs, at the given "
     "--width; width of a pair: at the given --spacing)",
 )
-@click.option(
-    "--at",
-    "at",
-    default="1GHz",
-    show_default=True,
-    metavar="FREQ",
-    help="frequency at which the target impedance holds",
-)
+@_at_option("frequency at which the target impedance holds", default="1GHz", metavar="FREQ")
 @click.option(
     "--loss-at",
     metavar="FREQS",
     help="frequencies of the reported loss per inch (default: the --at frequency)",
 )
-@_geometry_options
-@_material_options
-@_SOLVER_OPTION
-@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+@_section_options
+@_JSON_OPTION
 def size_command(
     kind: str, target: str, vary: str, at: str, loss_at: str | None, as_json: bool, **options
 ) -> None:
@@ -424,21 +437,18 @@ def size_command(
     sensitivity to width, dielectric height and Dk, and the loss per inch. A target the
     model cannot reach inside its validity range is an error that says which way to move.
     """
-    import json
-
     from losslane.design.sizing import parse_target, size
-    from losslane.materials.library import load_library
     from losslane.report.design_tables import size_table
     from losslane.spec import cli_where
     from losslane.units import parse_frequency, parse_frequency_list
-    from losslane.xsection.factory import KINDS, section_from_spec
+    from losslane.xsection.factory import KINDS
 
     where = cli_where("losslane size")
     with _warnings_to_stderr():
         z = parse_target(target)
         f0 = parse_frequency(at, "--at")
         floss = parse_frequency_list(loss_at, "--loss-at") if loss_at else None
-        lib = load_library(options.pop("library_files"))
+        lib = _library(options)
         ks = KINDS.get(kind)
         if ks is not None and vary not in ks.required + ks.optional:
             raise LossLaneError(
@@ -446,15 +456,13 @@ def size_command(
                 "only for pairs (microstrip-pair, stripline-pair)"
             )
         _placeholder(options, vary, "losslane size")
-        section = section_from_spec(
-            line_spec(kind, options, where), where, lib.dielectric, lib.foil
-        )
+        section = _line_section(kind, options, where, lib)
         solved = size(section, z, at=f0, vary=vary, loss_at=floss)
-        result = solved.to_json()
-        if as_json:
-            click.echo(json.dumps(result))
-        else:
-            click.echo(size_table(result, describe_solved(solved.section, vary)))
+        _echo(
+            solved.to_json(),
+            as_json,
+            lambda r: size_table(r, describe_solved(solved.section, vary)),
+        )
 
 
 def describe_solved(section, vary: str) -> str:
@@ -480,14 +488,7 @@ def describe_solved(section, vary: str) -> str:
     metavar="OHMS",
     help="every candidate is re-sized to this impedance (Z0, or Z_diff of a pair)",
 )
-@click.option(
-    "--at",
-    "at",
-    default="1GHz,10GHz,28GHz",
-    show_default=True,
-    metavar="FREQS",
-    help="frequencies of the loss table",
-)
+@_at_option("frequencies of the loss table")
 @click.option(
     "--size-at",
     default="1GHz",
@@ -495,19 +496,11 @@ def describe_solved(section, vary: str) -> str:
     metavar="FREQ",
     help="frequency at which the target impedance holds",
 )
-@click.option(
-    "--plot",
-    "plot",
-    default="losslane-compare.png",
-    show_default=True,
-    metavar="FILE",
-    help="chart of dB/in against frequency (PNG)",
+@_plot_options(
+    "losslane-compare.png", "chart of dB/in against frequency (PNG)", "do not write the chart"
 )
-@click.option("--no-plot", is_flag=True, help="do not write the chart")
-@_geometry_options
-@_material_options
-@_SOLVER_OPTION
-@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+@_section_options
+@_JSON_OPTION
 def compare_command(
     kind: str,
     materials: str,
@@ -527,23 +520,19 @@ def compare_command(
     Rows are sorted by loss at the highest frequency, lowest first; the chart shows dB/in
     against frequency for every candidate.
     """
-    import json
-
     from losslane.design.compare import compare
     from losslane.design.sizing import parse_target
-    from losslane.materials.library import load_library
     from losslane.report.design_tables import compare_table
     from losslane.report.plots import loss_comparison_chart
     from losslane.spec import cli_where
     from losslane.units import parse_frequency, parse_frequency_list
-    from losslane.xsection.factory import section_from_spec
 
     where = cli_where("losslane compare")
     with _warnings_to_stderr():
         z = parse_target(target)
         freqs = parse_frequency_list(at, "--at")
         f0 = parse_frequency(size_at, "--size-at")
-        lib = load_library(options.pop("library_files"))
+        lib = _library(options)
         if options.get("dk") is not None or options.get("dielectric_name") is not None:
             raise LossLaneError(
                 "compare takes its dielectrics from --materials; leave out "
@@ -552,9 +541,7 @@ def compare_command(
         mats = {n: lib.dielectric(n, "--materials") for n in _names(materials, "--materials")}
         options["dielectric_name"] = next(iter(mats))
         _placeholder(options, "width", "losslane compare")
-        section = section_from_spec(
-            line_spec(kind, options, where), where, lib.dielectric, lib.foil
-        )
+        section = _line_section(kind, options, where, lib)
         if foils is not None:
             if options.get("foil") or options.get("roughness_model"):
                 raise LossLaneError("give either --foils X,Y or --foil/--roughness-model")
@@ -592,23 +579,25 @@ def compare_command(
                     [c.foil for c in result.candidates],
                 )
             )
-        if as_json:
-            click.echo(json.dumps(out))
-        else:
-            click.echo(compare_table(out, _stackup(section, ("width",))))
+        _echo(out, as_json, lambda o: compare_table(o, _stackup(section, ("width",))))
 
 
 _TOL_KEYS = ("width", "height", "below", "above", "thickness", "gap", "spacing", "dk")
 
 
-def _tolerance_options(func):
-    for key in reversed(_TOL_KEYS):
-        if key == "dk":
-            help_ = "+/- Dk deviation, e.g. 0.1 or 3%"
-        else:
-            help_ = f"+/- {key} tolerance, a length (0.5mil) or a percentage (10%)"
-        func = click.option(f"--{key}-tol", f"{key}_tol", metavar="TOL", help=help_)(func)
-    return func
+_tolerance_options = _options(
+    *(
+        click.option(
+            f"--{key}-tol",
+            f"{key}_tol",
+            metavar="TOL",
+            help="+/- Dk deviation, e.g. 0.1 or 3%"
+            if key == "dk"
+            else f"+/- {key} tolerance, a length (0.5mil) or a percentage (10%)",
+        )
+        for key in _TOL_KEYS
+    )
+)
 
 
 @cli.command("spread")
@@ -629,14 +618,7 @@ def _tolerance_options(func):
     show_default=True,
     help="random seed (the same seed gives the same numbers)",
 )
-@click.option(
-    "--at",
-    "at",
-    default="1GHz,10GHz,28GHz",
-    show_default=True,
-    metavar="FREQS",
-    help="frequencies of the impedance and loss statistics",
-)
+@_at_option("frequencies of the impedance and loss statistics")
 @click.option(
     "--target",
     metavar="OHMS",
@@ -650,19 +632,11 @@ def _tolerance_options(func):
     metavar="TOL",
     help="accepted +/- band around the target: a percentage or ohms (5ohm)",
 )
-@click.option(
-    "--plot",
-    "plot",
-    default="losslane-spread.png",
-    show_default=True,
-    metavar="FILE",
-    help="histograms of impedance and loss (PNG)",
+@_plot_options(
+    "losslane-spread.png", "histograms of impedance and loss (PNG)", "do not write the histograms"
 )
-@click.option("--no-plot", is_flag=True, help="do not write the histograms")
-@_geometry_options
-@_material_options
-@_SOLVER_OPTION
-@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+@_section_options
+@_JSON_OPTION
 def spread_command(
     kind: str,
     distribution: str,
@@ -684,17 +658,13 @@ def spread_command(
     is 3 sigma. Prints mean, standard deviation, 1st/99th percentiles and the share of
     samples outside the --band around the target, and writes histograms.
     """
-    import json
-
     from losslane.design.sizing import parse_target
     from losslane.design.spread import parse_tolerance, spread
-    from losslane.materials.library import load_library
     from losslane.report.design_tables import spread_table
     from losslane.report.plots import spread_histograms
     from losslane.spec import cli_where
     from losslane.units import parse_frequency_list
     from losslane.xsection.batch import is_vectorized, nominal_geometry
-    from losslane.xsection.factory import section_from_spec
 
     where = cli_where("losslane spread")
     with _warnings_to_stderr():
@@ -702,10 +672,7 @@ def spread_command(
         freqs = parse_frequency_list(at, "--at")
         z = parse_target(target) if target is not None else None
         frac, ohm = _parse_band(band)
-        lib = load_library(options.pop("library_files"))
-        section = section_from_spec(
-            line_spec(kind, options, where), where, lib.dielectric, lib.foil
-        )
+        section = _line_section(kind, options, where, _library(options))
         geo = nominal_geometry(section)
         tols = {}
         for key, value in tol_text.items():
@@ -754,10 +721,7 @@ def spread_command(
                     title,
                 )
             )
-        if as_json:
-            click.echo(json.dumps(out))
-        else:
-            click.echo(spread_table(out, describe(section)))
+        _echo(out, as_json, lambda o: spread_table(o, describe(section)))
 
 
 def _parse_band(value: str) -> tuple[float | None, float | None]:
@@ -783,13 +747,7 @@ def _parse_band(value: str) -> tuple[float | None, float | None]:
 
 
 @cli.command("materials")
-@click.option(
-    "--library",
-    "library_files",
-    multiple=True,
-    metavar="FILE",
-    help="extra library file(s) with [dielectrics.*] / [foils.*] entries",
-)
+@_LIBRARY_OPTION
 @click.option(
     "--scenario",
     "scenario_files",
@@ -797,7 +755,7 @@ def _parse_band(value: str) -> tuple[float | None, float | None]:
     metavar="FILE",
     help="list a scenario file's own [dielectrics.*] / [foils.*] entries too",
 )
-@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+@_JSON_OPTION
 def materials_command(
     library_files: tuple[str, ...], scenario_files: tuple[str, ...], as_json: bool
 ) -> None:
@@ -808,14 +766,11 @@ def materials_command(
     Bundled entries are typical values of generic material classes; --library and
     --scenario files add or override entries.
     """
-    import json
-
     from losslane.materials.catalog import catalog
     from losslane.report.design_tables import materials_table
 
     with _warnings_to_stderr():
-        out = catalog(library_files, scenario_files)
-        click.echo(json.dumps(out) if as_json else materials_table(out))
+        _echo(catalog(library_files, scenario_files), as_json, materials_table)
 
 
 @cli.command("build")
@@ -835,8 +790,8 @@ def materials_command(
     show_default=True,
     help="number form in the Touchstone file: real/imag, magnitude/angle, dB/angle",
 )
-@click.option("--no-plots", is_flag=True, help="skip the PNG plots")
-@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+@_NO_PLOTS_OPTION
+@_JSON_OPTION
 @click.option(
     "--strict",
     is_flag=True,
@@ -859,7 +814,7 @@ def build_command(
         result, files, text, data = build(
             scenario, out=out, version=int(touchstone_version), form=form, plots=not no_plots
         )
-        click.echo(__import__("json").dumps(data) if as_json else text)
+        _echo(data, as_json, lambda _: text)
     if strict and data["budget"] is not None and not data["budget"]["passed"]:
         click.echo("budget check failed (--strict): exit code 1", err=True)
         raise SystemExit(1)
@@ -879,8 +834,8 @@ def build_command(
     is_flag=True,
     help="the single-ended (2-port) variant instead of the differential pair",
 )
-@click.option("--no-plots", is_flag=True, help="skip the PNG plots")
-@click.option("--json", "as_json", is_flag=True, help="print one JSON object instead of tables")
+@_NO_PLOTS_OPTION
+@_JSON_OPTION
 def demo_command(out: str, single_ended: bool, no_plots: bool, as_json: bool) -> None:
     """Build the bundled example channel end to end: a differential sensor-to-processor
     lane over two boards and a mezzanine connector (.s4p and mixed-mode plots)."""
@@ -889,11 +844,7 @@ def demo_command(out: str, single_ended: bool, no_plots: bool, as_json: bool) ->
     with _warnings_to_stderr():
         path = demo_scenario_path(single_ended)
         result, files, text, data = build(path, out=out, plots=not no_plots)
-        if as_json:
-            click.echo(__import__("json").dumps(data))
-        else:
-            click.echo(f"demo scenario: {path}")
-            click.echo(text)
+        _echo(data, as_json, lambda _: f"demo scenario: {path}\n{text}")
 
 
 def main(argv: list[str] | None = None) -> int:
