@@ -323,21 +323,7 @@ def line_command(kind: str, at: str, as_json: bool, plot: str | None = None, **o
 
 def describe(section) -> str:
     """One heading line naming the cross-section, its geometry and materials."""
-    import dataclasses
-
-    from losslane.units import MIL
-
-    parts = [section.kind]
-    # dataclass fields only: a derived property (a stripline's plane spacing) is no input
-    fields = (
-        {f.name for f in dataclasses.fields(section)}
-        if dataclasses.is_dataclass(section)
-        else set()
-    )
-    for key in ("width", "spacing", "gap", "height", "below", "above", "thickness"):
-        v = getattr(section, key, None) if key in fields else None
-        if isinstance(v, float):
-            parts.append(f"{key} {v / MIL:.4g} mil")
+    parts = [_stackup(section)]
     d = section.dielectric
     if d.model == "constant":
         parts.append(f"Dk {d.dk:g} Df {d.df:g} (constant, non-causal)")
@@ -381,13 +367,16 @@ def _names(value: str, key: str) -> list[str]:
 
 
 def _stackup(section, skip: tuple[str, ...] = ()) -> str:
+    """The kind and the input dimensions in mil: a closed-form model's fields or a field-
+    solved section's labels, not a derived value such as a stripline's plane spacing."""
     from losslane.units import MIL
+    from losslane.xsection.batch import nominal_geometry
 
+    given = {**nominal_geometry(section), **dict(getattr(section, "labels", ()))}
     parts = [section.kind]
     for key in ("width", "spacing", "gap", "height", "below", "above", "thickness"):
-        v = getattr(section, key, None)
-        if isinstance(v, float) and key not in skip:
-            parts.append(f"{key} {v / MIL:.4g} mil")
+        if key in given and key not in skip:
+            parts.append(f"{key} {given[key] / MIL:.4g} mil")
     return ", ".join(parts)
 
 
