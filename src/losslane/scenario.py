@@ -9,9 +9,10 @@ from __future__ import annotations
 
 import re
 import tomllib
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
@@ -146,6 +147,22 @@ def _conductors(channel: list[Segment]) -> int:
     return n or 1
 
 
+def _resolver(what: str, own: Mapping, library: Mapping) -> Callable[[str, str], Any]:
+    """Name -> entry: the scenario's own [<what>s] first, then the library."""
+
+    def resolve(n: str, where: str):
+        if n in own:
+            return own[n]
+        if n in library:
+            return library[n]
+        raise LossLaneError(
+            f"{where} = {n!r}: unknown {what}; not in [{what}s] nor in the library; "
+            f"{suggest(n, [*own, *library])}"
+        )
+
+    return resolve
+
+
 def load_scenario(path: str | Path) -> Scenario:
     """Read and validate a scenario file."""
     p = Path(path)
@@ -193,25 +210,8 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
     for fname, spec in _tables(data, "foils").items():
         foils[fname] = foil_from_spec(fname, spec, f"[foils.{fname}]")
 
-    def resolve_dielectric(n: str, where: str) -> Dielectric:
-        if n in dielectrics:
-            return dielectrics[n]
-        if n in library.dielectrics:
-            return library.dielectrics[n]
-        raise LossLaneError(
-            f"{where} = {n!r}: unknown dielectric; not in [dielectrics] nor "
-            f"in the library; {suggest(n, [*dielectrics, *library.dielectrics])}"
-        )
-
-    def resolve_foil(n: str, where: str) -> Roughness:
-        if n in foils:
-            return foils[n]
-        if n in library.foils:
-            return library.foils[n]
-        raise LossLaneError(
-            f"{where} = {n!r}: unknown foil; not in [foils] nor in the "
-            f"library; {suggest(n, [*foils, *library.foils])}"
-        )
+    resolve_dielectric = _resolver("dielectric", dielectrics, library.dielectrics)
+    resolve_foil = _resolver("foil", foils, library.foils)
 
     lines: dict[str, CrossSection] = {}
     for lname, spec in _tables(data, "lines").items():
