@@ -110,6 +110,20 @@ def _section(kind: str, geom: Geometry, metal: Metal, accuracy: str, labels) -> 
     return FieldSection(geom, metal, accuracy, kind, labels)
 
 
+def _strips(
+    kind: str, g: dict[str, float], y: float, t: float, top: float | None
+) -> tuple[Trace, ...]:
+    """The signal strip at height ``y``, or a pair's two strips ``spacing`` apart."""
+    w = g["width"]
+    if not kind.endswith("-pair"):
+        return (Trace.centred(0.0, w, y, t, top, "strip"),)
+    off = (g["spacing"] + w) / 2
+    return (
+        Trace.centred(-off, w, y, t, top, "line 1"),
+        Trace.centred(off, w, y, t, top, "line 2"),
+    )
+
+
 def microstrip(
     g: dict[str, float],
     d: Dielectric,
@@ -119,17 +133,8 @@ def microstrip(
     kind: str = "microstrip",
 ) -> FieldSection:
     acc, top, coat, _ = _common(kind, g, spec, where)
-    h, t, w = g["height"], g["thickness"], g["width"]
-    if kind == "microstrip-pair":
-        s = g["spacing"]
-        off = (s + w) / 2
-        traces = (
-            Trace.centred(-off, w, h, t, top, "line 1"),
-            Trace.centred(off, w, h, t, top, "line 2"),
-        )
-    else:
-        traces = (Trace.centred(0.0, w, h, t, top, "strip"),)
-    geom = Geometry((Layer(h, d),), traces, True, False, coat)
+    h, t = g["height"], g["thickness"]
+    geom = Geometry((Layer(h, d),), _strips(kind, g, h, t, top), True, False, coat)
     return _section(kind, geom, metal, acc, _labels(g, top))
 
 
@@ -142,18 +147,9 @@ def stripline(
     kind: str = "stripline",
 ) -> FieldSection:
     acc, top, _, above = _common(kind, g, spec, where)
-    lo, hi, t, w = g["below"], g["above"], g["thickness"], g["width"]
+    lo, hi, t = g["below"], g["above"], g["thickness"]
     layers = (Layer(lo, d, "core"), Layer(t + hi, above or d, "prepreg"))
-    if kind == "stripline-pair":
-        s = g["spacing"]
-        off = (s + w) / 2
-        traces = (
-            Trace.centred(-off, w, lo, t, top, "line 1"),
-            Trace.centred(off, w, lo, t, top, "line 2"),
-        )
-    else:
-        traces = (Trace.centred(0.0, w, lo, t, top, "strip"),)
-    geom = Geometry(layers, traces, True, True)
+    geom = Geometry(layers, _strips(kind, g, lo, t, top), True, True)
     return _section(kind, geom, metal, acc, _labels(g, top))
 
 
