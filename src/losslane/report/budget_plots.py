@@ -10,6 +10,7 @@ from pathlib import Path
 
 import numpy as np
 
+from losslane.report.channel_plots import label_vline, pyplot
 from losslane.report.tables import point_title
 
 NOTE = "estimate - confirm with measured coupons"
@@ -26,22 +27,13 @@ REFLECTION_COLOUR = "#c0392b"
 TOTAL_COLOUR = "#333333"
 
 
-def _pyplot():
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    return plt
-
-
 def budget_chart(path: Path, budget, title: str) -> Path:
     """A horizontal waterfall per check point: each segment's own loss stacked from the
     input, then the reflections row (red; negative when reflections cancel), then the
     total (dark) against the allowance (dashed) with the margin written beside it."""
     from losslane.budget import REFLECTIONS_ROW
 
-    plt = _pyplot()
+    plt = pyplot()
     pts = budget.points
     names = [r.name for r in pts[0].segments] + [REFLECTIONS_ROW, "total"]
     kinds = [r.kind for r in pts[0].segments]
@@ -123,7 +115,7 @@ def ild_plot(
 ) -> Path:
     """Two panels: the channel's insertion loss with the fitted curve (fit band shaded),
     and the deviation ILD = IL - IL_fit over the band with its peak marked."""
-    plt = _pyplot()
+    plt = pyplot()
     fig, (a1, a2) = plt.subplots(
         2, 1, figsize=(10.5, 6.6), dpi=110, sharex=True, gridspec_kw={"height_ratios": [3, 2]}
     )
@@ -163,16 +155,7 @@ def ild_plot(
             ax.axvline(nyquist / 1e9, color="0.35", lw=0.9, ls=":")
         ax.grid(True, alpha=0.3)
     if nyquist is not None:
-        a1.annotate(
-            "Nyquist",
-            (nyquist / 1e9, 0.02),
-            xycoords=("data", "axes fraction"),
-            rotation=90,
-            fontsize=8,
-            color="0.25",
-            ha="right",
-            va="bottom",
-        )
+        label_vline(a1, nyquist / 1e9, "Nyquist")
     a1.set_xlim(ghz[0], ghz[-1])
     a1.set_ylabel(ylabel)
     a2.set_ylabel("ILD (dB)")

@@ -30,12 +30,32 @@ class Marker:
     limit_db: float | None = None
 
 
-def _figure():
+def pyplot():
+    """matplotlib.pyplot on the Agg backend (files only, no display needed)."""
     import matplotlib
 
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
+    return plt
+
+
+def label_vline(ax, x: float, label: str) -> None:
+    """Write ``label`` up the foot of a vertical marker line at ``x`` (Nyquist, a check)."""
+    ax.annotate(
+        label,
+        (x, 0.02),
+        xycoords=("data", "axes fraction"),
+        rotation=90,
+        fontsize=8,
+        color="0.25",
+        ha="right",
+        va="bottom",
+    )
+
+
+def _figure():
+    plt = pyplot()
     fig, ax = plt.subplots(figsize=(10.5, 5.2), dpi=110)
     ax.grid(True, which="both", alpha=0.3)
     return plt, fig, ax
@@ -64,16 +84,7 @@ def db_plot(
     ax.set_ylim(lo - 0.05 * span, hi + 0.08 * span)
     for m in markers:
         ax.axvline(m.at_hz / 1e9, color="0.35", lw=0.9, ls=":")
-        ax.annotate(
-            m.label,
-            (m.at_hz / 1e9, 0.02),
-            xycoords=("data", "axes fraction"),
-            rotation=90,
-            fontsize=8,
-            color="0.25",
-            ha="right",
-            va="bottom",
-        )
+        label_vline(ax, m.at_hz / 1e9, m.label)
         if m.limit_db is not None:
             y = limit_sign * m.limit_db
             ax.plot(

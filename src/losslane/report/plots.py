@@ -11,16 +11,9 @@ from pathlib import Path
 
 import numpy as np
 
+from losslane.report.channel_plots import pyplot
+
 CAPTION = "estimates from published models; confirm against fabricated test coupons"
-
-
-def _pyplot():
-    import matplotlib
-
-    matplotlib.use("Agg", force=True)
-    import matplotlib.pyplot as plt
-
-    return plt
 
 
 def save_figure(fig, path: Path | str) -> Path:
@@ -50,7 +43,7 @@ def loss_comparison_chart(
     the given order. ``colour_by``/``style_by`` (one key per curve, e.g. the material and
     the foil) give curves sharing a key the same colour / line style; ``marks`` are
     frequencies drawn as thin vertical lines."""
-    plt = _pyplot()
+    plt = pyplot()
     fig, ax = plt.subplots(figsize=(10.0, 5.2))
     try:
         palette = plt.rcParams["axes.prop_cycle"].by_key()["color"]
@@ -98,7 +91,7 @@ def spread_histograms(
 ) -> Path:
     """Two histograms side by side: the impedance samples (target and accepted band
     marked) and the loss samples."""
-    plt = _pyplot()
+    plt = pyplot()
     fig, (a1, a2) = plt.subplots(1, 2, figsize=(9.0, 4.0))
     try:
         bins = min(80, max(10, int(np.sqrt(impedance.size))))
