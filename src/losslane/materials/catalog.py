@@ -4,12 +4,10 @@ each entry comes from (the bundled library of typical values, or a user file).""
 
 from __future__ import annotations
 
-import tomllib
 from collections.abc import Iterable
 from pathlib import Path
 
-from losslane.errors import LossLaneError
-from losslane.materials.library import Library, load_library
+from losslane.materials.library import Library, load_library, read_toml
 
 BUNDLED = "bundled (typical values of a generic class)"
 
@@ -17,12 +15,7 @@ BUNDLED = "bundled (typical values of a generic class)"
 def _scenario_materials(path: Path) -> dict:
     """The [dielectrics.*] and [foils.*] sections of a scenario file (the rest is ignored
     here; the scenario reader checks it)."""
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise LossLaneError(f"scenario file {str(path)!r} does not exist") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise LossLaneError(f"scenario file {str(path)!r}: not valid TOML ({exc})") from None
+    data = read_toml(path, "scenario file")
     return {k: data[k] for k in ("dielectrics", "foils") if k in data}
 
 
@@ -40,8 +33,9 @@ def catalog(
     source.update({f"foil:{n}": BUNDLED for n in lib.foils})
     for p in library_files:
         p = Path(p)
-        lib.extend(p)
-        _mark(lib, source, str(p), tomllib.loads(p.read_text(encoding="utf-8")))
+        data = read_toml(p, "library file")  # read once: entries and their source
+        lib._load(data, str(p))
+        _mark(lib, source, str(p), data)
     for p in scenario_files:
         p = Path(p)
         data = _scenario_materials(p)

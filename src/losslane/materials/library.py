@@ -152,6 +152,17 @@ def parse_area(value: str, key: str) -> float:
     return float(m.group(1)) * unit * unit
 
 
+def read_toml(path: Path, what: str) -> dict:
+    """The parsed TOML file at ``path``; a LossLaneError naming ``what`` and the path if it
+    is missing or not valid TOML."""
+    try:
+        return tomllib.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise LossLaneError(f"{what} {str(path)!r} does not exist") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise LossLaneError(f"{what} {str(path)!r}: not valid TOML ({exc})") from None
+
+
 @dataclass
 class Library:
     """Named dielectrics and foils, with their notes and source (bundled or user file)."""
@@ -176,13 +187,7 @@ class Library:
     def extend(self, path: Path | str) -> None:
         """Add (or override) entries from a user TOML file with [dielectrics.*] / [foils.*]."""
         path = Path(path)
-        try:
-            data = tomllib.loads(path.read_text(encoding="utf-8"))
-        except FileNotFoundError:
-            raise LossLaneError(f"library file {str(path)!r} does not exist") from None
-        except tomllib.TOMLDecodeError as exc:
-            raise LossLaneError(f"library file {str(path)!r}: not valid TOML ({exc})") from None
-        self._load(data, str(path))
+        self._load(read_toml(path, "library file"), str(path))
 
     def _load(self, data: Mapping, source: str) -> None:
         check_keys(source, data, ("dielectrics", "foils"))
