@@ -61,15 +61,15 @@ def _design_section(
     kind: str,
     placeholder: str | None,
     *,
-    dk: float | None,
-    df: float,
-    dk_at: str | None,
-    dielectric: str | Dielectric | None,
-    dielectric_model: str,
-    foil: str | Roughness | None,
     library: Library,
     where: str | Where,
     geometry: dict,
+    dk: float | None = None,
+    df: float = 0.0,
+    dk_at: str | None = None,
+    dielectric: str | Dielectric | None = None,
+    dielectric_model: str = "wideband-debye",
+    foil: str | Roughness | None = None,
 ) -> CrossSection:
     """A section from ``line``-style arguments; ``placeholder`` names the solved dimension."""
     spec: dict = {"kind": kind, **geometry}
@@ -152,11 +152,7 @@ def compare(
     sec = _design_section(
         kind,
         "width",
-        dk=None,
-        df=0.0,
-        dk_at=None,
         dielectric=next(iter(mats.values()), None),
-        dielectric_model="wideband-debye",
         foil=foil,
         library=lib,
         where="compare",
