@@ -20,6 +20,7 @@ from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.library import Library, dielectric_from_spec, foil_from_spec, load_library
 from losslane.materials.roughness import Roughness
+from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.spec import check_keys, quantity, suggest, text
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
@@ -37,7 +38,6 @@ TOP_KEYS = (
     "budget",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
-PORT_ORDERS = ("in-in-out-out", "in-out-in-out")
 MAX_POINTS = 200_001
 
 
@@ -299,7 +299,7 @@ def _ports(spec: object) -> Ports:
     ref = quantity(where, spec, "reference", "resistance", default=50.0)
     if ref <= 0:
         raise LossLaneError(f"{where}.reference = {spec['reference']!r}: must be > 0 ohm")
-    order = text(where, spec, "order", PORT_ORDERS, "in-in-out-out")
+    order = text(where, spec, "order", ORDERS, DEFAULT_ORDER)
     return Ports(ref, order)
 
 
@@ -379,10 +379,9 @@ def _segment(
             raise LossLaneError(
                 f'{w} = {body!r}: expected a file name, e.g. "models/connector.s4p"'
             )
-        if order is not None and order not in PORT_ORDERS:
+        if order is not None and order not in ORDERS:
             raise LossLaneError(
-                f"{where}.order = {order!r}: valid values are "
-                f"{', '.join(repr(o) for o in PORT_ORDERS)}"
+                f"{where}.order = {order!r}: valid values are {', '.join(repr(o) for o in ORDERS)}"
             )
         p = (base / fname).resolve()
         if not p.is_file():
