@@ -159,7 +159,10 @@ class CrossSection:
 
     def rlgc(self, f: np.ndarray) -> RLGC:
         f = np.atleast_1d(np.asarray(f, dtype=float))
-        modes = self.modes(f)
+        return self._rlgc(f, self.modes(f))
+
+    def _rlgc(self, f: np.ndarray, modes: dict[str, Mode]) -> RLGC:
+        """The per-unit-length matrices at ``f`` from the section's ``modes`` there."""
         if self.n_conductors == 1:
             m = modes["single"]
             return RLGC.single(f, m.r, m.l, m.g, m.c)
@@ -172,7 +175,7 @@ class CrossSection:
         main = modes["single"] if self.n_conductors == 1 else modes["odd"]
         out: dict = {"kind": self.kind, "frequencies_hz": f.tolist()}
         out.update(_mode_numbers(main, f))
-        rl = self.rlgc(f)
+        rl = self._rlgc(f, modes)
         out["rlgc"] = {
             "r_ohm_per_m": _matrix_list(rl.r),
             "l_h_per_m": _matrix_list(rl.l),

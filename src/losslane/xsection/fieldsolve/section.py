@@ -172,6 +172,10 @@ class FieldSection(CrossSection):
         r, l, g, c, _ = self.matrices(f, sol)
         return RLGC(f, r, l, g, c)
 
+    def _rlgc(self, f: np.ndarray, modes: dict[str, Mode]) -> RLGC:
+        # the solved matrices, exact also for a pair that is not symmetric
+        return self.rlgc(f)
+
     def modes(self, f: np.ndarray) -> dict[str, Mode]:
         f = np.atleast_1d(np.asarray(f, float))
         sol = self.solution()
