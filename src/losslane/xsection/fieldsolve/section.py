@@ -71,7 +71,8 @@ class FieldSection(CrossSection):
         level_of(self.accuracy)
 
     def __getattr__(self, name: str):
-        # headings (cli.describe) look up geometry values such as width or height
+        # geometry values (width, height...) read as attributes, as on the closed-form
+        # models: sizing reads the solved dimension, compare the re-sized width
         if name == "labels":
             raise AttributeError(name)
         for key, value in object.__getattribute__(self, "labels"):
