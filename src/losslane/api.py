@@ -41,26 +41,15 @@ def line(
 
     ``geometry`` takes the scenario keys with units, e.g. ``width="6 mil"``.
     """
-    section = _design_section(
-        kind,
-        None,
-        dk=dk,
-        df=df,
-        dk_at=dk_at,
-        dielectric=dielectric,
-        dielectric_model=dielectric_model,
-        foil=foil,
-        library=load_library(library_files),
-        where=where,
-        geometry=geometry,
-    )
+    lib = load_library(library_files)
+    material = (dk, df, dk_at, dielectric, dielectric_model, foil)
+    section = _design_section(kind, None, lib, where, geometry, *material)
     return section.properties(parse_frequency_list(at, "at"))
 
 
 def _design_section(
     kind: str,
     placeholder: str | None,
-    *,
     library: Library,
     where: str | Where,
     geometry: dict,
@@ -71,7 +60,8 @@ def _design_section(
     dielectric_model: str = "wideband-debye",
     foil: str | Roughness | None = None,
 ) -> CrossSection:
-    """A section from ``line``-style arguments; ``placeholder`` names the solved dimension."""
+    """A section from ``line``-style arguments (the material ones in the order of the public
+    signatures); ``placeholder`` names the solved dimension."""
     spec: dict = {"kind": kind, **geometry}
     if placeholder is not None:
         if placeholder in spec:
@@ -112,19 +102,8 @@ def size(
     from losslane.design.sizing import size as size_
 
     lib = load_library(library_files)
-    sec = _design_section(
-        kind,
-        vary,
-        dk=dk,
-        df=df,
-        dk_at=dk_at,
-        dielectric=dielectric,
-        dielectric_model=dielectric_model,
-        foil=foil,
-        library=lib,
-        where="size",
-        geometry=geometry,
-    )
+    material = (dk, df, dk_at, dielectric, dielectric_model, foil)
+    sec = _design_section(kind, vary, lib, "size", geometry, *material)
     floss = parse_frequency_list(loss_at, "loss_at") if loss_at is not None else None
     return size_(
         sec, parse_target(target, "target"), at=parse_frequency(at, "at"), vary=vary, loss_at=floss
@@ -149,15 +128,8 @@ def compare(
 
     lib = load_library(library_files)
     mats = {n: lib.dielectric(n, "materials") for n in materials}
-    sec = _design_section(
-        kind,
-        "width",
-        dielectric=next(iter(mats.values()), None),
-        foil=foil,
-        library=lib,
-        where="compare",
-        geometry=geometry,
-    )
+    first = next(iter(mats.values()), None)
+    sec = _design_section(kind, "width", lib, "compare", geometry, dielectric=first, foil=foil)
     foil_map = None if foils is None else {n: lib.foil(n, "foils") for n in foils}
     if foil_map is None and isinstance(foil, str):
         foil_map = {foil: sec.metal.foil}
@@ -201,19 +173,8 @@ def spread(
     from losslane.xsection.batch import nominal_geometry
 
     lib = load_library(library_files)
-    sec = _design_section(
-        kind,
-        None,
-        dk=dk,
-        df=df,
-        dk_at=dk_at,
-        dielectric=dielectric,
-        dielectric_model=dielectric_model,
-        foil=foil,
-        library=lib,
-        where="spread",
-        geometry=geometry,
-    )
+    material = (dk, df, dk_at, dielectric, dielectric_model, foil)
+    sec = _design_section(kind, None, lib, "spread", geometry, *material)
     geo = nominal_geometry(sec)
     tols = {
         k: parse_tolerance(v, k, sec.dielectric.dk if k == "dk" else geo.get(k, 0.0))
