@@ -293,9 +293,7 @@ def kj_dispersion_z(
         + q18
         + q20
     )
-    # R2's coefficient: jk_z0 uses the published 0.2671 (from memory), this pair model still
-    # the 0.267 it was written with (a difference of about 3e-8 in Z0)
-    q0 = jk_exponent(u, er, fn, r2_coefficient=0.267)
+    q0 = jk_exponent(u, er, fn)  # Q0 = the single strip's R17 (Kirschning-Jansen 1984)
     num = 0.9408 * epsf**ce - 0.9603
     den = (0.9408 - de) * eps0**ce - 0.9603
     with np.errstate(invalid="ignore", divide="ignore"):

@@ -98,13 +98,11 @@ def kj_eps_eff(u: ArrayLike, er: ArrayLike, eps0: ArrayLike, fn: ArrayLike) -> n
     return er - (er - eps0) / (1.0 + p)
 
 
-def jk_exponent(
-    u: ArrayLike, er: ArrayLike, fn: ArrayLike, r2_coefficient: float = 0.2671
-) -> np.ndarray:
+def jk_exponent(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> np.ndarray:
     """The exponent R17 of Jansen-Kirschning's Z0(f) (``jk_z0``), which Kirschning-Jansen's
     coupled-line even-mode Z_e(f) uses as Q0; fn = f[GHz] * h[mm]."""
     r1 = 0.03891 * er**1.4
-    r2 = r2_coefficient * u**7
+    r2 = 0.2671 * u**7  # 0.2671 as published (from memory; matches scikit-rf)
     r7 = 1.206 - 0.3144 * np.exp(-r1) * (1.0 - np.exp(-r2))
     r10 = 0.00044 * er**2.136 + 0.0184
     r11 = (fn / 19.47) ** 6 / (1.0 + 0.0962 * (fn / 19.47) ** 6)
