@@ -7,6 +7,7 @@ The format is documented in the README ("Writing a scenario").
 
 from __future__ import annotations
 
+import dataclasses
 import re
 import tomllib
 from collections.abc import Callable, Mapping
@@ -339,13 +340,14 @@ def _channel(
         if name is not None and (not isinstance(name, str) or not name.strip()):
             raise LossLaneError(f"{where}.name = {name!r}: expected a non-empty text")
         out.append(_segment(i, kind, entry, where, name, lines, base, resolve_dielectric))
+    # repeated labels would make the budget ambiguous: number them
     names = [s.name for s in out]
-    for i, s in enumerate(out):
-        if names.count(s.name) > 1:
-            # repeated labels would make the budget ambiguous; number them
-            k = names[: i + 1].count(s.name)
-            object.__setattr__(s, "name", f"{s.name} ({k})")
-    return out
+    return [
+        dataclasses.replace(s, name=f"{s.name} ({names[: i + 1].count(s.name)})")
+        if names.count(s.name) > 1
+        else s
+        for i, s in enumerate(out)
+    ]
 
 
 def _segment(
