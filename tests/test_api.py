@@ -3,21 +3,15 @@ with --json (the same library code behind both; checked on one case per command)
 
 from __future__ import annotations
 
-import json
-
 import pytest
+from cli_helpers import run_json
 
 from losslane import api
-from losslane.cli import main
 
 GEOMETRY = ["--height", "4mil", "--thickness", "1.4mil"]
 
 
-def cli_json(capsys, *argv: str) -> dict:
-    rc = main([*argv, "--json"])
-    out, err = capsys.readouterr()
-    assert rc == 0, err
-    return json.loads(out)
+cli_json = run_json
 
 
 def test_line(capsys) -> None:

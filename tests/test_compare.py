@@ -7,6 +7,7 @@ import math
 from pathlib import Path
 
 import pytest
+from cli_helpers import run, run_json
 
 from losslane.cli import main
 from losslane.xsection.factory import KINDS
@@ -34,16 +35,8 @@ MICROSTRIP = ["microstrip", "--height", "4mil", "--thickness", "1.4mil"]
 STRIPLINE = ["stripline", "--below", "5mil", "--above", "5mil", "--thickness", "0.6mil"]
 
 
-def run(capsys, *argv: str) -> tuple[int, str, str]:
-    rc = main(list(argv))
-    cap = capsys.readouterr()
-    return rc, cap.out, cap.err
-
-
 def compare_json(capsys, *argv: str) -> dict:
-    rc, out, err = run(capsys, "compare", *argv, "--json", "--no-plot")
-    assert rc == 0, err
-    return json.loads(out)
+    return run_json(capsys, "compare", *argv, "--no-plot")
 
 
 @pytest.fixture(scope="module")

@@ -9,15 +9,9 @@ from importlib import resources
 from pathlib import Path
 
 import pytest
+from cli_helpers import run
 
-from losslane.cli import main
 from losslane.units import parse_frequency, parse_length
-
-
-def run(capsys, *argv: str) -> tuple[int, str, str]:
-    rc = main(list(argv))
-    cap = capsys.readouterr()
-    return rc, cap.out, cap.err
 
 
 def bundled(name: str) -> dict:

@@ -7,10 +7,10 @@ import json
 
 import numpy as np
 import pytest
+from cli_helpers import run, run_json
 from scipy.optimize import brentq
 from scipy.special import ellipk
 
-from losslane.cli import main
 from losslane.design.sizing import search_range, size
 from losslane.errors import LossLaneWarning
 from losslane.materials.dielectric import ConstantDielectric
@@ -22,16 +22,8 @@ MIL = 25.4e-6
 ETA0 = 4e-7 * np.pi * (1 + 5.5e-10) * 299_792_458.0
 
 
-def run(capsys, *argv: str) -> tuple[int, str, str]:
-    rc = main(list(argv))
-    cap = capsys.readouterr()
-    return rc, cap.out, cap.err
-
-
 def size_json(capsys, *argv: str) -> dict:
-    rc, out, err = run(capsys, "size", *argv, "--json")
-    assert rc == 0, err
-    return json.loads(out)
+    return run_json(capsys, "size", *argv)
 
 
 CASES = {

@@ -8,9 +8,9 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from cli_helpers import run, run_json
 
 from losslane import cli
-from losslane.cli import main
 from losslane.design.spread import spread
 from losslane.materials.dielectric import ConstantDielectric
 from losslane.xsection import Microstrip, Stripline
@@ -32,16 +32,8 @@ MICROSTRIP = [
 ]
 
 
-def run(capsys, *argv: str) -> tuple[int, str, str]:
-    rc = main(list(argv))
-    cap = capsys.readouterr()
-    return rc, cap.out, cap.err
-
-
 def spread_json(capsys, *argv: str) -> dict:
-    rc, out, err = run(capsys, "spread", *argv, "--json", "--no-plot")
-    assert rc == 0, err
-    return json.loads(out)
+    return run_json(capsys, "spread", *argv, "--no-plot")
 
 
 def line_z0(capsys, argv: list[str], width_mil: float) -> float:
