@@ -64,30 +64,27 @@ def run() -> list[tuple[str, float, float | None, str]]:
         LineSegment(sections[k % len(sections)], lengths[k], f"seg{k + 1}") for k in range(SEGMENTS)
     ]
 
-    # building the blocks from cross-sections: RLGC(f), then the scaled chain matrix
-    from losslane.network import blocks as blocks_module
-    from losslane.network.blocks import line_scaled_abcd
-
-    def cold():
-        # empty the per-sweep caches, so each repeat computes what a fresh build computes
-        blocks_module._section_rlgc.cache_clear()
-        blocks_module._CONSTANTS.clear()
+    # building the blocks from cross-sections as a build does: each distinct section's
+    # RLGC(f) and line constants once, then each segment's scaled chain matrix
+    from losslane.network.line import UniformLine
 
     def build():
-        cold()
-        return [b.scaled_abcd(f) for b in blocks]
+        lines = [UniformLine.from_rlgc(s.rlgc(f)) for s in sections]
+        return [
+            LineSegment(lines[k % len(sections)], lengths[k]).scaled_abcd(f)
+            for k in range(SEGMENTS)
+        ]
 
     def rlgc_all():
-        cold()
-        return [b.rlgc(f) for b in blocks]
+        return [s.rlgc(f) for s in sections]
 
     t_build = _median_time(build, 3)
     rlgcs = rlgc_all()
     t_rlgc = _median_time(rlgc_all, 3)
 
     def abcd_all():
-        blocks_module._CONSTANTS.clear()
-        return [line_scaled_abcd(r, b.length) for r, b in zip(rlgcs, blocks, strict=True)]
+        lines = [UniformLine.from_rlgc(r) for r in rlgcs]
+        return [lines[k % len(sections)].scaled_abcd(lengths[k]) for k in range(SEGMENTS)]
 
     t_abcd = _median_time(abcd_all, 3)
     items = build()

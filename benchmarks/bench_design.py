@@ -47,8 +47,7 @@ def run() -> list[tuple[str, float, float | None, str]]:
     from losslane.design import compare, size, spread
     from losslane.errors import LossLaneWarning
     from losslane.materials.library import load_library
-    from losslane.xsection import Metal, Microstrip, Stripline
-    from losslane.xsection.coupled import MicrostripPair, StriplinePair
+    from losslane.xsection import Metal, Microstrip, MicrostripPair, Stripline, StriplinePair
 
     lib = load_library()
     metal = Metal(foil=lib.foil("very-low-profile"))

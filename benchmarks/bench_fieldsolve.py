@@ -41,7 +41,7 @@ def _time(section, f: np.ndarray, repeat: int = 3) -> float:
 
     times = []
     for _ in range(repeat):
-        fsolve.clear_cache()
+        fsolve.CACHE.clear()
         t0 = time.perf_counter()
         section.rlgc(f)
         section.error_estimate()

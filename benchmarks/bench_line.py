@@ -35,7 +35,7 @@ def _sections():
     from losslane.materials.roughness import Huray
     from losslane.units import MIL
     from losslane.xsection.base import Metal
-    from losslane.xsection.coplanar import Coplanar
+    from losslane.xsection.coplanar import Cpw, Gcpw
     from losslane.xsection.microstrip import Microstrip
     from losslane.xsection.stripline import Stripline
 
@@ -46,8 +46,8 @@ def _sections():
         "microstrip": Microstrip(6 * MIL, 3.5 * MIL, 1.4 * MIL, d, m),
         "stripline": Stripline(5 * MIL, 6 * MIL, 6 * MIL, 0.6 * MIL, d, m),
         "stripline (offset)": Stripline(5 * MIL, 4 * MIL, 9 * MIL, 0.6 * MIL, d, m),
-        "cpw": Coplanar(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, d, False, m),
-        "gcpw": Coplanar(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, d, True, m),
+        "cpw": Cpw(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, d, m),
+        "gcpw": Gcpw(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, d, m),
     }
 
 

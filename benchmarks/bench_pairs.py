@@ -64,7 +64,6 @@ def run() -> list[tuple[str, float, float | None, str]]:
     import warnings
 
     from losslane.channel import build_channel
-    from losslane.network import blocks
     from losslane.scenario import parse_scenario
 
     sc = parse_scenario(SCENARIO)
@@ -73,9 +72,8 @@ def run() -> list[tuple[str, float, float | None, str]]:
         warnings.simplefilter("ignore")
         build_channel(sc)  # warm-up: first-call imports and caches
         for _ in range(5):
-            # a cold build: the per-sweep caches of RLGC and modal decompositions emptied
-            blocks._section_rlgc.cache_clear()
-            blocks._CONSTANTS.clear()
+            # each build evaluates its cross-sections and their modes afresh (nothing is
+            # kept between builds)
             t0 = time.perf_counter()
             res = build_channel(sc)
             times.append(time.perf_counter() - t0)

@@ -1,5 +1,6 @@
-"""Every command is also a Python call: the api functions give what the commands print
-with --json (the same library code behind both; checked on one case per command)."""
+"""Every command is also a Python call: the api functions return result objects whose
+to_json() is what the commands print with --json (the same library code behind both;
+checked on one case per command)."""
 
 from __future__ import annotations
 
@@ -25,12 +26,14 @@ def test_line(capsys) -> None:
         df=0.009,
         dk_at="10GHz",
         at="1GHz,10GHz",
-    )
+    ).to_json()
     assert got == cli_json(capsys, "line", "microstrip", *args, "--at", "1GHz,10GHz")
 
 
 def test_size(capsys) -> None:
-    got = api.size("microstrip", "50", height="4mil", thickness="1.4mil", dielectric="low-loss")
+    got = api.size(
+        "microstrip", "50", height="4mil", thickness="1.4mil", dielectric="low-loss"
+    ).to_json()
     want = cli_json(
         capsys, "size", "microstrip", "--target", "50", *GEOMETRY, "--dielectric", "low-loss"
     )
@@ -49,7 +52,7 @@ def test_compare(capsys) -> None:
         at="10GHz,28GHz",
         height="4mil",
         thickness="1.4mil",
-    )
+    ).to_json()
     want = cli_json(
         capsys,
         "compare",
@@ -84,7 +87,7 @@ def test_spread_same_seed_same_numbers(capsys) -> None:
         height="4mil",
         thickness="1.4mil",
         dielectric="low-loss",
-    )
+    ).to_json()
     want = cli_json(
         capsys,
         "spread",
@@ -113,4 +116,4 @@ def test_spread_same_seed_same_numbers(capsys) -> None:
 
 
 def test_materials(capsys) -> None:
-    assert api.materials() == cli_json(capsys, "materials")
+    assert api.materials().to_json() == cli_json(capsys, "materials")

@@ -9,6 +9,7 @@ import numpy as np
 import pytest
 import skrf
 from budget_scenarios import PASSING_BUDGET, SMALL_CHANNEL, parse, pieces, scenario_text
+from reported import properties
 
 from losslane.api import demo_scenario_path
 from losslane.budget import (
@@ -193,7 +194,7 @@ def test_line_db_per_in_is_the_line_models_attenuation(demo) -> None:
         if row.kind != "line":
             assert row.db_per_in is None
             continue
-        props = blk.source.properties(np.array([ny.at]))
+        props = properties(blk.section, np.array([ny.at]))
         assert row.db_per_in == pytest.approx(props["loss_db_per_in"][0], rel=1e-12)
         # and the segment's own loss is close to it times the length (mismatch is small)
         assert row.loss_db == pytest.approx(row.db_per_in * row.length_m / 0.0254, rel=0.1)
@@ -222,7 +223,7 @@ def test_checks_only_budget_has_no_nyquist() -> None:
 
 def _z0(line: str, at: float) -> float:
     sec = parse(scenario_text(pieces("route", ["1 in"]))).lines[line]
-    return float(sec.properties(np.array([at]))["z0_ohm"][0])
+    return float(properties(sec, np.array([at]))["z0_ohm"][0])
 
 
 CHECK_GHZ = (4, 5, 6, 8)
@@ -277,7 +278,7 @@ def test_adding_a_second_40_ohm_section_makes_the_row_positive() -> None:
     z = _z0("route", 6e9)
     wide = parse(scenario_text(pieces("wide", ["1 in"]))).lines["wide"]
     for p1, p2 in zip(one.points, two.points, strict=True):
-        props = wide.properties(np.array([p2.at]))
+        props = properties(wide, np.array([p2.at]))
         zr = props["z0_ohm"][0] / z
         beta = 2 * np.pi * p2.at * np.sqrt(props["eps_eff"][0]) / 299_792_458.0
         rho2 = ((zr - 1 / zr) / 2) ** 2

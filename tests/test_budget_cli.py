@@ -201,7 +201,7 @@ def test_bad_input_from_the_shell_has_no_traceback(tmp_path: Path) -> None:
 def test_a_failure_while_writing_the_report_leaves_nothing(tmp_path: Path, monkeypatch) -> None:
     # the budget's files are staged with the Touchstone file: if the last one fails, none
     # of them appears (DESIGN.md: no partial output)
-    import losslane.report.html as page
+    import losslane.report.page as page
     from losslane.api import build as api_build
 
     def broken(**_):

@@ -12,7 +12,9 @@ from network_channels import pair_channel
 
 from losslane.budget import evaluate_budget, fit_channel
 from losslane.channel import ChannelResult
-from losslane.network.cascade import build_network, cascade_scaled
+from losslane.network.cascade import cascade_scaled
+from losslane.network.mixedmode import ONE_PAIR
+from losslane.network.scaled import abcd_to_s
 from losslane.scenario import Budget, Check, Ports
 
 F = np.linspace(50e6, 20e9, 400)  # 50 MHz steps: 8 GHz is on the grid
@@ -23,7 +25,6 @@ def pair_result():
     blocks = pair_channel(F)
     items = [b.scaled_abcd(F) for b in blocks]
     chain = cascade_scaled(items)
-    net = build_network([chain], F, z_ref=50.0, name="pair", order="in-in-out-out")
     budget = Budget(16e9, "nrz", 20.0, (Check(F[100], 10.0, 8.0),))
     scenario = SimpleNamespace(
         name="pair",
@@ -31,7 +32,8 @@ def pair_result():
         channel=[SimpleNamespace(type=b.kind) for b in blocks],
         ports=Ports(50.0, "in-in-out-out"),
     )
-    return ChannelResult(scenario, F, blocks, net, items, chain), blocks
+    s = abcd_to_s(chain, 50.0)
+    return ChannelResult(scenario, F, blocks, items, chain, s, ONE_PAIR), blocks
 
 
 def _dd(s4: np.ndarray) -> skrf.Network:

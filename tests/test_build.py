@@ -21,6 +21,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from reported import build_parts
 
 from losslane import api
 from losslane.cli import main
@@ -109,7 +110,7 @@ def project_version() -> str:
 def demo_build(tmp_path_factory):
     """The demo built once through api.build (no plots): (result, files, text, data)."""
     out = tmp_path_factory.mktemp("demo") / "out"
-    return api.build(api.demo_scenario_path(single_ended=True), out=out, plots=False)
+    return build_parts(api.build(api.demo_scenario_path(single_ended=True), out=out, plots=False))
 
 
 # ---------------------------------------------------------------- the demo
@@ -344,7 +345,7 @@ def test_build_cascade_equals_skrf_cascade_of_the_same_blocks(tmp_path):
     import skrf
 
     scen = write_scenario(tmp_path / "s", SKRF_CHANNEL)
-    result, files, _, _ = api.build(scen, out=tmp_path / "o", plots=False)
+    result, files, _, _ = build_parts(api.build(scen, out=tmp_path / "o", plots=False))
     f = result.f
     freq = skrf.Frequency.from_f(f, unit="Hz")
     nets = [skrf_segment(seg, freq, f) for seg in result.scenario.channel]
@@ -409,7 +410,7 @@ line = "l"
 length = "10 in"
 """
     scen = write_scenario(tmp_path / "s", text)
-    _, files, _, _ = api.build(scen, out=tmp_path / "o", plots=False)
+    _, files, _, _ = build_parts(api.build(scen, out=tmp_path / "o", plots=False))
     net = read(files[0])
     r = 10 * INCH / (5.8e7 * 5 * MIL * 0.7 * MIL)
     assert net.f[0] == 0.0
@@ -421,7 +422,7 @@ length = "10 in"
 def test_dc_block_opens_the_channel_at_dc(tmp_path):
     # an ideal series capacitor is an open at f = 0: S21 = 0, S11 = S22 = 1 (circuit theory)
     scen = write_scenario(tmp_path / "s")
-    _, files, _, _ = api.build(scen, out=tmp_path / "o", plots=False)
+    _, files, _, _ = build_parts(api.build(scen, out=tmp_path / "o", plots=False))
     s0 = read(files[0]).s[0]
     assert s0[1, 0] == 0.0 and s0[0, 1] == 0.0
     # the lines and the connector in front of the open only add loss; |S11| <= 1
@@ -502,7 +503,7 @@ def test_failure_while_writing_leaves_nothing(tmp_path, capsys, monkeypatch):
     # a failure after the Touchstone file is staged (here: in the plots) must not leave
     # the output directory, a partial file or the staging directory behind
     from losslane.errors import LossLaneError
-    from losslane.report import build_outputs
+    from losslane.report import channel as build_outputs
 
     def boom(*args, **kwargs):
         raise LossLaneError("plot failed")

@@ -73,7 +73,7 @@ def test_json_output_is_one_object_with_the_contract_keys() -> None:
         df=0.009,
         dk_at="10GHz",
         at="1GHz,10GHz,28GHz",
-    )
+    ).to_json()
     assert same == obj
     # a quasi-TEM line's delay lies between the air and the full-Dk TEM values, 84.7 and
     # 84.7 sqrt(3.7) = 163 ps/in (exact from c), and its loss grows with frequency

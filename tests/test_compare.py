@@ -10,7 +10,6 @@ import pytest
 from cli_helpers import run, run_json
 
 from losslane.cli import main
-from losslane.xsection.factory import KINDS
 
 MIL = 25.4e-6
 MATERIALS = [
@@ -263,8 +262,6 @@ def test_impossible_target_names_the_candidate(capsys) -> None:
 
 
 def test_pairs_compare_at_equal_z_diff(capsys) -> None:
-    if "microstrip-pair" not in KINDS:
-        pytest.skip("microstrip-pair is not a registered line kind in this build")
     res = compare_json(
         capsys,
         "microstrip-pair",

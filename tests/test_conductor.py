@@ -7,6 +7,7 @@ import warnings
 
 import numpy as np
 import pytest
+from reported import properties
 
 from losslane.errors import LossLaneError, LossLaneWarning
 from losslane.materials.conductor import COPPER, MU0, Conductor, internal_impedance
@@ -14,7 +15,7 @@ from losslane.materials.dielectric import ConstantDielectric, WidebandDebye
 from losslane.materials.library import load_library
 from losslane.materials.roughness import FinishLayer, Graded, Groiss, Hammerstad, Huray, Smooth
 from losslane.xsection.base import Metal
-from losslane.xsection.coplanar import Coplanar
+from losslane.xsection.coplanar import Cpw, Gcpw
 from losslane.xsection.microstrip import Microstrip
 from losslane.xsection.rlgc import C0
 from losslane.xsection.stripline import Stripline
@@ -108,7 +109,7 @@ def test_coplanar_dc_resistance_is_the_strip_alone() -> None:
     # conductors whose DC resistance per unit length is negligible (losslane's stated
     # convention, materials.conductor.internal_impedance with wide=True)
     for grounded in (False, True):
-        cp = Coplanar(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, FR, grounded, Metal())
+        cp = (Gcpw if grounded else Cpw)(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, FR, Metal())
         r0 = cp.rlgc(np.array([0.0])).r[0, 0, 0]
         strip = 1 / (SIGMA * cp.width * cp.thickness)
         assert r0 == pytest.approx(strip, rel=1e-12)
@@ -176,7 +177,7 @@ def test_wide_microstrip_resistance_tends_to_the_parallel_plate_value() -> None:
     # current over width w, R = 2 Rs / w. The current spreads past the edges, which lowers
     # R by up to twice the fringing share (w_eff - w)/w, w_eff = eta0 h / Z_air
     # (Hammerstad-Jensen 1980 air-line impedance).
-    from losslane.xsection.microstrip import hj_z_air
+    from losslane.xsection.microstrip import z_air_thin
 
     h, t = 0.1e-3, 17e-6
     f = np.array([10e9, 100e9])
@@ -186,7 +187,7 @@ def test_wide_microstrip_resistance_tends_to_the_parallel_plate_value() -> None:
         w = u * h
         line = Microstrip(w, h, t, ConstantDielectric(1.0))
         r = line.rlgc(f).r[:, 0, 0]
-        share = (MU0 * C0 * h / float(hj_z_air(u)) - w) / w
+        share = (MU0 * C0 * h / float(z_air_thin(u)) - w) / w
         ratio = r / (2 * rs / w)
         assert np.all((1 - 2 * share <= ratio) & (ratio <= 1))
         devs.append(np.abs(ratio - 1).max())
@@ -235,8 +236,8 @@ KINDS = {
     "microstrip": lambda m: Microstrip(6 * MIL, 3.5 * MIL, 1.4 * MIL, FR, m),
     "stripline": lambda m: Stripline(5 * MIL, 6 * MIL, 6 * MIL, 0.6 * MIL, FR, m),
     "offset-stripline": lambda m: Stripline(5 * MIL, 4 * MIL, 9 * MIL, 0.6 * MIL, FR, m),
-    "cpw": lambda m: Coplanar(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, FR, False, m),
-    "gcpw": lambda m: Coplanar(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, FR, True, m),
+    "cpw": lambda m: Cpw(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, FR, m),
+    "gcpw": lambda m: Gcpw(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, FR, m),
 }
 
 
@@ -255,7 +256,7 @@ def test_rlgc_finite_at_dc_and_at_1_thz(kind: str, foil: str) -> None:
     assert g[0] == 0.0
     assert np.all(r > 0) and np.all(l > 0) and np.all(c > 0) and g[1] > 0
     assert r[1] > r[0]
-    props = line.properties(f)
+    props = properties(line, f)
     for key in ("z0_ohm", "eps_eff", "delay_ps_per_in", "loss_db_per_in"):
         assert all(np.isfinite(props[key])), key
     assert props["loss_db_per_in"][0] == 0.0 or props["loss_db_per_in"][0] < 1e-12

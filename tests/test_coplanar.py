@@ -13,7 +13,7 @@ from scipy.special import ellipk
 
 from losslane.errors import LossLaneError, LossLaneWarning
 from losslane.materials.dielectric import ConstantDielectric, WidebandDebye
-from losslane.xsection.coplanar import Coplanar, cpw_eps_quasi_static
+from losslane.xsection.coplanar import Cpw, Gcpw, cpw_eps_quasi_static
 from losslane.xsection.rlgc import attenuation_split
 
 MIL = 25.4e-6
@@ -42,7 +42,7 @@ def test_thick_substrate_cpw_is_wens_exact_solution(er: float, w: float, gap: fl
     # correction of order (pi (w + 2 gap) / 4h)^2 ~ 1e-6; f <= 1 kHz keeps the Frankel
     # dispersion term below 1e-9.
     h = 1000 * (w + 2 * gap)
-    line = Coplanar(w, gap, h, 0.0, ConstantDielectric(er))
+    line = Cpw(w, gap, h, 0.0, ConstantDielectric(er))
     m = quiet(line.modes, np.array([0.0, 1e3]))["single"]
     eps = (er + 1) / 2
     k = w / (w + 2 * gap)
@@ -77,7 +77,7 @@ def gupta_linear_z_air(w: float, gap: float, t: float) -> float:
     ],
 )
 def test_cpw_thickness_correction_is_guptas_exact_k_e(w: float, gap: float, t: float) -> None:
-    line = Coplanar(w, gap, 1e3 * (w + 2 * gap), t, ConstantDielectric(1.0))
+    line = Cpw(w, gap, 1e3 * (w + 2 * gap), t, ConstantDielectric(1.0))
     z_air = quiet(line.modes, np.array([0.0]))["single"].z0[0]
     assert z_air == pytest.approx(gupta_thickness_z_air(w, gap, t), rel=1e-9)
     assert z_air < ETA0 / (4 * k_ratio(w / (w + 2 * gap)))  # metal walls add capacitance
@@ -131,7 +131,7 @@ def test_zero_thickness_matches_scikit_rf(w, gap, h, er, tand, grounded) -> None
     # tolerance 1e-5 covers scikit-rf's K/K' (Hilberg's approximation, 2 ppm).
     # Dispersion is compared over the whole sweep, past Frankel's fitted 10 f_TE for the
     # thicker substrates: this checks the written-out formula, not an accuracy claim.
-    line = Coplanar(w, gap, h, 0.0, WidebandDebye(er, tand, 10e9), grounded)
+    line = (Gcpw if grounded else Cpw)(w, gap, h, 0.0, WidebandDebye(er, tand, 10e9))
     m = quiet(line.modes, F)["single"]
     sk = skrf_cpw(w, gap, h, 0.0, er, tand, grounded, "qucs")
     np.testing.assert_allclose(m.eps_eff, np.real(sk.ep_reff_f), rtol=1e-5)
@@ -167,7 +167,7 @@ def test_thin_metal_against_scikit_rf(w, gap, h, grounded) -> None:
     # scikit-rf's value with the linearised k_e written out in this file.
     t = 0.5 * MIL
     er, tand = 3.7, 0.009
-    line = Coplanar(w, gap, h, t, WidebandDebye(er, tand, 10e9), grounded)
+    line = (Gcpw if grounded else Cpw)(w, gap, h, t, WidebandDebye(er, tand, 10e9))
     m = quiet(line.modes, F)["single"]
     sk = skrf_cpw(w, gap, h, t, er, tand, grounded, "qucs")
     np.testing.assert_allclose(m.eps_eff, np.real(sk.ep_reff_f), rtol=1e-5)
@@ -185,14 +185,14 @@ def test_gcpw_tends_to_cpw_when_the_lower_plane_is_far() -> None:
     # Wen's (er + 1)/2 (in GCPW the substrate fills the lower half-space up to the plane)
     w, gap = 10 * MIL, 5 * MIL
     h = 200 * (w + 2 * gap)
-    g = Coplanar(w, gap, h, 0.0, ConstantDielectric(4.0), True)
-    c = Coplanar(w, gap, h, 0.0, ConstantDielectric(4.0), False)
+    g = Gcpw(w, gap, h, 0.0, ConstantDielectric(4.0))
+    c = Cpw(w, gap, h, 0.0, ConstantDielectric(4.0))
     mg = quiet(g.modes, np.array([0.0]))["single"]
     mc = quiet(c.modes, np.array([0.0]))["single"]
     assert mg.z0[0] == pytest.approx(mc.z0[0], rel=1e-3)
     assert mg.eps_eff[0] == pytest.approx(2.5, rel=1e-3)
     # a close lower plane lowers the impedance (more capacitance)
-    near = Coplanar(w, gap, 5 * MIL, 0.0, ConstantDielectric(4.0), True)
+    near = Gcpw(w, gap, 5 * MIL, 0.0, ConstantDielectric(4.0))
     assert quiet(near.modes, np.array([0.0]))["single"].z0[0] < mg.z0[0]
 
 
@@ -200,22 +200,22 @@ def test_validity_warnings_and_errors() -> None:
     d = ConstantDielectric(3.7)
     f = np.array([1e9])
     with pytest.warns(LossLaneWarning, match="thickness/gap"):
-        Coplanar(5 * MIL, 5 * MIL, 10 * MIL, 3 * MIL, d).modes(f)
+        Cpw(5 * MIL, 5 * MIL, 10 * MIL, 3 * MIL, d).modes(f)
     with pytest.warns(LossLaneWarning, match="width/gap"):
-        Coplanar(30 * MIL, 5 * MIL, 10 * MIL, 0.5 * MIL, d).modes(f)
+        Cpw(30 * MIL, 5 * MIL, 10 * MIL, 0.5 * MIL, d).modes(f)
     with pytest.warns(LossLaneWarning, match="width/height"):
-        Coplanar(10 * MIL, 5 * MIL, 200 * MIL, 0.5 * MIL, d).modes(f)
+        Cpw(10 * MIL, 5 * MIL, 200 * MIL, 0.5 * MIL, d).modes(f)
     with warnings.catch_warnings():
         warnings.simplefilter("error", LossLaneWarning)
-        Coplanar(10 * MIL, 5 * MIL, 10 * MIL, 0.5 * MIL, d, True).modes(f)
+        Gcpw(10 * MIL, 5 * MIL, 10 * MIL, 0.5 * MIL, d).modes(f)
     # a thickness whose widened strip closes the gap is impossible, not just out of range:
     # Gupta's k_e = (w + Delta)/(w + 2 gap - Delta) reaches 1 at Delta = gap. Here
     # Delta = 3.06 mil against a 2 mil gap (this case used to give NaN).
     for w, gap, t in [(6 * MIL, 1 * MIL, 3 * MIL), (10 * MIL, 2 * MIL, 1.4 * MIL)]:
         with pytest.raises(LossLaneError, match="close the gap"):
-            Coplanar(w, gap, 10 * MIL, t, d)
+            Cpw(w, gap, 10 * MIL, t, d)
     # just below the limit the line is finite
-    line = Coplanar(10 * MIL, 3.1 * MIL, 10 * MIL, 1.4 * MIL, d)
+    line = Cpw(10 * MIL, 3.1 * MIL, 10 * MIL, 1.4 * MIL, d)
     rl = quiet(line.rlgc, np.array([0.0, 1e9]))
     assert np.all(np.isfinite(rl.r)) and np.all(np.isfinite(rl.l))
     for args, key in [
@@ -224,4 +224,4 @@ def test_validity_warnings_and_errors() -> None:
         ((10 * MIL, 5 * MIL, 0.0, 0.5 * MIL), "height"),
     ]:
         with pytest.raises(LossLaneError, match=key):
-            Coplanar(*args, d)
+            Cpw(*args, d)

@@ -8,8 +8,8 @@ import pytest
 from _coupled_numerics import fd_microstrip_pair, sda_microstrip
 
 from losslane.materials.dielectric import ConstantDielectric
-from losslane.xsection.coupled import MicrostripPair, kj_quasi_static, kj_static
-from losslane.xsection.microstrip import Microstrip, hj_eps_eff, hj_z_air
+from losslane.xsection.microstrip import Microstrip, eps_eff_thin, z_air_thin
+from losslane.xsection.microstrip_pair import MicrostripPair, static_modes, static_modes_thin
 
 MIL = 25.4e-6
 
@@ -20,9 +20,9 @@ def test_spectral_solver_reproduces_hammerstad_jensen():
     # 0.03 % in the air impedance (Hammerstad & Jensen 1980) -- checks the solver itself.
     for u, er in [(0.3, 4.0), (1.0, 10.0), (3.0, 2.2)]:
         z, e = sda_microstrip(u, 200.0, 1.0, er, "even")
-        e_hj = float(hj_eps_eff(u, er))
+        e_hj = float(eps_eff_thin(u, er))
         assert e == pytest.approx(e_hj, rel=3e-3)
-        assert z == pytest.approx(float(hj_z_air(u)) / np.sqrt(e_hj), rel=3e-3)
+        assert z == pytest.approx(float(z_air_thin(u)) / np.sqrt(e_hj), rel=3e-3)
 
 
 @pytest.mark.parametrize(
@@ -43,7 +43,7 @@ def test_quasi_static_against_moment_method(u, g, er):
     # (from memory); over their range the largest deviation measured was 1.1 % (odd-mode
     # Z at w/h = 10, s/h = 0.1).
     er_a = np.array([er])
-    kj = kj_static(u, g, er_a)
+    kj = static_modes_thin(u, g, er_a)
     for mode in ("even", "odd"):
         z, e = sda_microstrip(u, g, 1.0, er, mode)
         assert kj[mode][0][0] == pytest.approx(z, rel=0.015)
@@ -52,7 +52,7 @@ def test_quasi_static_against_moment_method(u, g, er):
 
 def test_air_filled_modes_have_unit_eps():
     # exact: without a dielectric both modes are TEM in air
-    r = kj_static(1.3, 0.7, np.array([1.0]))
+    r = static_modes_thin(1.3, 0.7, np.array([1.0]))
     assert r["even"][1][0] == pytest.approx(1.0, abs=1e-12)
     assert r["odd"][1][0] == pytest.approx(1.0, abs=1e-12)
 
@@ -78,11 +78,11 @@ def test_wide_spacing_tends_to_single_microstrip(t):
 
 def test_quasi_static_thickness_limit_is_hammerstad_jensen():
     # t > 0, s -> infinity: exactly the single strip's Hammerstad-Jensen values
-    from losslane.xsection.microstrip import hj_quasi_static
+    from losslane.xsection.microstrip import quasi_static
 
     er = np.array([3.0, 4.5])
-    z1, e1 = hj_quasi_static(5.0, 4.0, 1.4, er)
-    for z, e in kj_quasi_static(5.0, 4e4, 4.0, 1.4, er).values():
+    z1, e1 = quasi_static(5.0, 4.0, 1.4, er)
+    for z, e in static_modes(5.0, 4e4, 4.0, 1.4, er).values():
         np.testing.assert_allclose(z, z1, rtol=1e-4)
         np.testing.assert_allclose(e, e1, rtol=1e-4)
 
@@ -115,7 +115,7 @@ def test_thickness_against_finite_differences(u, g, t_h, er):
     # (tests/_coupled_numerics.py; it reproduces Hammerstad-Jensen's thick single strip
     # to 0.1 % in Z). Over 0.25 <= s/h <= 3, t/h <= 0.35 the largest deviations measured
     # were 1.0 % in Z and 3.1 % in eps_eff (zero-thickness model error included).
-    qs = kj_quasi_static(u, g, 1.0, t_h, np.array([er]))
+    qs = static_modes(u, g, 1.0, t_h, np.array([er]))
     for mode in ("even", "odd"):
         z, e = fd_microstrip_pair(u, g, 1.0, t_h, er, mode)
         assert qs[mode][0][0] == pytest.approx(z, rel=0.015)
@@ -138,7 +138,7 @@ def test_static_limit_of_the_dispersive_model():
     d = ConstantDielectric(dk=4.2)
     p = MicrostripPair(5 * MIL, 6 * MIL, 4 * MIL, 1.2 * MIL, d)
     modes = p.modes(np.array([0.0]))
-    qs = kj_quasi_static(5.0, 6.0, 4.0, 1.2, np.array([4.2]))
+    qs = static_modes(5.0, 6.0, 4.0, 1.2, np.array([4.2]))
     for m in ("even", "odd"):
         assert modes[m].z0[0] == pytest.approx(qs[m][0][0], rel=1e-12)
         assert modes[m].eps_eff[0] == pytest.approx(qs[m][1][0], rel=1e-12)

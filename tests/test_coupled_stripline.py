@@ -8,9 +8,9 @@ from _coupled_numerics import C0, fd_stripline_pair, green_stripline, sda_capaci
 from scipy.special import ellipk
 
 from losslane.materials.dielectric import ConstantDielectric
-from losslane.xsection.coupled import StriplinePair, centred_pair_z_air, stripline_pair_z_air
 from losslane.xsection.rlgc import ETA0
 from losslane.xsection.stripline import Stripline
+from losslane.xsection.stripline_pair import StriplinePair, centred_pair_z_air, stripline_pair_z_air
 
 MIL = 25.4e-6
 

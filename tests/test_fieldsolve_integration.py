@@ -6,14 +6,17 @@ import json
 
 import numpy as np
 import pytest
+from reported import properties
 
-from losslane.api import make_section
+from losslane.api import section
 from losslane.cli import main
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import ConstantDielectric, WidebandDebye
+from losslane.xsection import registry
 from losslane.xsection.base import Metal
-from losslane.xsection.factory import FIELD_BUILDERS, FIELD_KEYS
 from losslane.xsection.fieldsolve import solve as fsolve
+from losslane.xsection.fieldsolve.keys import EXTRA_KEYS
+from losslane.xsection.fieldsolve.options import field_section
 from losslane.xsection.fieldsolve.section import FieldSection
 
 MIL = 25.4e-6
@@ -22,7 +25,7 @@ BASE = {"thickness": "1.4 mil", "dielectric": "low-loss", "solver": "field", "ac
 
 def test_registered_kinds_and_keys():
     for kind in ("microstrip", "stripline", "cpw", "gcpw", "microstrip-pair", "stripline-pair"):
-        assert kind in FIELD_BUILDERS
+        assert kind in registry.field_kinds()
     for key in (
         "top_width",
         "etch_factor",
@@ -31,7 +34,7 @@ def test_registered_kinds_and_keys():
         "dielectric_above",
         "accuracy",
     ):
-        assert key in FIELD_KEYS
+        assert key in EXTRA_KEYS
 
 
 @pytest.mark.parametrize(
@@ -65,9 +68,9 @@ def test_registered_kinds_and_keys():
     ],
 )
 def test_kinds_build_from_scenario_keys(spec):
-    sec = make_section({**BASE, **spec})
+    sec = section({**BASE, **spec})
     assert isinstance(sec, FieldSection)
-    p = sec.properties(np.array([0.0, 1e9, 2e10]))
+    p = properties(sec, np.array([0.0, 1e9, 2e10]))
     assert p["kind"] == spec["kind"] and p["solver"] == "field"
     assert 20 < p["z0_ohm"][1] < 120
     assert all(np.isfinite(p["loss_db_per_in"]))
@@ -84,8 +87,8 @@ def test_field_and_closed_form_agree_for_a_plain_microstrip():
         "thickness": "1.4 mil",
         "dielectric": "low-loss",
     }
-    cf = make_section(spec).properties(np.array([1e8]))
-    fs = make_section({**spec, "solver": "field"}).properties(np.array([1e8]))
+    cf = properties(section(spec), np.array([1e8]))
+    fs = properties(section({**spec, "solver": "field"}), np.array([1e8]))
     assert fs["z0_ohm"][0] == pytest.approx(cf["z0_ohm"][0], rel=0.01)
 
 
@@ -98,9 +101,9 @@ def test_pair_builders_give_even_odd_properties():
         "coating_thickness": "0.7 mil",
         "coating_dielectric": WidebandDebye(3.5, 0.02, 1e9),
     }
-    sec = FIELD_BUILDERS["microstrip-pair"](geo, d, Metal(), spec, "lines.pair")
+    sec = field_section(registry.model("microstrip-pair"), geo, d, Metal(), spec, "lines.pair")
     assert sec.n_conductors == 2
-    p = sec.properties(np.array([1e9, 1.6e10]))
+    p = properties(sec, np.array([1e9, 1.6e10]))
     assert 70 < p["z_diff_ohm"][0] < 120
     assert p["eps_eff_even"][0] > p["eps_eff_odd"][0]  # even mode has more field below
     geo_s = {
@@ -110,7 +113,9 @@ def test_pair_builders_give_even_odd_properties():
         "above": 5 * MIL,
         "thickness": 0.6 * MIL,
     }
-    sec_s = FIELD_BUILDERS["stripline-pair"](geo_s, d, Metal(), {"accuracy": "coarse"}, "x")
+    sec_s = field_section(
+        registry.model("stripline-pair"), geo_s, d, Metal(), {"accuracy": "coarse"}, "x"
+    )
     rl = sec_s.rlgc(np.array([1e9]))
     assert rl.c.shape == (1, 2, 2)
 
@@ -128,12 +133,12 @@ def test_pair_builders_give_even_odd_properties():
 def test_bad_microstrip_keys_name_the_key(extra, word):
     spec = {**BASE, "kind": "microstrip", "width": "6 mil", "height": "3.5 mil", **extra}
     with pytest.raises(LossLaneError, match=word):
-        make_section(spec)
+        section(spec)
 
 
 def test_coating_rejected_on_stripline_and_too_thick_for_the_gap():
     with pytest.raises(LossLaneError, match="coating_thickness"):
-        make_section(
+        section(
             {
                 **BASE,
                 "kind": "stripline",
@@ -145,7 +150,7 @@ def test_coating_rejected_on_stripline_and_too_thick_for_the_gap():
             }
         )
     with pytest.raises(LossLaneError, match="half the gap"):
-        make_section(
+        section(
             {
                 **BASE,
                 "kind": "cpw",
@@ -159,19 +164,19 @@ def test_coating_rejected_on_stripline_and_too_thick_for_the_gap():
 
 
 def test_cache_solves_a_section_once():
-    fsolve.clear_cache()
+    fsolve.CACHE.clear()
     d1 = ConstantDielectric(3.7, 0.01)
     d2 = ConstantDielectric(3.7, 0.02)  # same permittivity, other loss: same field
     geo = {"width": 6 * MIL, "height": 4 * MIL, "thickness": 1.4 * MIL}
-    a = FIELD_BUILDERS["microstrip"](geo, d1, Metal(), {"accuracy": "coarse"}, "a")
-    b = FIELD_BUILDERS["microstrip"](geo, d2, Metal(), {"accuracy": "coarse"}, "b")
-    a.properties(np.array([1e9]))
-    first = fsolve.stats["solves"]
+    a = field_section(registry.model("microstrip"), geo, d1, Metal(), {"accuracy": "coarse"}, "a")
+    b = field_section(registry.model("microstrip"), geo, d2, Metal(), {"accuracy": "coarse"}, "b")
+    properties(a, np.array([1e9]))
+    first = fsolve.CACHE.solves
     assert first == 2  # the setting and the coarser one (error estimate)
     a.rlgc(np.linspace(0, 4e10, 9))
-    b.properties(np.array([1e9, 1e10]))
-    assert fsolve.stats["solves"] == first
-    assert fsolve.stats["hits"] > 0
+    properties(b, np.array([1e9, 1e10]))
+    assert fsolve.CACHE.solves == first
+    assert fsolve.CACHE.hits > 0
 
 
 def test_cli_line_field_json_and_plot(tmp_path, capsys):

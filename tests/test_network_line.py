@@ -8,7 +8,8 @@ import scipy.linalg
 
 from losslane.materials.dielectric import ConstantDielectric, WidebandDebye
 from losslane.network import LineSegment, abcd_to_s, block_network, cascade
-from losslane.network.blocks import modal_scaled_abcd, single_scaled_abcd
+from losslane.network.line import UniformLine, modal_scaled_abcd
+from losslane.network.scaled import ScaledABCD
 from losslane.units import INCH, MIL
 from losslane.xsection import RLGC, Stripline
 
@@ -151,13 +152,18 @@ def test_very_long_line_stays_finite_and_passive(length):
 
 
 def test_modal_reduces_to_closed_form():
-    # the modal decomposition with n = 1 must equal the closed form (1e-12)
+    # the modal decomposition with n = 1 must equal the closed form a single line takes
+    # (the production path, UniformLine), to 1e-12
     f = np.linspace(0, 60e9, 301)
     rl = stripline().rlgc(f)
+    line = UniformLine.from_rlgc(rl)
     for length in (1e-4, 0.05, 1.0, 30.0):
-        m1, s1 = single_scaled_abcd(rl.z()[:, 0, 0], rl.y()[:, 0, 0], length)
-        mm, sm = modal_scaled_abcd(rl.z(), rl.y(), length)
-        np.testing.assert_allclose(sm, s1, rtol=1e-14, atol=0)
+        one = line.scaled_abcd(length)
+        modal = ScaledABCD.reciprocal(*modal_scaled_abcd(rl.z(), rl.y(), length))
+        # the same T = exp(log_scale) matrix, whatever power of two each normalised to
+        np.testing.assert_allclose(modal.log_scale, one.log_scale, rtol=1e-12, atol=1.0)
+        m1 = one.matrix
+        mm = modal.matrix * np.exp(modal.log_scale - one.log_scale)[:, None, None]
         err = np.max(np.abs(mm - m1), axis=(1, 2)) / np.max(np.abs(m1), axis=(1, 2))
         assert np.max(err) < 1e-12
 

@@ -108,8 +108,9 @@ def test_asymmetric_file_shows_its_mode_conversion(tmp_path) -> None:
     # An imported 4-port with one leg's shunt capacitance larger converts differential to
     # common mode; the channel must carry that conversion through (it cannot come from the
     # symmetric lines). Reference: the file's own mixed-mode Scd21 at low loss.
-    from losslane.network.blocks import LineSegment, ShuntCapacitor
     from losslane.network.cascade import build_network
+    from losslane.network.line import LineSegment
+    from losslane.network.lumped import ShuntCapacitor
     from losslane.xsection.rlgc import RLGC
 
     f = np.linspace(0, 20e9, 401)

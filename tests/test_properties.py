@@ -9,12 +9,13 @@ import warnings
 import numpy as np
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from reported import properties
 
 from losslane.errors import LossLaneWarning
 from losslane.materials.dielectric import WidebandDebye
 from losslane.materials.roughness import Hammerstad, Huray
 from losslane.xsection.base import Metal
-from losslane.xsection.coplanar import Coplanar
+from losslane.xsection.coplanar import Cpw, Gcpw
 from losslane.xsection.microstrip import Microstrip
 from losslane.xsection.stripline import Stripline
 
@@ -37,7 +38,7 @@ def z0(line) -> np.ndarray:
 def loss(line) -> np.ndarray:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", LossLaneWarning)
-        return np.array(line.properties(F)["loss_db_per_in"])
+        return np.array(properties(line, F)["loss_db_per_in"])
 
 
 def diel(dk: float, df: float = 0.005) -> WidebandDebye:
@@ -75,10 +76,14 @@ def test_stripline_z0_falls_with_width_and_rises_with_plane_distance(w, lo, hi, 
 def test_coplanar_z0_falls_with_width_and_rises_with_gap(w, gap, h, dk, k, grounded) -> None:
     t = 0.5  # mil; thin enough for every gap drawn (Delta < gap)
     d = diel(dk)
-    base = z0(Coplanar(w * MIL, gap * MIL, h * MIL, t * MIL, d, grounded))
-    assert np.all(z0(Coplanar(k * w * MIL, gap * MIL, h * MIL, t * MIL, d, grounded)) < base)
-    assert np.all(z0(Coplanar(w * MIL, k * gap * MIL, h * MIL, t * MIL, d, grounded)) > base)
-    taller = z0(Coplanar(w * MIL, gap * MIL, k * h * MIL, t * MIL, d, grounded))
+    base = z0((Gcpw if grounded else Cpw)(w * MIL, gap * MIL, h * MIL, t * MIL, d))
+    assert np.all(
+        z0((Gcpw if grounded else Cpw)(k * w * MIL, gap * MIL, h * MIL, t * MIL, d)) < base
+    )
+    assert np.all(
+        z0((Gcpw if grounded else Cpw)(w * MIL, k * gap * MIL, h * MIL, t * MIL, d)) > base
+    )
+    taller = z0((Gcpw if grounded else Cpw)(w * MIL, gap * MIL, k * h * MIL, t * MIL, d))
     if grounded:
         # the lower return plane moves away: higher impedance (Ghione & Naldi 1983)
         assert np.all(taller > base)
@@ -92,8 +97,8 @@ KINDS = {
     "microstrip": lambda d, m: Microstrip(6 * MIL, 3.5 * MIL, 1.4 * MIL, d, m),
     "stripline": lambda d, m: Stripline(5 * MIL, 6 * MIL, 6 * MIL, 0.6 * MIL, d, m),
     "offset": lambda d, m: Stripline(5 * MIL, 4 * MIL, 8 * MIL, 0.6 * MIL, d, m),
-    "cpw": lambda d, m: Coplanar(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, d, False, m),
-    "gcpw": lambda d, m: Coplanar(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, d, True, m),
+    "cpw": lambda d, m: Cpw(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, d, m),
+    "gcpw": lambda d, m: Gcpw(10 * MIL, 5 * MIL, 10 * MIL, 1.4 * MIL, d, m),
 }
 
 

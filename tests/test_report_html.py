@@ -11,9 +11,10 @@ from pathlib import Path
 
 import pytest
 from budget_scenarios import PASSING_BUDGET, SMALL_CHANNEL, pieces, scenario_text, write
+from reported import build_parts
 
 from losslane.api import build
-from losslane.report.tables import CAUTION
+from losslane.report.text import CAUTION
 
 VOID = {"area", "base", "br", "col", "embed", "hr", "img", "input", "link", "meta", "source"}
 # a stripline with thick copper: Wheeler's thickness correction is stated for
@@ -104,7 +105,7 @@ def built(tmp_path_factory):
     channel = SMALL_CHANNEL + pieces("thick", ["0.3 in"], "thick-copper run")
     text = scenario_text(channel, PASSING_BUDGET, extra=THICK, name="report <lane> & co")
     scen = write(tmp, text)
-    result, files, _, data = build(scen, out=tmp / "out")
+    result, files, _, data = build_parts(build(scen, out=tmp / "out"))
     page = next(p for p in files if p.name.endswith("-report.html"))
     return result, files, data, page.read_text(encoding="utf-8"), text
 
@@ -174,7 +175,7 @@ def test_page_lists_the_warnings_and_the_caution(built) -> None:
 
 def test_page_without_plots_says_so(tmp_path: Path) -> None:
     scen = write(tmp_path, scenario_text(SMALL_CHANNEL, PASSING_BUDGET))
-    _, files, _, _ = build(scen, out=tmp_path / "o", plots=False)
+    _, files, _, _ = build_parts(build(scen, out=tmp_path / "o", plots=False))
     page = next(f for f in files if f.name.endswith("-report.html")).read_text()
     p = parse_page(page)
     assert "img" not in p.tags

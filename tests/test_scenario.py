@@ -21,7 +21,6 @@ from losslane.materials.dielectric import ConstantDielectric, WidebandDebye
 from losslane.materials.roughness import Hammerstad, Smooth
 from losslane.scenario import load_scenario, parse_scenario
 from losslane.xsection.coplanar import Coplanar
-from losslane.xsection.factory import KINDS
 from losslane.xsection.microstrip import Microstrip
 from losslane.xsection.stripline import Stripline
 
@@ -551,11 +550,6 @@ def test_nonexistent_scenario_file(tmp_path):
 # ---------------------------------------------------------------- single-ended vs pairs
 
 
-@pytest.mark.skipif(
-    "microstrip-pair" not in KINDS,
-    reason="differential pairs (kind 'microstrip-pair') are not in losslane.xsection.factory "
-    "on this branch yet",
-)
 def test_mixing_single_ended_and_pair_names_the_odd_segment():
     pair = """
 [lines.pair]

@@ -14,9 +14,8 @@ from scipy.special import ellipk
 from losslane.design.sizing import search_range, size
 from losslane.errors import LossLaneWarning
 from losslane.materials.dielectric import ConstantDielectric
-from losslane.xsection import Metal, Microstrip
+from losslane.xsection import Metal, Microstrip, registry
 from losslane.xsection.base import CrossSection
-from losslane.xsection.factory import KINDS, KindSpec
 
 MIL = 25.4e-6
 ETA0 = 4e-7 * np.pi * (1 + 5.5e-10) * 299_792_458.0
@@ -344,8 +343,6 @@ PAIRS = {
     "vary, given", [("width", ("--spacing", "6mil")), ("spacing", ("--width", "4mil"))]
 )
 def test_pair_round_trip(capsys, kind: str, vary: str, given: tuple[str, str]) -> None:
-    if kind not in KINDS:
-        pytest.skip(f"{kind} is not a registered line kind in this build")
     # Source: round trip through `losslane line` (its z_diff_ohm), as for single lines.
     res = size_json(capsys, kind, *PAIRS[kind], *given, "--vary", vary, "--target", "100")
     assert "spacing_m" in res
@@ -369,7 +366,8 @@ def test_pair_round_trip(capsys, kind: str, vary: str, given: tuple[str, str]) -
 @dataclasses.dataclass(frozen=True)
 class _StandInPair(CrossSection):
     """A stand-in two-conductor kind (each mode a scaled microstrip, coupling falling with
-    spacing) that exercises the pair plumbing until the real pair models are registered."""
+    spacing), registered by the test below as a contributor adds a kind: the class names
+    its kind, dimensions and sizing intervals, and implements ``modes``."""
 
     width: float
     spacing: float
@@ -379,6 +377,8 @@ class _StandInPair(CrossSection):
     metal: Metal = dataclasses.field(default_factory=Metal)
     kind = "stand-in-pair"
     n_conductors = 2
+    dimensions = ("width", "spacing", "height", "thickness")
+    search = {"width": (("height",), 0.1, 10.0), "spacing": (("height",), 0.1, 10.0)}
 
     def modes(self, f):
         base = Microstrip(
@@ -396,18 +396,8 @@ class _StandInPair(CrossSection):
 def test_pair_plumbing_with_a_stand_in_kind(capsys, monkeypatch) -> None:
     # Source: round trip through `losslane line` (its z_diff_ohm), as for the real pairs;
     # this checks the Z_diff target, --vary spacing and the per-sample path end to end.
-    monkeypatch.setitem(
-        KINDS,
-        "stand-in-pair",
-        KindSpec(
-            ("width", "spacing", "height"),
-            (),
-            lambda g, d, m: _StandInPair(
-                g["width"], g["spacing"], g["height"], g["thickness"], d, m
-            ),
-            2,
-        ),
-    )
+    # adding a kind: its class (above) and one entry in the registry's list
+    monkeypatch.setattr(registry, "MODELS", registry.MODELS + (_StandInPair,))
     args = [
         "stand-in-pair",
         "--height",

@@ -17,8 +17,9 @@ from pathlib import Path
 
 import numpy as np
 
-from losslane.network.blocks import LineSegment, SeriesRL, ShuntCapacitor
 from losslane.network.cascade import build_network
+from losslane.network.line import LineSegment
+from losslane.network.lumped import SeriesRL, ShuntCapacitor
 from losslane.network.touchstone import write_touchstone
 from losslane.xsection.rlgc import C0, RLGC
 

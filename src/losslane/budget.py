@@ -24,15 +24,13 @@ Pure numpy; nothing here draws or writes files (that is ``losslane.report``).
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np
 
 from losslane.errors import LossLaneError, warn
-from losslane.units import INCH
+from losslane.signalling import baud_rate, nyquist_frequency
 
-BITS_PER_SYMBOL = {"nrz": 1, "pam4": 2}
 # low edge of the default fit band: 50 MHz, IEEE 802.3's f_min for the fitted insertion
 # loss of its backplane and cable channels (from memory)
 FIT_LOW_EDGE_HZ = 50e6
@@ -43,23 +41,6 @@ FIT_LOW_EDGE_HZ = 50e6
 FIT_STOP_NYQUIST_MULTIPLE = 2.0
 MIN_FIT_POINTS = 8
 REFLECTIONS_ROW = "reflections and interaction"
-
-
-def baud_rate(data_rate: float, modulation: str = "nrz") -> float:
-    """Symbols per second: bit rate / bits per symbol (NRZ 1, PAM4 2; common practice)."""
-    if modulation not in BITS_PER_SYMBOL:
-        raise LossLaneError(
-            f"modulation = {modulation!r}: valid values are "
-            + ", ".join(repr(m) for m in BITS_PER_SYMBOL)
-        )
-    if not (math.isfinite(data_rate) and data_rate > 0):
-        raise LossLaneError(f"data_rate = {data_rate!r} b/s: must be > 0")
-    return data_rate / BITS_PER_SYMBOL[modulation]
-
-
-def nyquist_frequency(data_rate: float, modulation: str = "nrz") -> float:
-    """The Nyquist frequency of a serial link, baud rate / 2 (common practice)."""
-    return baud_rate(data_rate, modulation) / 2.0
 
 
 def _ghz(x: float) -> str:
@@ -304,43 +285,43 @@ def _at(f: np.ndarray, y: np.ndarray, x: np.ndarray) -> np.ndarray:
     return y[:, idx - 1] * (1.0 - w) + y[:, idx] * w
 
 
-def _line_db_per_in(block, fx: np.ndarray, loss_db: np.ndarray) -> np.ndarray | None:
-    length = getattr(block, "length", None)
-    if getattr(block, "kind", None) != "line" or not length:
+def _line_db_per_in(segment, fx: np.ndarray) -> np.ndarray | None:
+    """A line segment's own attenuation (its main mode) at ``fx``, what a laminate
+    comparison quotes; None for other segments."""
+    section = getattr(segment, "section", None)
+    if segment.type != "line" or section is None:
         return None
-    src = getattr(block, "source", None)
-    if hasattr(src, "properties"):
-        # the line's own attenuation (main mode), what a laminate comparison quotes
-        return np.asarray(src.properties(fx)["loss_db_per_in"], dtype=float)
-    return loss_db / (length / INCH)
+    return section.attenuation_db_per_in(fx)
 
 
-def evaluate_budget(result, budget=None) -> ChannelBudget | None:
+def evaluate_budget(
+    result, budget=None, points: list[CheckPoint] | None = None
+) -> ChannelBudget | None:
     """The budget of a built channel (:class:`losslane.channel.ChannelResult`).
 
     ``budget`` defaults to the scenario's ``[budget]``; None when there is none.
+    ``points``: its check points when already found (``validate``).
     """
     budget = result.scenario.budget if budget is None else budget
     if budget is None:
         return None
     f = np.asarray(result.f, dtype=float)
-    pts = check_points(budget, f)
+    pts = check_points(budget, f) if points is None else points
     mode = "single-ended" if result.nports == 2 else "differential"
     if not pts:
         return ChannelBudget(budget.data_rate, budget.modulation, (), mode)
     fx = np.array([p.at for p in pts])
     seg = _at(f, result.segment_loss_db, fx)  # (K, M)
     total = _at(f, result.insertion_loss_db, fx)[0]
-    rl_in, rl_out = result.return_loss_db()
+    rl_in, rl_out = result.return_loss
     rin, rout = _at(f, np.vstack([rl_in, rl_out]), fx)
-    per_in = [_line_db_per_in(b, fx, seg[k]) for k, b in enumerate(result.blocks)]
-    kinds = [s.type for s in result.scenario.channel]
+    per_in = [_line_db_per_in(s, fx) for s in result.scenario.channel]
     out = []
     for m, p in enumerate(pts):
         rows = tuple(
             SegmentRow(
                 blk.name,
-                kinds[k] if k < len(kinds) else getattr(blk, "kind", ""),
+                blk.kind,
                 float(seg[k, m]),
                 None if per_in[k] is None else float(per_in[k][m]),
                 getattr(blk, "length", None) if per_in[k] is not None else None,
@@ -537,31 +518,30 @@ def fit_channel(result, budget=None) -> LossFit | None:
     return LossFit(band, fit.coefficients, fit.f, fit.il_db)
 
 
-def validate(scenario) -> None:
+def validate(scenario) -> list[CheckPoint]:
     """Check the budget's frequencies against the sweep before any work is done: check
-    points and an explicit fit band must lie inside it (LossLaneError naming the key)."""
+    points and an explicit fit band must lie inside it (LossLaneError naming the key).
+    Returns the check points (for ``evaluate_budget``)."""
     f = scenario.frequencies()
     budget = scenario.budget
-    check_points(budget, f)
+    points = check_points(budget, f)
     if budget is not None and (budget.fit_start is not None or budget.fit_stop is not None):
         fit_band(budget, f)
+    return points
 
 
 __all__ = [
-    "BITS_PER_SYMBOL",
     "ChannelBudget",
     "CheckPoint",
     "FitBand",
     "LossFit",
     "PointBudget",
     "SegmentRow",
-    "baud_rate",
     "check_points",
     "evaluate_budget",
     "fit_band",
     "fit_basis",
     "fit_channel",
     "fit_insertion_loss",
-    "nyquist_frequency",
     "validate",
 ]

@@ -1,9 +1,10 @@
 """A scenario's channel: segments -> network blocks -> the cascaded result.
 
-This is the layer between the network blocks and the outputs: it turns each scenario
-segment into its block, cascades them on the sweep, and keeps what the outputs and the
-loss budget need besides the final S-parameters -- each segment's own insertion loss and
-the cumulative loss after each segment.
+This is the layer between the network blocks and the outputs: it evaluates each
+[lines.*] cross-section once on the sweep, turns each scenario segment into its block,
+cascades them, and keeps what the outputs and the loss budget need besides the final
+S-parameters -- each segment's own insertion loss, the cumulative loss after each
+segment, and the mixed-mode view of pairs -- each computed once, when first asked for.
 """
 
 from __future__ import annotations
@@ -14,26 +15,27 @@ from functools import cached_property
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.network.blocks import (
-    Block,
-    LineSegment,
-    SeriesCapacitor,
-    SeriesRL,
-    ShuntCapacitor,
-    TouchstoneBlock,
-    Via,
-)
-from losslane.network.cascade import build_network, cascade_scaled
-from losslane.network.mixedmode import MixedMode, mixed_mode
-from losslane.network.scaled import ScaledABCD, forward_transmission, scaled_db
+from losslane.network.block import Block
+from losslane.network.cascade import cascade_scaled, to_network
+from losslane.network.imported import TouchstoneBlock
+from losslane.network.line import LineSegment, UniformLine
+from losslane.network.lumped import SeriesCapacitor, SeriesRL, ShuntCapacitor
+from losslane.network.mixedmode import ONE_PAIR, MixedMode, mixed_mode_internal
+from losslane.network.ports import port_names, to_order
+from losslane.network.scaled import ScaledABCD, abcd_to_s, forward_transmission, scaled_db
+from losslane.network.via import Via
 from losslane.scenario import Scenario, Segment
 
 
-def make_block(seg: Segment, n: int, default_order: str) -> Block:
-    """The network block of one scenario segment, for an n-conductor channel."""
+def make_block(
+    seg: Segment, n: int, default_order: str, lines: dict[str, UniformLine] | None = None
+) -> Block:
+    """The network block of one scenario segment, for an n-conductor channel; a line
+    segment takes its section's constants from ``lines`` (by [lines.*] name) when given."""
     v = seg.values
     if seg.type == "line":
-        return LineSegment(seg.section, v["length"], name=seg.name)
+        line = lines[seg.line] if lines is not None else seg.section
+        return LineSegment(line, v["length"], name=seg.name, section=seg.section)
     if seg.type == "via":
         return Via(v["barrel"], v["stub"], v["impedance"], seg.dielectric, n=n, name=seg.name)
     if seg.type == "capacitor":
@@ -54,26 +56,50 @@ def make_block(seg: Segment, n: int, default_order: str) -> Block:
 class ChannelResult:
     """The built channel.
 
-    ``network``: the S-parameters (skrf.Network, ports in the scenario's order);
+    ``s``: the S-parameters (N, 2n, 2n) in the internal port order (near ends first);
+    ``network``: the same as a skrf.Network with the ports in the scenario's order;
     ``items``: each block's scaled chain matrix on ``f``, ``chain`` their cascade;
-    ``segment_loss_db``: each segment alone between matched references, insertion loss in
-    dB (positive), (K, N); ``cumulative_loss_db``: loss from the input through segment k,
-    (K, N); ``insertion_loss_db``: the whole channel's, (N,). For a differential channel
-    they are the differential mode. The per-segment arrays are computed when first asked
-    for (plots, budget), so a build that needs neither does not pay for them.
+    ``pairs``: the conductors judged as differential pairs (none for a single-ended
+    channel); ``mixed_mode``: their mixed-mode S; ``segment_loss_db``: each segment
+    alone between matched references, insertion loss in dB (positive), (K, N);
+    ``cumulative_loss_db``: loss from the input through segment k, (K, N);
+    ``insertion_loss_db``: the whole channel's, (N,). For a differential channel the
+    losses are the differential mode. Everything derived is computed once, when first
+    asked for, so a build that needs none of it does not pay for it.
     """
 
     scenario: Scenario
     f: np.ndarray
     blocks: list[Block]
-    network: object
     items: list[ScaledABCD] = field(repr=False)
     chain: ScaledABCD = field(repr=False)
+    s: np.ndarray = field(repr=False)
+    pairs: tuple[tuple[int, int], ...] = ()
     warnings: list[str] = field(default_factory=list)
 
     @property
+    def conductors(self) -> int:
+        return self.s.shape[1] // 2
+
+    @property
     def nports(self) -> int:
-        return int(self.network.nports)
+        return self.s.shape[1]
+
+    @cached_property
+    def network(self):
+        """The S-parameters as a skrf.Network, ports in the scenario's order."""
+        sc = self.scenario
+        n, order = self.conductors, sc.ports.order
+        return to_network(
+            to_order(self.s, n, order), self.f, sc.ports.reference, sc.name, port_names(n, order)
+        )
+
+    @cached_property
+    def mixed_mode(self) -> MixedMode | None:
+        """Mixed-mode S of the channel's pairs (None for a single-ended channel)."""
+        if not self.pairs:
+            return None
+        return mixed_mode_internal(self.s, self.scenario.ports.reference, self.pairs)
 
     @cached_property
     def segment_loss_db(self) -> np.ndarray:
@@ -96,20 +122,13 @@ class ChannelResult:
         """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
         return _loss_db(self.chain, self.scenario.ports.reference)
 
-    def mixed_mode(self) -> MixedMode | None:
-        """Mixed-mode blocks of a 4-port channel (None for a 2-port)."""
-        if self.nports != 4:
-            return None
-        sc = self.scenario
-        return mixed_mode(np.asarray(self.network.s), sc.ports.reference, sc.ports.order)
-
-    def return_loss_db(self) -> tuple[np.ndarray, np.ndarray]:
+    @cached_property
+    def return_loss(self) -> tuple[np.ndarray, np.ndarray]:
         """Return loss (positive dB) of the main mode at the input and at the output, (N,)
         each: |S11|, |S22| of a single-ended channel, |Sdd11|, |Sdd22| of a pair."""
-        mm = self.mixed_mode()
+        mm = self.mixed_mode
         if mm is None:
-            s = np.asarray(self.network.s)
-            s11, s22 = s[:, 0, 0], s[:, 1, 1]
+            s11, s22 = self.s[:, 0, 0], self.s[:, 1, 1]
         else:
             s11, s22 = mm.dd[:, 0, 0], mm.dd[:, 1, 1]
         with np.errstate(divide="ignore"):
@@ -129,14 +148,22 @@ def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:
 
 
 def build_channel(scenario: Scenario) -> ChannelResult:
-    """Cascade the scenario's channel on its sweep."""
+    """Cascade the scenario's channel on its sweep: each [lines.*] section used by a
+    segment is evaluated once and shared by its segments."""
     f = scenario.frequencies()
     n = scenario.conductors
     order = scenario.ports.order
-    blocks = [make_block(seg, n, order) for seg in scenario.channel]
-    z_ref = scenario.ports.reference
-    # segments of one [lines.*] section share its RLGC (LineSegment caches it per sweep)
+    used = dict.fromkeys(seg.line for seg in scenario.channel if seg.type == "line")
+    lines = {name: UniformLine.from_rlgc(scenario.lines[name].rlgc(f)) for name in used}
+    blocks = [make_block(seg, n, order, lines) for seg in scenario.channel]
     items = [b.scaled_abcd(f) for b in blocks]
+    for k, it in enumerate(items):
+        if it.n != n:
+            raise LossLaneError(
+                f"{scenario.channel[k].where}: the segment has {it.n} conductor(s) but the "
+                f"channel has {n}"
+            )
     chain = cascade_scaled(items)
-    net = build_network([chain], f, z_ref=z_ref, name=scenario.name, order=order)
-    return ChannelResult(scenario, f, blocks, net, items, chain)
+    s = abcd_to_s(chain, scenario.ports.reference)
+    pairs = ONE_PAIR if n == 2 else ()
+    return ChannelResult(scenario, f, blocks, items, chain, s, pairs)

@@ -44,8 +44,3 @@ def check_range(
             f"{model}: {name} = {shown} is outside the model's validity range [{lo}, {hi}]; "
             "the result is an extrapolation"
         )
-
-
-def require(condition: bool, message: str) -> None:
-    if not condition:
-        raise LossLaneError(message)

@@ -22,6 +22,7 @@ from losslane.materials.dielectric import Dielectric
 from losslane.materials.library import Library, dielectric_from_spec, foil_from_spec, load_library
 from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
+from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
 from losslane.spec import check_keys, quantity, suggest, text
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
@@ -97,14 +98,14 @@ class Budget:
 
     @property
     def baud(self) -> float | None:
-        if self.data_rate is None:
-            return None
-        return self.data_rate / (2.0 if self.modulation == "pam4" else 1.0)
+        return None if self.data_rate is None else baud_rate(self.data_rate, self.modulation)
 
     @property
     def nyquist(self) -> float | None:
         """Nyquist frequency = baud rate / 2 (common practice)."""
-        return None if self.baud is None else self.baud / 2.0
+        if self.data_rate is None:
+            return None
+        return nyquist_frequency(self.data_rate, self.modulation)
 
 
 @dataclass
@@ -454,7 +455,7 @@ def _budget(spec: object) -> Budget:
     rate = quantity(where, spec, "data_rate", "data rate")
     if rate is not None and rate <= 0:
         raise LossLaneError(f"{where}.data_rate = {spec['data_rate']!r}: must be > 0")
-    modulation = text(where, spec, "modulation", ("nrz", "pam4"), "nrz")
+    modulation = text(where, spec, "modulation", MODULATIONS, "nrz")
     max_loss = quantity(where, spec, "max_loss", "decibel")
     if max_loss is not None and rate is None:
         raise LossLaneError(

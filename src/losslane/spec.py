@@ -11,20 +11,45 @@ from losslane.units import parse_quantity
 
 
 class Where(str):
-    """Where a value comes from, for messages: a TOML section (keys shown as
-    ``section.key``) or the command line (keys shown as ``--key``)."""
+    """Where a value comes from, for messages in the caller's vocabulary: a TOML section
+    (keys shown as ``section.key``), the command line (``--key``) or a Python call
+    (``key``, the keyword argument). The text itself names the section, command or
+    function."""
 
     cli: bool = False
+    python: bool = False
 
     def key(self, key: str) -> str:
         if self.cli:
             return "KIND" if key == "kind" else "--" + key.replace("_", "-")
+        if self.python:
+            return key
         return f"{self}.{key}" if self else key
+
+    def setting(self, key: str, value: object) -> str:
+        """``key`` with its ``value`` as the caller wrote it: ``--vary spacing`` on the
+        command line, ``vary = 'spacing'`` elsewhere."""
+        if self.cli:
+            return f"{self.key(key)} {value}"
+        return f"{self.key(key)} = {value!r}"
+
+    def tolerance(self, key: str) -> str:
+        """The name of the +/- tolerance of ``key``: ``--width-tol`` on the command line,
+        ``tolerances['width']`` in Python."""
+        if self.cli:
+            return f"--{key.replace('_', '-')}-tol"
+        return f"tolerances[{key!r}]"
 
 
 def cli_where(command: str) -> Where:
     w = Where(command)
     w.cli = True
+    return w
+
+
+def python_where(function: str) -> Where:
+    w = Where(function)
+    w.python = True
     return w
 
 

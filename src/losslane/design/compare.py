@@ -18,8 +18,9 @@ from losslane.design.sizing import DEFAULT_SIZE_AT, size
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness
+from losslane.spec import Where, python_where
 from losslane.xsection.base import CrossSection
-from losslane.xsection.batch import evaluate, nominal_geometry
+from losslane.xsection.batch import evaluate
 
 
 @dataclass(frozen=True)
@@ -52,7 +53,7 @@ class Candidate:
             "dk_at_hz": float(geo.dielectric.at),
         }
         if geo.n_conductors == 2:
-            out["spacing_m"] = nominal_geometry(geo).get("spacing")
+            out["spacing_m"] = geo.dimension_values().get("spacing")
         return out
 
 
@@ -84,6 +85,7 @@ def compare(
     *,
     size_at: float = DEFAULT_SIZE_AT,
     curve_points: int = 121,
+    where: Where | None = None,
 ) -> CompareResult:
     """Re-size ``section`` to ``target`` ohm for every material x foil and tabulate loss.
 
@@ -91,11 +93,12 @@ def compare(
     keeps the section's own foil (reported under its model name). The loss curves run
     from 1 % of the highest frequency to the highest, ``curve_points`` points.
     """
+    where = where or python_where("compare")
     if not materials:
-        raise LossLaneError("--materials: give at least one dielectric name")
+        raise LossLaneError(f"{where.key('materials')}: give at least one dielectric name")
     freqs = [float(x) for x in frequencies]
     if not freqs:
-        raise LossLaneError("--at: give at least one frequency")
+        raise LossLaneError(f"{where.key('at')}: give at least one frequency")
     if foils is None:
         foils = {getattr(section.metal.foil, "model", "foil"): section.metal.foil}
     fmax = max(freqs)
@@ -104,12 +107,14 @@ def compare(
     for mname, diel in materials.items():
         for fname, foil in foils.items():
             metal = dataclasses.replace(section.metal, foil=foil)
-            sec = dataclasses.replace(section, dielectric=diel, metal=metal)
+            sec = section.replace(dielectric=diel, metal=metal)
             try:
-                res = size(sec, target, at=size_at, loss_at=freqs, with_sensitivity=False)
+                res = size(
+                    sec, target, at=size_at, loss_at=freqs, with_sensitivity=False, where=where
+                )
             except LossLaneError as exc:
                 raise LossLaneError(f"material {mname!r} with foil {fname!r}: {exc}") from None
-            p = res.properties
+            total, conductor, dielectric = res.values.main.db_per_in()
             curve = evaluate(res.section, curve_f).loss_db_per_in()[0][0]
             out.append(
                 Candidate(
@@ -117,9 +122,9 @@ def compare(
                     fname,
                     res.section,
                     res.achieved,
-                    p["loss_db_per_in"][1:],
-                    p["conductor_db_per_in"][1:],
-                    p["dielectric_db_per_in"][1:],
+                    total[1:].tolist(),
+                    conductor[1:].tolist(),
+                    dielectric[1:].tolist(),
                     curve_f,
                     curve,
                 )

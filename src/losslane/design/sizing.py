@@ -11,7 +11,6 @@ the search never clamps to the edge of the range.
 
 from __future__ import annotations
 
-import dataclasses
 import math
 import warnings
 from dataclasses import dataclass
@@ -19,9 +18,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from losslane.errors import LossLaneError, LossLaneWarning
+from losslane.spec import Where, python_where
 from losslane.units import MIL, parse_resistance
-from losslane.xsection.base import CrossSection
-from losslane.xsection.batch import evaluate, nominal_geometry
+from losslane.xsection.base import CrossSection, LineValues
+from losslane.xsection.batch import evaluate
+from losslane.xsection.validity import applies
 
 #: default sizing frequency: the impedance a fabricator's coupon measures is quoted near
 #: 1 GHz (common practice), and dispersion is small there
@@ -44,99 +45,63 @@ class SearchRange:
         return self.lo * self.ref, self.hi * self.ref
 
 
-def search_range(section: CrossSection, vary: str = "width") -> SearchRange:
-    """The validity range of ``section``'s model for the dimension ``vary``.
+def search_range(
+    section: CrossSection, vary: str = "width", where: Where | None = None
+) -> SearchRange:
+    """The interval of dimension ``vary`` searched when sizing ``section``.
 
-    Ranges are those the models state (and warn on) at a frequency above DC:
-
-    * microstrip: Hammerstad-Jensen 0.01 <= w/h <= 100, Kirschning-Jansen dispersion
-      0.1 <= w/h <= 100 -> 0.1..100;
-    * stripline: Wheeler's thickness correction w/(b - t) < 10; the offset combination
-      w/(b - t) > 0.35; Cohn's exact zero-thickness solution holds for any width, so the
-      centred search starts at 0.01 (a floor of the search, not of the model);
-    * cpw / gcpw: Frankel's dispersion fit, 0.1 <= w/gap <= 5 and 0.1 <= w/h <= 5;
-    * microstrip-pair: Kirschning-Jansen coupled lines, 0.1 <= w/h <= 10 and
-      0.1 <= s/h <= 10 (from memory of the 1984 paper);
-    * stripline-pair: Cohn's coupled stripline is exact at zero thickness; searched over
-      0.01..10 of the dielectric height (search bounds);
-    * other kinds: 0.01..100 of the first of height, below + above, gap.
+    The model class declares the interval searched (``search``: the ratio of ``vary`` to
+    the sum of reference dimensions, e.g. width/height 0.01..100); it is narrowed to every
+    validity range of the model (``limits``) that bounds ``vary`` with the other
+    dimensions fixed -- so a sized line never sits where its own model warns -- and to
+    any input bound of the model (``size_bounds``). A field-solved section searches its
+    model's interval (the closed forms' ranges do not bound the solver).
     """
-    geo = nominal_geometry(section)
+    where = where or python_where("size")
+    geo = section.dimension_values()
     kind = section.kind
     if vary not in geo:
         raise LossLaneError(
-            f"--vary {vary}: {kind} has no {vary}; it has "
+            f"{where.setting('vary', vary)}: {kind} has no {vary}; it has "
             f"{', '.join(k for k in geo if k != 'thickness')}"
         )
-    pair = section.n_conductors == 2
-    if vary == "spacing" and not pair:
+    if vary == "spacing" and section.n_conductors != 2:
         raise LossLaneError(
-            f"--vary spacing: {kind} is a single line; spacing is varied "
+            f"{where.setting('vary', 'spacing')}: {kind} is a single line; spacing is varied "
             "only for pairs (microstrip-pair, stripline-pair)"
         )
-    if kind == "microstrip" and vary == "width":
-        return SearchRange(
-            "width",
-            "width/height",
-            geo["height"],
-            0.1,
-            100.0,
-            "Hammerstad-Jensen with Kirschning-Jansen dispersion",
-        )
-    if kind == "stripline" and vary == "width":
-        ref = geo["below"] + geo["above"]
-        centred = abs(geo["below"] - geo["above"]) <= 1e-9 * (ref + geo["thickness"])
-        if centred:
-            return SearchRange(
-                "width",
-                "width/(below + above)",
-                ref,
-                0.01,
-                10.0,
-                "Cohn's exact solution with Wheeler's thickness correction",
-            )
-        return SearchRange(
-            "width",
-            "width/(below + above)",
-            ref,
-            0.35,
-            10.0,
-            "offset stripline (parallel combination), Wheeler's thickness correction",
-        )
-    if kind in ("cpw", "gcpw") and vary == "width":
-        gap, h, t = geo["gap"], geo["height"], geo["thickness"]
-        hi = min(5.0, 5.0 * h / gap)
-        source = "Frankel dispersion fit (width/gap and width/height 0.1..5)"
-        if t > 0:
-            # Gupta's thickness widening D = (1.25 t/pi)(1 + ln(4 pi w/t)) must stay below
-            # the gap: w < t/(4 pi) exp(pi gap/(1.25 t) - 1)
-            w_max = t / (4 * np.pi) * np.exp(min(np.pi * gap / (1.25 * t) - 1.0, 700.0))
-            if 0.999 * w_max / gap < hi:
-                hi = 0.999 * w_max / gap
-                source += "; Gupta thickness correction (widening below the gap)"
-        return SearchRange("width", "width/gap", gap, max(0.1, 0.1 * h / gap), hi, source)
-    if kind == "microstrip-pair":
-        return SearchRange(
-            vary, f"{vary}/height", geo["height"], 0.1, 10.0, "Kirschning-Jansen coupled microstrip"
-        )
-    if kind == "stripline-pair":
-        ref = geo["below"] + geo["above"]
-        return SearchRange(
-            vary,
-            f"{vary}/(below + above)",
-            ref,
-            0.01,
-            10.0,
-            "Cohn's coupled stripline (search bounds)",
-        )
-    for key, label in (("height", "height"), ("below", "below + above"), ("gap", "gap")):
-        if key in geo:
-            ref = geo["below"] + geo["above"] if key == "below" else geo[key]
-            return SearchRange(vary, f"{vary}/{label}", ref, 0.01, 100.0, f"{kind} (search bounds)")
-    raise LossLaneError(f"size: no search range is known for kind {kind!r}")
+    if vary not in section.search:
+        raise LossLaneError(f"size: {kind} declares no search interval for {vary}")
+    den, lo_ratio, hi_ratio = section.search[vary]
+    ref = sum(geo[k] for k in den)
+    ratio = f"{vary}/{den[0]}" if len(den) == 1 else f"{vary}/({' + '.join(den)})"
+    lo, lo_from = lo_ratio * ref, "search bounds"
+    hi, hi_from = hi_ratio * ref, "search bounds"
+    model = getattr(section, "source", None)
+    closed_form = model is None
+    if closed_form:
+        dk = float(section.dielectric.dk)
+        for lim in section.limits:
+            b = lim.bounds_on(vary, geo) if applies(lim, geo, dk) else None
+            if b is None:
+                continue
+            if b[0] >= lo:
+                lo, lo_from = b[0], lim.method
+            if b[1] <= hi:
+                hi, hi_from = b[1], lim.method
+        bound = type(section).size_bounds(vary, geo)
+        if bound is not None and bound[0] < hi:
+            hi, hi_from = bound
+    if lo_from == hi_from:
+        source = f"{kind} (search bounds)" if lo_from == "search bounds" else lo_from
+    else:
+        source = f"lower end: {lo_from}; upper end: {hi_from}"
+    if not closed_form:
+        source = "field solver, " + source
+    return SearchRange(vary, ratio, ref, lo / ref, hi / ref, source)
 
 
-def parse_target(value: object, key: str = "--target") -> float:
+def parse_target(value: object, key: str = "target") -> float:
     """An impedance such as "50ohm", "50 ohm" or a bare 50 (ohm is the only unit in use)."""
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         z = float(value)
@@ -158,37 +123,41 @@ def _quiet_impedance(section: CrossSection, f: float, **geometry) -> np.ndarray:
         return evaluate(section, [f], **geometry).impedance[:, 0]
 
 
-def _hints(section: CrossSection, vary: str, lower: bool) -> str:
+def _hints(section: CrossSection, vary: str, lower: bool, where: Where) -> str:
     """How to move the stackup so that a lower (``lower``) or higher impedance fits."""
     kind = section.kind
+    k = where.key
     if vary == "spacing":
         return (
-            "wider traces (larger --width) or a thinner dielectric"
+            f"wider traces (larger {k('width')}) or a thinner dielectric"
             if lower
-            else "narrower traces (smaller --width) or a thicker dielectric"
+            else f"narrower traces (smaller {k('width')}) or a thicker dielectric"
         )
     if kind.startswith("stripline"):
+        planes = f"{k('below')}/{k('above')}"
         return (
-            "thinner dielectric layers (smaller --below/--above) or a higher-Dk material"
+            f"thinner dielectric layers (smaller {planes}) or a higher-Dk material"
             if lower
-            else "thicker dielectric layers (larger --below/--above) or a lower-Dk material"
+            else f"thicker dielectric layers (larger {planes}) or a lower-Dk material"
         )
     if kind == "cpw":
         return (
-            "a narrower --gap or a higher-Dk material"
+            f"a narrower {k('gap')} or a higher-Dk material"
             if lower
-            else "a wider --gap or a lower-Dk material"
+            else f"a wider {k('gap')} or a lower-Dk material"
         )
     if kind == "gcpw":
         return (
-            "a narrower --gap, a thinner dielectric (smaller --height) or a higher-Dk material"
+            f"a narrower {k('gap')}, a thinner dielectric (smaller {k('height')}) or a "
+            "higher-Dk material"
             if lower
-            else "a wider --gap, a thicker dielectric (larger --height) or a lower-Dk material"
+            else f"a wider {k('gap')}, a thicker dielectric (larger {k('height')}) or a "
+            "lower-Dk material"
         )
     return (
-        "a thinner dielectric (smaller --height) or a higher-Dk material"
+        f"a thinner dielectric (smaller {k('height')}) or a higher-Dk material"
         if lower
-        else "a thicker dielectric (larger --height) or a lower-Dk material"
+        else f"a thicker dielectric (larger {k('height')}) or a lower-Dk material"
     )
 
 
@@ -198,6 +167,7 @@ def solve(
     at: float = DEFAULT_SIZE_AT,
     vary: str = "width",
     points: int = 33,
+    where: Where | None = None,
 ) -> tuple[float, SearchRange]:
     """The value of ``vary`` (m) at which ``section`` has impedance ``target`` at ``at`` Hz.
 
@@ -206,14 +176,15 @@ def solve(
     """
     from scipy.optimize import brentq
 
+    where = where or python_where("size")
     if not math.isfinite(target) or target <= 0:
-        raise LossLaneError(f"target = {target!r} ohm: must be > 0")
+        raise LossLaneError(f"{where.setting('target', target)} ohm: must be > 0")
     if not math.isfinite(at) or at <= 0:
         raise LossLaneError(
-            f"--at = {at!r} Hz: size at a frequency above 0 Hz (e.g. 1GHz); "
+            f"{where.key('at')} = {at!r} Hz: size at a frequency above 0 Hz (e.g. 1GHz); "
             "at DC the impedance carries the full internal inductance"
         )
-    rng = search_range(section, vary)
+    rng = search_range(section, vary, where)
     lo, hi = rng.bounds
     if not lo < hi:
         raise LossLaneError(
@@ -241,7 +212,8 @@ def solve(
             f"{section.kind}: {what} = {target:g} ohm needs {rng.ratio} {side} {bound:.3g}, "
             f"outside the model's validity range {rng.lo:.3g}..{rng.hi:.3g} ({rng.source}), "
             f"which spans {zmin:.1f}..{zmax:.1f} ohm here; use "
-            f"{_hints(section, vary, lower)}, or a {'higher' if lower else 'lower'} target"
+            f"{_hints(section, vary, lower, where)}, or a {'higher' if lower else 'lower'} "
+            "target"
         )
     i = int(hit[0])
     if d[i] == 0:
@@ -265,7 +237,7 @@ def sensitivity(section: CrossSection, at: float = DEFAULT_SIZE_AT) -> dict[str,
     ``ohm_per_mil_<key>`` for every other dimension (thickness, gap, spacing, below,
     above); None for a zero thickness.
     """
-    geo = nominal_geometry(section)
+    geo = section.dimension_values()
     cases: list[tuple[str, dict[str, float], float]] = []  # (name, deltas, step in mil)
     for key, v in geo.items():
         if v > 0:
@@ -302,7 +274,8 @@ def sensitivity(section: CrossSection, at: float = DEFAULT_SIZE_AT) -> dict[str,
 
 @dataclass(frozen=True)
 class SizeResult:
-    """A sized line: the solved section and what ``losslane size`` reports."""
+    """A sized line: the solved section and what ``losslane size`` reports (``values`` at
+    the sizing frequency, then the loss frequencies)."""
 
     section: CrossSection
     target: float
@@ -311,7 +284,7 @@ class SizeResult:
     vary: str
     range: SearchRange
     sensitivity: dict
-    properties: dict  # section.properties at [at] + loss frequencies
+    values: LineValues
 
     @property
     def value(self) -> float:
@@ -319,23 +292,25 @@ class SizeResult:
 
     @property
     def loss_frequencies(self) -> list[float]:
-        return self.properties["frequencies_hz"][1:]
+        return self.values.f[1:].tolist()
 
     def to_json(self) -> dict:
-        p = self.properties
-        geo = nominal_geometry(self.section)
+        geo = self.section.dimension_values()
+        main = self.values.main
+        total, conductor, dielectric = main.db_per_in()
+        pair = self.section.n_conductors == 2
         out = {
             "kind": self.section.kind,
             "target_ohm": self.target,
             "achieved_ohm": self.achieved,
             "width_m": geo["width"],
         }
-        if self.section.n_conductors == 2:
+        if pair:
             out["spacing_m"] = geo.get("spacing")
         out["sensitivity"] = self.sensitivity
         out.update(
             {
-                "impedance": "z_diff" if self.section.n_conductors == 2 else "z0",
+                "impedance": "z_diff" if pair else "z0",
                 "vary": self.vary,
                 "frequency_hz": self.at,
                 "ratio": {
@@ -346,21 +321,14 @@ class SizeResult:
                     "source": self.range.source,
                 },
                 "geometry_m": geo,
-                "eps_eff": p["eps_eff"][0]
-                if self.section.n_conductors == 1
-                else p["eps_eff_odd"][0],
-                "loss_frequencies_hz": p["frequencies_hz"][1:],
-                "loss_db_per_in": p["loss_db_per_in"][1:],
-                "conductor_db_per_in": p["conductor_db_per_in"][1:],
-                "dielectric_db_per_in": p["dielectric_db_per_in"][1:],
+                "eps_eff": float(main.eps_eff[0]),
+                "loss_frequencies_hz": self.loss_frequencies,
+                "loss_db_per_in": total[1:].tolist(),
+                "conductor_db_per_in": conductor[1:].tolist(),
+                "dielectric_db_per_in": dielectric[1:].tolist(),
             }
         )
         return out
-
-
-def impedance_of(props: dict, i: int = 0) -> float:
-    """The reported impedance in ``properties`` output: Z_diff of a pair, else Z0."""
-    return float(props["z_diff_ohm"][i] if "z_diff_ohm" in props else props["z0_ohm"][i])
 
 
 def size(
@@ -371,16 +339,17 @@ def size(
     vary: str = "width",
     loss_at: list[float] | None = None,
     with_sensitivity: bool = True,
+    where: Where | None = None,
 ) -> SizeResult:
     """Solve ``vary`` of ``section`` for ``target`` ohm at ``at`` Hz (see module docstring).
 
     ``section`` supplies every other dimension and the materials; its value of ``vary`` is
     only a placeholder. ``loss_at`` lists the frequencies of the reported loss (default:
-    the sizing frequency).
+    the sizing frequency). ``where`` names the caller's vocabulary for messages.
     """
-    x, rng = solve(section, target, at, vary)
-    solved = dataclasses.replace(section, **{vary: x})
+    x, rng = solve(section, target, at, vary, where=where)
+    solved = section.replace(**{vary: x})
     freqs = [at] + list(loss_at if loss_at else [at])
-    props = solved.properties(np.array(freqs))
+    values = solved.line_values(np.array(freqs))
     sens = sensitivity(solved, at) if with_sensitivity else {}
-    return SizeResult(solved, target, impedance_of(props), at, vary, rng, sens, props)
+    return SizeResult(solved, target, float(values.impedance[0]), at, vary, rng, sens, values)

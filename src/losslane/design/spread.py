@@ -4,9 +4,10 @@ Dk scatter within their tolerances.
 Each tolerance is a +/- value. With the normal distribution the +/- value is 3 sigma (so
 99.7 % of the samples fall inside it, common practice for fabrication tolerances); with
 the uniform distribution the samples fill the +/- interval evenly. The parameters are
-drawn independently, in a fixed order, from one seeded numpy generator, so the same seed
-gives the same numbers. The samples are evaluated in chunks, each chunk in one
-vectorized model call (closed-form kinds; others fall back to one call per sample).
+drawn independently, in a fixed order (the model's ``dimensions``, then Dk), from one
+seeded numpy generator, so the same seed gives the same numbers. The samples are
+evaluated in chunks, each chunk in one vectorized model call (closed-form kinds; others
+fall back to one call per sample).
 """
 
 from __future__ import annotations
@@ -20,21 +21,25 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from losslane.errors import LossLaneError, LossLaneWarning, warn
+from losslane.spec import Where, python_where
 from losslane.units import parse_length
 from losslane.xsection.base import CrossSection
-from losslane.xsection.batch import evaluate, is_vectorized, nominal_geometry
+from losslane.xsection.batch import evaluate
 
-#: the order in which parameters are drawn (fixed, so a seed means the same samples)
-TOLERANCE_KEYS = ("width", "spacing", "height", "below", "above", "gap", "thickness", "dk")
 DISTRIBUTIONS = ("normal", "uniform")
 MAX_SAMPLES = 2_000_000
 
 
-def parse_tolerance(value: object, key: str, nominal: float) -> float:
+def tolerance_keys(section: CrossSection) -> tuple[str, ...]:
+    """The keys ``section`` takes a tolerance on, in the order they are drawn."""
+    return tuple(section.dimensions) + ("dk",)
+
+
+def parse_tolerance(value: object, key: str, nominal: float, where: Where | None = None) -> float:
     """A +/- tolerance as an absolute value: a length with a unit ("0.5mil"), or a
     percentage of the nominal ("10%"); for ``dk`` a plain number ("0.1") or a percentage.
     """
-    name = f"--{key}-tol"
+    name = (where or python_where("spread")).tolerance(key)
     if isinstance(value, (int, float)) and not isinstance(value, bool):
         if key != "dk":
             raise LossLaneError(
@@ -78,6 +83,7 @@ class SpreadResult:
     impedance: np.ndarray = field(repr=False)  # (S, F)
     loss: np.ndarray = field(repr=False)  # (S, F) dB/in
     differential: bool = False
+    section: CrossSection | None = field(default=None, repr=False)  # the nominal line
 
     @staticmethod
     def _stats(a: np.ndarray) -> dict[str, list[float]]:
@@ -122,35 +128,42 @@ def draw(
     samples: int,
     seed: int,
     distribution: str = "normal",
+    where: Where | None = None,
 ) -> tuple[dict[str, np.ndarray], np.ndarray]:
     """The sampled geometry {key: (S,) metres} and Dk scale (S,) for ``tolerances``."""
+    where = where or python_where("spread")
     if distribution not in DISTRIBUTIONS:
         raise LossLaneError(
-            f"--distribution = {distribution!r}: valid values are {', '.join(DISTRIBUTIONS)}"
+            f"{where.key('distribution')} = {distribution!r}: valid values are "
+            f"{', '.join(DISTRIBUTIONS)}"
         )
     if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or seed < 0:
-        raise LossLaneError(f"--seed = {seed!r}: expected a whole number >= 0")
+        raise LossLaneError(f"{where.key('seed')} = {seed!r}: expected a whole number >= 0")
     if (
         isinstance(samples, bool)
         or not isinstance(samples, (int, np.integer))
         or not (2 <= samples <= MAX_SAMPLES)
     ):
         raise LossLaneError(
-            f"--samples = {samples!r}: expected a whole number from 2 to {MAX_SAMPLES}"
+            f"{where.key('samples')} = {samples!r}: expected a whole number from 2 to {MAX_SAMPLES}"
         )
-    geo = nominal_geometry(section)
-    valid = [k for k in TOLERANCE_KEYS if k in geo or k == "dk"]
+    geo = section.dimension_values()
+    valid = tolerance_keys(section)
     for key, tol in tolerances.items():
+        name = where.tolerance(key)
         if key not in valid:
             hint = ""
             if key == "height" and "below" in geo:
-                hint = " (a stripline has --below-tol and --above-tol instead)"
+                hint = (
+                    f" (a stripline has {where.tolerance('below')} and "
+                    f"{where.tolerance('above')} instead)"
+                )
             raise LossLaneError(
-                f"--{key}-tol: {section.kind} has no {key}{hint}; valid "
-                f"tolerances: {', '.join(f'--{k}-tol' for k in valid)}"
+                f"{name}: {section.kind} has no {key}{hint}; valid "
+                f"tolerances: {', '.join(where.tolerance(k) for k in valid)}"
             )
         if not math.isfinite(tol) or tol < 0:
-            raise LossLaneError(f"--{key}-tol = {tol!r}: a +/- tolerance must be >= 0")
+            raise LossLaneError(f"{name} = {tol!r}: a +/- tolerance must be >= 0")
         nominal = section.dielectric.dk - 1.0 if key == "dk" else geo[key]
         if tol > 0 and tol >= nominal:
             what = (
@@ -159,18 +172,16 @@ def draw(
                 else f"the nominal {key} ({nominal:.4g} m)"
             )
             raise LossLaneError(
-                f"--{key}-tol = {tol:.4g}{'' if key == 'dk' else ' m'} is not "
+                f"{name} = {tol:.4g}{'' if key == 'dk' else ' m'} is not "
                 f"smaller than {what}; give a smaller tolerance"
             )
     if not any(v > 0 for v in tolerances.values()):
-        raise LossLaneError(
-            "spread: give at least one non-zero tolerance (--width-tol, "
-            "--height-tol, --thickness-tol, --dk-tol, ...)"
-        )
+        examples = ", ".join(where.tolerance(k) for k in ("width", "height", "thickness", "dk"))
+        raise LossLaneError(f"spread: give at least one non-zero tolerance ({examples}, ...)")
     rng = np.random.default_rng(seed)
     out: dict[str, np.ndarray] = {}
     scale = np.ones(samples)
-    for key in TOLERANCE_KEYS:
+    for key in valid:
         tol = tolerances.get(key, 0.0)
         if tol <= 0:
             continue
@@ -188,9 +199,9 @@ def draw(
             floor = "zero"
         if np.any(bad):
             raise LossLaneError(
-                f"--{key}-tol: {int(bad.sum())} of {samples} normal samples "
+                f"{where.tolerance(key)}: {int(bad.sum())} of {samples} normal samples "
                 f"fall below {floor}; give a smaller tolerance or "
-                "--distribution uniform"
+                f"{where.setting('distribution', 'uniform')}"
             )
     return out, scale
 
@@ -208,31 +219,34 @@ def spread(
     band_ohm: float | None = None,
     chunk: int | None = None,
     progress: Callable[[int], None] | None = None,
+    where: Where | None = None,
 ) -> SpreadResult:
     """Monte Carlo of ``section`` over ``tolerances`` (+/- values: m, Dk units for 'dk').
 
     ``target`` (ohm) defaults to the nominal impedance at each frequency; the accepted
     band is +/- ``band`` (a fraction of the target) or +/- ``band_ohm``.
-    ``progress(n)`` is called with the number of samples done after each chunk.
+    ``progress(n)`` is called with the number of samples done after each chunk; ``where``
+    names the caller's vocabulary for messages.
     """
+    where = where or python_where("spread")
     freqs = np.atleast_1d(np.asarray(frequencies, float))
     if freqs.size == 0:
-        raise LossLaneError("--at: give at least one frequency")
+        raise LossLaneError(f"{where.key('at')}: give at least one frequency")
     if band_ohm is None and not (math.isfinite(band) and 0 < band < 1):
         raise LossLaneError(
-            f'--band = {band!r}: a fraction of the target between 0 and 1 (e.g. "10%")'
+            f'{where.key("band")} = {band!r}: a fraction of the target between 0 and 1 (e.g. "10%")'
         )
     if band_ohm is not None and not (math.isfinite(band_ohm) and band_ohm > 0):
-        raise LossLaneError(f"--band = {band_ohm!r} ohm: must be > 0")
+        raise LossLaneError(f"{where.key('band')} = {band_ohm!r} ohm: must be > 0")
     if target is not None and not (math.isfinite(target) and target > 0):
-        raise LossLaneError(f"--target = {target!r}: must be > 0 ohm")
-    geo, scale = draw(section, tolerances, samples, seed, distribution)
+        raise LossLaneError(f"{where.key('target')} = {target!r}: must be > 0 ohm")
+    geo, scale = draw(section, tolerances, samples, seed, distribution, where)
     with warnings.catch_warnings(record=True) as caught_nominal:
         warnings.simplefilter("always", LossLaneWarning)
         nominal = evaluate(section, freqs)
     nominal_z = nominal.impedance[0]
     nominal_loss = nominal.loss_db_per_in()[0][0]
-    vector = is_vectorized(section)
+    vector = type(section).vectorized()
     if chunk is None:
         chunk = max(1, 300_000 // freqs.size) if vector else 100
     z = np.empty((samples, freqs.size))
@@ -265,6 +279,7 @@ def spread(
         z,
         loss,
         section.n_conductors == 2,
+        section,
     )
 
 

@@ -48,15 +48,7 @@ __all__ = [
 ]
 
 
-def matmul(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Matrix product of two (N, m, m) stacks (the cascade's product, for callers that
-    hold frequency-first arrays)."""
-    at = np.ascontiguousarray(np.moveaxis(a, 0, -1))
-    bt = np.ascontiguousarray(np.moveaxis(b, 0, -1))
-    return np.moveaxis(matmul_fl(at, bt), -1, 0)
-
-
-def matmul_fl(
+def stack_matmul(
     a: np.ndarray, b: np.ndarray, out: np.ndarray | None = None, tmp: np.ndarray | None = None
 ) -> np.ndarray:
     """Product of two frequency-last (m, m, N) stacks, written out entry by entry.
@@ -92,13 +84,13 @@ def normalise(matrix: np.ndarray, log_scale: np.ndarray) -> tuple[np.ndarray, np
     return matrix * np.exp2(-e)[:, None, None], log_scale + e * np.log(2.0)
 
 
-def normalise_fl(matrix: np.ndarray, log_scale: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def normalise_stack(matrix: np.ndarray, log_scale: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """:func:`normalise` for a frequency-last (m, m, N) stack."""
     _, e = np.frexp(np.max(np.abs(matrix), axis=(0, 1)))
     return matrix * np.exp2(-e), log_scale + e * np.log(2.0)
 
 
-def _flip_fl(fl: np.ndarray) -> np.ndarray:
+def _flip_stack(stack: np.ndarray) -> np.ndarray:
     """The reverse-direction matrix of a reciprocal block: [[D^T, B^T], [C^T, A^T]]
     (frequency-last layout).
 
@@ -108,12 +100,12 @@ def _flip_fl(fl: np.ndarray) -> np.ndarray:
     matrix above. Since flip(T1 T2) = flip(T2) flip(T1), the reverse of a cascade of
     reciprocal blocks is the flip of the forward product: no second chain is needed.
     """
-    n = fl.shape[0] // 2
-    out = np.empty_like(fl)
-    out[:n, :n] = np.swapaxes(fl[n:, n:], 0, 1)
-    out[:n, n:] = np.swapaxes(fl[:n, n:], 0, 1)
-    out[n:, :n] = np.swapaxes(fl[n:, :n], 0, 1)
-    out[n:, n:] = np.swapaxes(fl[:n, :n], 0, 1)
+    n = stack.shape[0] // 2
+    out = np.empty_like(stack)
+    out[:n, :n] = np.swapaxes(stack[n:, n:], 0, 1)
+    out[:n, n:] = np.swapaxes(stack[:n, n:], 0, 1)
+    out[n:, :n] = np.swapaxes(stack[n:, :n], 0, 1)
+    out[n:, n:] = np.swapaxes(stack[:n, :n], 0, 1)
     return out
 
 
@@ -123,24 +115,24 @@ RENORMALISE_EVERY = 8
 blocks at f = 0, entries down to LIMIT_EPS) stays above ~1e-135 (no underflow)."""
 
 
-def chain_product(fls: list[np.ndarray], scales: list[np.ndarray]) -> tuple:
-    """Product fls[0] fls[1] ... of frequency-last stacks and the sum of their log scales,
+def chain_product(stacks: list[np.ndarray], scales: list[np.ndarray]) -> tuple:
+    """Product stacks[0] stacks[1] ... of frequency-last stacks and the sum of their log scales,
     renormalised by exact powers of two every RENORMALISE_EVERY products."""
-    acc = fls[0]
+    acc = stacks[0]
     s = np.array(scales[0], dtype=float)
-    if len(fls) > 1:
+    if len(stacks) > 1:
         bufs = (np.empty_like(acc), np.empty_like(acc))
         tmp = np.empty(acc.shape[2:], dtype=acc.dtype)
-        for k in range(1, len(fls)):
+        for k in range(1, len(stacks)):
             out = bufs[k % 2]
-            matmul_fl(acc, fls[k], out, tmp)
+            stack_matmul(acc, stacks[k], out, tmp)
             acc = out
             s += scales[k]
             if k % RENORMALISE_EVERY == 0:
                 _, e = np.frexp(np.max(np.abs(acc), axis=(0, 1)))
                 acc *= np.exp2(-e)
                 s += e * np.log(2.0)
-    return normalise_fl(acc, s)
+    return normalise_stack(acc, s)
 
 
 LIMIT_EPS = 2.0**-64
@@ -166,7 +158,7 @@ def _open_limit(matrix: np.ndarray, infinite: np.ndarray) -> np.ndarray:
 class ScaledABCD:
     """T = exp(log_scale) * matrix over frequency, and the network seen from its far end.
 
-    ``matrix`` (N, 2n, 2n) complex (stored frequency-last as ``fl``, (2n, 2n, N), the
+    ``matrix`` (N, 2n, 2n) complex (stored frequency-last as ``stack``, (2n, 2n, N), the
     layout the cascade multiplies), ``log_scale`` (N,) float (may be +inf). The reverse
     (turned-around) network is either given explicitly (``reverse``, for blocks that may
     not be reciprocal, such as measured files) or, for reciprocal blocks
@@ -175,7 +167,7 @@ class ScaledABCD:
     (a's far end to b's near end).
     """
 
-    __slots__ = ("fl", "log_scale", "_reverse", "is_reciprocal")
+    __slots__ = ("stack", "log_scale", "_reverse", "is_reciprocal")
 
     def __init__(
         self,
@@ -187,7 +179,7 @@ class ScaledABCD:
         frequency_last: bool = False,
     ) -> None:
         arr = np.asarray(matrix, complex)
-        self.fl = arr if frequency_last else np.ascontiguousarray(np.moveaxis(arr, 0, -1))
+        self.stack = arr if frequency_last else np.ascontiguousarray(np.moveaxis(arr, 0, -1))
         self.log_scale = np.asarray(log_scale, float)
         self._reverse = reverse
         self.is_reciprocal = bool(reciprocal) and reverse is None
@@ -195,16 +187,16 @@ class ScaledABCD:
     @property
     def matrix(self) -> np.ndarray:
         """(N, 2n, 2n) view of the scaled matrix."""
-        return np.moveaxis(self.fl, -1, 0)
+        return np.moveaxis(self.stack, -1, 0)
 
     @property
     def n(self) -> int:
         """Number of conductors (the matrix is 2n x 2n)."""
-        return self.fl.shape[0] // 2
+        return self.stack.shape[0] // 2
 
     @property
     def npoints(self) -> int:
-        return self.fl.shape[-1]
+        return self.stack.shape[-1]
 
     @property
     def reverse(self) -> ScaledABCD:
@@ -212,7 +204,7 @@ class ScaledABCD:
         if self._reverse is not None:
             return self._reverse
         if self.is_reciprocal:
-            return ScaledABCD(_flip_fl(self.fl), self.log_scale, frequency_last=True)
+            return ScaledABCD(_flip_stack(self.stack), self.log_scale, frequency_last=True)
         return ScaledABCD.from_abcd(self.abcd()).reverse
 
     @property
@@ -221,8 +213,8 @@ class ScaledABCD:
         return self._reverse is not None or self.is_reciprocal
 
     @classmethod
-    def reciprocal_fl(cls, fl: np.ndarray, log_scale: np.ndarray) -> ScaledABCD:
-        m, s = normalise_fl(np.asarray(fl, complex), np.asarray(log_scale, float))
+    def reciprocal_stack(cls, stack: np.ndarray, log_scale: np.ndarray) -> ScaledABCD:
+        m, s = normalise_stack(np.asarray(stack, complex), np.asarray(log_scale, float))
         return cls(m, s, reciprocal=True, frequency_last=True)
 
     @classmethod
@@ -285,11 +277,11 @@ def cascade_items(items: list[ScaledABCD]) -> ScaledABCD:
     reciprocal (its reverse the flip); otherwise the reverse product
     (last item's reverse first) is formed too.
     """
-    fm, s = chain_product([it.fl for it in items], [it.log_scale for it in items])
+    fm, s = chain_product([it.stack for it in items], [it.log_scale for it in items])
     if all(it.is_reciprocal for it in items):
         return ScaledABCD(fm, s, reciprocal=True, frequency_last=True)
     revs = [it.reverse for it in reversed(items)]
-    rm, rs = chain_product([r.fl for r in revs], [r.log_scale for r in revs])
+    rm, rs = chain_product([r.stack for r in revs], [r.log_scale for r in revs])
     return ScaledABCD(fm, s, ScaledABCD(rm, rs, frequency_last=True), frequency_last=True)
 
 
@@ -346,13 +338,13 @@ def _forward_waves(sc: ScaledABCD, r1: np.ndarray, r2: np.ndarray) -> tuple:
     (only the n x n matrix G is inverted). Returns (S11, S21 / exp(-log_scale)).
     """
     n = sc.n
-    m = sc.fl
+    m = sc.stack
     a, b, c, d = m[:n, :n], m[:n, n:], m[n:, :n], m[n:, n:]
     p = (a * r2[None] + b / r2[None]) / r1[:, None]
     q = (c * r2[None] + d / r2[None]) * r1[:, None]
     ginv = _inv_fl(p + q)
     x21 = 2.0 * ginv
-    x11 = 2.0 * (p * ginv if n == 1 else matmul_fl(p, ginv))
+    x11 = 2.0 * (p * ginv if n == 1 else stack_matmul(p, ginv))
     idx = np.arange(n)
     x11[idx, idx] -= 1.0
     return x11, x21
@@ -485,4 +477,4 @@ def s_to_scaled_abcd(s: np.ndarray, z_ref) -> ScaledABCD:
     fwd = _s_to_chain(s, r[:, :n], r[:, n:])
     perm = np.r_[np.arange(n, 2 * n), np.arange(n)]
     rev = _s_to_chain(s[:, perm][:, :, perm], r[:, n:], r[:, :n])
-    return ScaledABCD(fwd.fl, fwd.log_scale, rev, frequency_last=True)
+    return ScaledABCD(fwd.stack, fwd.log_scale, rev, frequency_last=True)

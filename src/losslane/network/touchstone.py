@@ -17,13 +17,13 @@ read and written through scikit-rf.
 from __future__ import annotations
 
 import os
-import secrets
 from collections.abc import Iterable
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from losslane.atomic import write_text
 from losslane.errors import LossLaneError
 from losslane.network.ports import DEFAULT_ORDER, check_order, describe_ports
 
@@ -160,15 +160,5 @@ def write_touchstone(
     directory = p.parent if str(p.parent) else Path(".")
     if not directory.is_dir():
         raise LossLaneError(f"touchstone path '{p}': directory '{directory}' does not exist")
-    # a temporary name in the same directory (same file system), then an atomic rename;
-    # open(..., "x") honours the umask, unlike mkstemp's 0600
-    tmp = directory / f".{p.name}.{os.getpid()}.{secrets.token_hex(4)}.tmp"
-    try:
-        with open(tmp, "x", encoding="ISO-8859-1", errors="replace", newline="\n") as fh:
-            fh.write(text)
-        os.replace(tmp, p)
-    except BaseException:
-        if tmp.exists():
-            tmp.unlink()
-        raise
+    write_text(p, text, encoding="ISO-8859-1")
     return p

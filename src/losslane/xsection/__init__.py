@@ -1,9 +1,26 @@
-"""Cross-section models: each gives per-unit-length R, L, G, C over frequency."""
+"""Cross-section models: each gives per-unit-length R, L, G, C over frequency.
 
-from losslane.xsection.base import CrossSection, Metal
-from losslane.xsection.coplanar import CPW, GCPW, Coplanar
+The kinds users write are listed once, in ``xsection.registry``.
+"""
+
+from losslane.xsection.base import CrossSection, LineValues, Metal
+from losslane.xsection.coplanar import Coplanar, Cpw, Gcpw
 from losslane.xsection.microstrip import Microstrip
+from losslane.xsection.microstrip_pair import MicrostripPair
 from losslane.xsection.rlgc import RLGC
 from losslane.xsection.stripline import Stripline
+from losslane.xsection.stripline_pair import StriplinePair
 
-__all__ = ["CPW", "GCPW", "Coplanar", "CrossSection", "Metal", "Microstrip", "RLGC", "Stripline"]
+__all__ = [
+    "Coplanar",
+    "Cpw",
+    "CrossSection",
+    "Gcpw",
+    "LineValues",
+    "Metal",
+    "Microstrip",
+    "MicrostripPair",
+    "RLGC",
+    "Stripline",
+    "StriplinePair",
+]

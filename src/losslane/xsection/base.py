@@ -1,10 +1,20 @@
-"""What every cross-section model shares: its metal description, the mode interface, and
-the derived line properties (impedance, delay, loss per inch) that the outputs report."""
+"""What every cross-section model shares: its metal, the model interface, and the line
+quantities derived from a model's modes (impedance, delay, loss per inch, RLGC).
+
+Like a transmission-line medium, a model supplies only its propagation modes; everything
+else follows here. A model class is also the one source of its kind's description: the
+name users write (``kind``), its length keys (``dimensions``, which are the required
+scenario keys, the command-line options and the tolerance keys), its validity table
+(``limits``, read by its warnings and by the sizing search) and its sizing intervals
+(``search``). The registry (``xsection.registry``) is a list of such classes.
+"""
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
+from typing import ClassVar
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -22,6 +32,7 @@ from losslane.xsection.rlgc import (
     attenuation_split,
     wheeler_factor,
 )
+from losslane.xsection.validity import Limit, Quantities, check_limits
 
 
 @dataclass(frozen=True)
@@ -39,7 +50,8 @@ class Metal:
             raise LossLaneError(f"plane_thickness = {self.plane_thickness!r} m must be > 0")
 
     @property
-    def planes(self) -> Roughness:
+    def plane_roughness(self) -> Roughness:
+        """The return planes' roughness: ``plane_foil``, else the signal foil."""
         return self.foil if self.plane_foil is None else self.plane_foil
 
 
@@ -110,42 +122,148 @@ def strip_and_planes(
     for name, recede in planes:
         g = wheeler_factor(z_air, p0, recede, scale)
         groups.append(
-            ConductorGroup(name, g, metal.plane_thickness, metal.conductor, metal.planes, True)
+            ConductorGroup(
+                name, g, metal.plane_thickness, metal.conductor, metal.plane_roughness, True
+            )
         )
     return groups
+
+
+#: the modal transform of a symmetric pair: columns even (1, 1) and odd (1, -1), normalised
+PAIR_MODES = ("even", "odd")
+PAIR_TRANSFORM = np.array([[1.0, 1.0], [1.0, -1.0]]) / np.sqrt(2.0)
+
+
+@dataclass(frozen=True)
+class ModeValues:
+    """The reported quantities of one propagation mode over frequency, (N,) each, SI:
+    ``z0`` the lossless sqrt(L/C) (dispersion and internal inductance included), ``zc``
+    the complex sqrt(Z/Y) (inf at DC), ``delay`` s/m, and the total, conductor and
+    dielectric attenuation in Np/m (conductor + dielectric = total)."""
+
+    z0: np.ndarray
+    zc: np.ndarray
+    eps_eff: np.ndarray
+    delay: np.ndarray
+    attenuation: np.ndarray
+    conductor: np.ndarray
+    dielectric: np.ndarray
+
+    def db_per_in(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Total, conductor and dielectric loss in dB per inch."""
+        per_in = NP_TO_DB * INCH
+        return self.attenuation * per_in, self.conductor * per_in, self.dielectric * per_in
+
+
+def mode_values(m: Mode, f: np.ndarray) -> ModeValues:
+    """The reported quantities of mode ``m`` at ``f``."""
+    omega = 2 * np.pi * f
+    z = m.r + 1j * omega * m.l
+    y = m.g + 1j * omega * m.c
+    with np.errstate(divide="ignore", invalid="ignore"):
+        zc = np.sqrt(z / y)
+    total, cond, diel = attenuation_split(m.r, m.l, m.g, m.c, f)
+    gamma = np.sqrt(z * y)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        delay = np.where(omega > 0, gamma.imag / np.where(omega > 0, omega, 1), np.sqrt(m.l * m.c))
+    return ModeValues(np.sqrt(m.l / m.c), zc, m.eps_eff, delay, total, cond, diel)
+
+
+@dataclass(frozen=True)
+class LineValues:
+    """What a line reports at the frequencies ``f``: its main mode (the single mode, or a
+    pair's odd mode, whose loss is the differential mode's), a pair's even mode, and the
+    per-unit-length matrices. Sections of more than two conductors report the matrices
+    and the modal effective permittivities (``eps_eff_modes``, (N, n)) only."""
+
+    kind: str
+    f: np.ndarray
+    rlgc: RLGC
+    main: ModeValues | None
+    even: ModeValues | None = None
+    eps_eff_modes: np.ndarray | None = None
+
+    @property
+    def n_conductors(self) -> int:
+        return self.rlgc.n
+
+    @property
+    def impedance(self) -> np.ndarray:
+        """The line's impedance as sizing and spread use it: Z0, or Z_diff = 2 Z_odd."""
+        assert self.main is not None
+        return self.main.z0 * (2.0 if self.n_conductors == 2 else 1.0)
 
 
 class CrossSection:
     """A transmission-line cross-section.
 
-    Subclasses set ``kind`` and ``n_conductors`` and implement ``modes(f)``, which returns
-    the propagation modes ('single' for one signal conductor; 'even' and 'odd' for a
-    symmetric pair) with their per-line R, L, G, C over the frequency array ``f`` (Hz,
-    f = 0 allowed).
-
-    The closed-form models instead implement ``mode_arrays`` and name their length fields
-    in ``dimensions``; their ``modes(f)`` is then ``mode_arrays`` at the section's own
-    dimensions, so one code path serves a single line and a batch of geometry samples
-    (``xsection.batch``), and each dimension is checked on construction
-    (``check_dimensions``).
+    A model class sets ``kind``, ``n_conductors``, ``dimensions`` (its length fields, in
+    metres), ``limits`` and ``search``, and implements either ``mode_arrays`` -- the
+    array-native form: its dimensions as arrays of geometry samples broadcasting against
+    the frequency axis, so one implementation serves a line and a batch of samples
+    (``xsection.batch``) -- or ``modes(f)`` directly. ``modes`` returns the propagation
+    modes ('single' for one signal conductor; 'even' and 'odd' for a symmetric pair) with
+    their per-line R, L, G, C over ``f`` (Hz, f = 0 allowed). Everything else is derived:
+    ``rlgc``, ``line_values``, ``replace``.
     """
 
-    kind: str = ""
-    n_conductors: int = 1
+    kind: ClassVar[str] = ""
+    n_conductors: ClassVar[int] = 1
     dielectric: Dielectric
-    #: the length fields that ``mode_arrays`` takes as keyword arguments
-    dimensions: tuple[str, ...] = ()
+    metal: Metal
+    #: the length fields, in the order users think of them (the spread draws in this order)
+    dimensions: ClassVar[tuple[str, ...]] = ()
+    #: the validity table (see ``xsection.validity``)
+    limits: ClassVar[tuple[Limit, ...]] = ()
+    #: sizing: dimension -> (reference dimensions summed, lowest, highest ratio searched);
+    #: the interval is then narrowed to ``limits``
+    search: ClassVar[Mapping[str, tuple[tuple[str, ...], float, float]]] = {}
 
     def __post_init__(self) -> None:
         # run by the dataclass __init__ of the closed-form models
-        check_dimensions(self.kind, self._dimension_values())
+        check_dimensions(self.kind, self.dimension_values())
 
-    def _dimension_values(self) -> dict[str, float]:
-        return {k: getattr(self, k) for k in self.dimensions}
+    # -- what the registry and the design helpers read ---------------------------------
+    @classmethod
+    def vectorized(cls) -> bool:
+        """True when the class evaluates a batch of geometry samples in one array call
+        (it implements ``mode_arrays`` and keeps the derived ``modes``)."""
+        return cls.mode_arrays is not CrossSection.mode_arrays and cls.modes is CrossSection.modes
 
+    def dimension_values(self) -> dict[str, float]:
+        """The dimensions as {key: metres}."""
+        return {k: float(getattr(self, k)) for k in self.dimensions}
+
+    def replace(self, **changes) -> CrossSection:
+        """A copy with some dimensions (keys of ``dimensions``, metres) or materials
+        (``dielectric``, ``metal``) changed."""
+        return dataclasses.replace(self, **changes)
+
+    def check_validity(self, q: Quantities) -> None:
+        """Warn for every validity range of ``limits`` that the quantities leave."""
+        check_limits(self.limits, q)
+
+    @classmethod
+    def size_bounds(cls, vary: str, dims: Mapping[str, float]) -> tuple[float, str] | None:
+        """An upper bound on dimension ``vary`` (m) beyond which the model refuses the
+        input (not a validity range: those are in ``limits``), with its reason; None."""
+        return None
+
+    @classmethod
+    def field_geometry(cls, dims: Mapping[str, float], options):
+        """The cross-section as a field-solver ``Geometry`` at ``dims`` (metres) with the
+        solver's ``FieldOptions``; kinds without a layout do not override this."""
+        raise NotImplementedError
+
+    @classmethod
+    def solvable(cls) -> bool:
+        """True when the kind also runs in the 2-D field solver (it has a layout)."""
+        return cls.field_geometry.__func__ is not CrossSection.field_geometry.__func__
+
+    # -- the model interface ------------------------------------------------------------
     def modes(self, f: np.ndarray) -> dict[str, Mode]:
         f = np.atleast_1d(np.asarray(f, dtype=float))
-        return self.mode_arrays(f, self.dielectric.eps(f), **self._dimension_values())
+        return self.mode_arrays(f, self.dielectric.eps(f), **self.dimension_values())
 
     def mode_arrays(
         self, f: np.ndarray, eps_r: np.ndarray, **dimensions: ArrayLike
@@ -157,6 +275,7 @@ class CrossSection:
         warnings and input errors fire when any sample triggers them."""
         raise NotImplementedError
 
+    # -- derived ------------------------------------------------------------------------
     def rlgc(self, f: np.ndarray) -> RLGC:
         f = np.atleast_1d(np.asarray(f, dtype=float))
         return self._rlgc(f, self.modes(f))
@@ -168,64 +287,22 @@ class CrossSection:
             return RLGC.single(f, m.r, m.l, m.g, m.c)
         return pair_rlgc(f, modes["even"], modes["odd"])
 
-    def properties(self, f: np.ndarray) -> dict:
-        """The line's reported quantities at ``f`` (the keys of ``losslane line --json``)."""
+    def line_values(self, f: np.ndarray) -> LineValues:
+        """The line's reported quantities at ``f`` (what ``losslane line`` prints)."""
         f = np.atleast_1d(np.asarray(f, dtype=float))
         modes = self.modes(f)
-        main = modes["single"] if self.n_conductors == 1 else modes["odd"]
-        out: dict = {"kind": self.kind, "frequencies_hz": f.tolist()}
-        out.update(_mode_numbers(main, f))
         rl = self._rlgc(f, modes)
-        out["rlgc"] = {
-            "r_ohm_per_m": _matrix_list(rl.r),
-            "l_h_per_m": _matrix_list(rl.l),
-            "g_s_per_m": _matrix_list(rl.g),
-            "c_f_per_m": _matrix_list(rl.c),
-        }
-        if self.n_conductors == 2:
-            even = _mode_numbers(modes["even"], f)
-            odd = out
-            out["z_odd_ohm"] = odd["z0_ohm"]
-            out["z_even_ohm"] = even["z0_ohm"]
-            out["z_diff_ohm"] = [2 * z for z in odd["z0_ohm"]]
-            out["z_common_ohm"] = [z / 2 for z in even["z0_ohm"]]
-            out["eps_eff_odd"] = odd["eps_eff"]
-            out["eps_eff_even"] = even["eps_eff"]
-            # differential-mode loss equals the odd-mode loss of one line (same dB)
-        return out
+        if self.n_conductors == 1:
+            return LineValues(self.kind, f, rl, mode_values(modes["single"], f))
+        return LineValues(
+            self.kind, f, rl, mode_values(modes["odd"], f), mode_values(modes["even"], f)
+        )
 
-
-def _matrix_list(a: np.ndarray) -> list:
-    if a.shape[-1] == 1:
-        return a[:, 0, 0].tolist()
-    return a.tolist()
-
-
-def _mode_numbers(m: Mode, f: np.ndarray) -> dict:
-    omega = 2 * np.pi * f
-    z = m.r + 1j * omega * m.l
-    y = m.g + 1j * omega * m.c
-    with np.errstate(divide="ignore", invalid="ignore"):
-        zc = np.sqrt(z / y)
-    total, cond, diel = attenuation_split(m.r, m.l, m.g, m.c, f)
-    gamma = np.sqrt(z * y)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        delay = np.where(omega > 0, gamma.imag / np.where(omega > 0, omega, 1), np.sqrt(m.l * m.c))
-
-    def finite(a: np.ndarray) -> list:
-        return [float(v) if np.isfinite(v) else None for v in a]
-
-    per_in = NP_TO_DB * INCH
-    return {
-        "z0_ohm": np.sqrt(m.l / m.c).tolist(),
-        "zc_real_ohm": finite(zc.real),
-        "zc_imag_ohm": finite(zc.imag),
-        "eps_eff": m.eps_eff.tolist(),
-        "delay_ps_per_in": (delay * INCH * 1e12).tolist(),
-        "loss_db_per_in": (total * per_in).tolist(),
-        "conductor_db_per_in": (cond * per_in).tolist(),
-        "dielectric_db_per_in": (diel * per_in).tolist(),
-    }
+    def attenuation_db_per_in(self, f: np.ndarray) -> np.ndarray:
+        """The main mode's attenuation (the differential mode of a pair), dB per inch."""
+        values = self.line_values(f)
+        assert values.main is not None, f"{self.kind}: no main mode"
+        return values.main.db_per_in()[0]
 
 
 def pair_rlgc(f: np.ndarray, even: Mode, odd: Mode) -> RLGC:
@@ -233,7 +310,8 @@ def pair_rlgc(f: np.ndarray, even: Mode, odd: Mode) -> RLGC:
 
     For a symmetric pair the modal transform is fixed ([1, 1], [1, -1]); self terms are
     the mean of the modes and mutual terms half their difference (per-line quantities),
-    e.g. L11 = (Le + Lo)/2, L12 = (Le - Lo)/2, C12 = (Ce - Co)/2 < 0 (Maxwell form).
+    e.g. L11 = (Le + Lo)/2, L12 = (Le - Lo)/2, C12 = (Ce - Co)/2 < 0 (Maxwell form). The
+    transform travels with the matrices, so a line block uses the modes directly.
     """
 
     def mat(e: np.ndarray, o: np.ndarray) -> np.ndarray:
@@ -242,4 +320,11 @@ def pair_rlgc(f: np.ndarray, even: Mode, odd: Mode) -> RLGC:
         out[:, 0, 1] = out[:, 1, 0] = (e - o) / 2
         return out
 
-    return RLGC(f, mat(even.r, odd.r), mat(even.l, odd.l), mat(even.g, odd.g), mat(even.c, odd.c))
+    return RLGC(
+        f,
+        mat(even.r, odd.r),
+        mat(even.l, odd.l),
+        mat(even.g, odd.g),
+        mat(even.c, odd.c),
+        PAIR_TRANSFORM,
+    )

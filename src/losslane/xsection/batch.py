@@ -5,15 +5,14 @@ Sizing and tolerance Monte Carlo need the same model at thousands of geometries.
 scale of shape (S,)) and a frequency array (F,), and returns the main mode's R, L, G, C,
 impedance and loss as (S, F) arrays in one numpy call -- no Python loop over samples.
 
-The closed-form models (``Microstrip``, ``Stripline``, ``Coplanar``, ``MicrostripPair``,
-``StriplinePair``) are array-native: their ``mode_arrays`` takes the dimensions as (S, 1)
-arrays against the frequency axis, and their own ``modes(f)`` is that same function at
-scalar dimensions, so there is one implementation of every formula. Their validity
-warnings and input errors fire when any sample triggers them.
+The closed-form models are array-native: their ``mode_arrays`` takes the dimensions as
+(S, 1) arrays against the frequency axis, and their own ``modes(f)`` is that same
+function at scalar dimensions, so there is one implementation of every formula. Their
+validity warnings and input errors fire when any sample triggers them.
 
-Kinds without an array path (the field solver, and subclasses of the closed-form models,
-which may override ``modes``) fall back to one model call per sample, with the same
-result shape; :func:`is_vectorized` tells which path a section takes.
+Sections without an array path (the field solver, or a model that implements ``modes``
+itself) fall back to one model call per sample (``section.replace``), with the same result
+shape; ``type(section).vectorized()`` tells which path a section takes.
 
 A Dk variation scales the laminate's complex permittivity: eps(f) -> s * eps(f). For
 both dielectric models this is exactly a refit at Dk' = s Dk with the same Df and the
@@ -34,14 +33,7 @@ from losslane.errors import LossLaneError, LossLaneWarning, warn
 from losslane.materials.dielectric import Dielectric
 from losslane.units import INCH
 from losslane.xsection.base import CrossSection, check_dimensions
-from losslane.xsection.coplanar import Coplanar
-from losslane.xsection.coupled import MicrostripPair, StriplinePair
-from losslane.xsection.microstrip import Microstrip
 from losslane.xsection.rlgc import NP_TO_DB, Mode, attenuation_split
-from losslane.xsection.stripline import Stripline
-
-#: geometry keys a section may carry (the scenario keys; dataclass fields of the models)
-GEOMETRY_KEYS = ("width", "spacing", "height", "below", "above", "gap", "thickness")
 
 
 @dataclass(frozen=True)
@@ -87,32 +79,6 @@ def scaled_dielectric(d: Dielectric, scale: float) -> Dielectric:
     return dataclasses.replace(d, dk=d.dk * scale)
 
 
-def nominal_geometry(section: CrossSection) -> dict[str, float]:
-    """The section's geometry as {scenario key: metres} (its dataclass fields only, so a
-    derived property such as a stripline's plane spacing is not taken for a dimension)."""
-    fields = (
-        {f.name for f in dataclasses.fields(section)}
-        if dataclasses.is_dataclass(section)
-        else set()
-    )
-    out = {}
-    for key in GEOMETRY_KEYS:
-        v = getattr(section, key, None) if key in fields else None
-        if isinstance(v, (int, float)) and not isinstance(v, bool):
-            out[key] = float(v)
-    return out
-
-
-#: the array-native model classes; exact types only: a subclass (e.g. a field-solved
-#: variant) may override ``modes`` and takes the per-sample path
-_VECTORIZED: tuple[type, ...] = (Microstrip, Stripline, Coplanar, MicrostripPair, StriplinePair)
-
-
-def is_vectorized(section: CrossSection) -> bool:
-    """True when ``evaluate`` handles ``section`` in one array call (no per-sample loop)."""
-    return type(section) in _VECTORIZED
-
-
 def evaluate(
     section: CrossSection,
     f: np.ndarray | float,
@@ -130,7 +96,7 @@ def evaluate(
     samples done, on the per-sample fallback path only.
     """
     f = np.atleast_1d(np.asarray(f, float))
-    nominal = nominal_geometry(section)
+    nominal = section.dimension_values()
     for key in geometry:
         if key not in nominal:
             raise LossLaneError(
@@ -155,7 +121,7 @@ def evaluate(
         raise LossLaneError(
             f"{section.kind}: a Dk sample falls below 1 (air); use a smaller Dk tolerance"
         )
-    if is_vectorized(section):
+    if type(section).vectorized():
         eps_r = section.dielectric.eps(f)[None, :] * scale[:, None]
         modes = section.mode_arrays(f, eps_r, **{k: v[:, None] for k, v in geo.items()})
         return _line_arrays(section, f, modes)
@@ -184,17 +150,15 @@ def _per_sample(
     pair = section.n_conductors == 2
     names = ("eps_eff", "z0", "r", "l", "g", "c")
     out = {k: np.empty((s, f.size)) for k in names}
-    nominal = nominal_geometry(section)
+    nominal = section.dimension_values()
     caught_all: list[warnings.WarningMessage] = []
     step = max(1, s // 100)
     for i in range(s):
         changes = {k: float(v[i]) for k, v in geo.items() if float(v[i]) != nominal[k]}
         d = scaled_dielectric(section.dielectric, float(scale[i]))
-        sec = (
-            dataclasses.replace(section, dielectric=d, **changes)
-            if (changes or d is not section.dielectric)
-            else section
-        )
+        if d is not section.dielectric:
+            changes["dielectric"] = d
+        sec = section.replace(**changes) if changes else section
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always", LossLaneWarning)
             mode = sec.modes(f)["odd" if pair else "single"]

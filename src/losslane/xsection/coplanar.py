@@ -26,29 +26,22 @@ Methods and validity (ranges from memory):
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, ClassVar
 
 import numpy as np
 from numpy.typing import ArrayLike
 
-from losslane.errors import LossLaneError, check_range
+from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.xsection.base import CrossSection, Metal, strip_loss_modelled
+from losslane.xsection.elliptic import k_ratio, k_ratio_of_modulus
 from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode, wheeler_factor
+from losslane.xsection.validity import Limit, Quantities, dk
 
-
-def k_over_kp(k: np.ndarray) -> np.ndarray:
-    """K(k)/K(k') with k' = sqrt(1 - k^2), for 0 < k < 1 (modulus k, not parameter)."""
-    k = np.asarray(k, float)
-    return ratio_from_m(k * k, (1.0 - k) * (1.0 + k))
-
-
-def ratio_from_m(m: np.ndarray, m1: np.ndarray) -> np.ndarray:
-    """K(k)/K(k') from m = k^2 and m1 = 1 - k^2, each given accurately: ellipkm1 keeps the
-    precision of whichever of k, k' is near 1 (a very wide or very narrow line)."""
-    from scipy.special import ellipkm1  # here, not at import: scipy.special costs start-up
-
-    return ellipkm1(np.asarray(m1, float)) / ellipkm1(np.asarray(m, float))
+if TYPE_CHECKING:
+    from losslane.xsection.fieldsolve.geometry import Geometry
 
 
 def _log_sinh(y: np.ndarray) -> np.ndarray:
@@ -68,7 +61,7 @@ def ratio_tanh(a: ArrayLike, b: ArrayLike, h: ArrayLike) -> np.ndarray:
     log_m = 2.0 * (_log_sinh(x1) - _log_cosh(x1) - _log_sinh(x2) + _log_cosh(x2))
     # 1 - k^2 = sinh(x2 - x1) sinh(x2 + x1) / (cosh^2 x1 sinh^2 x2)
     log_m1 = _log_sinh(x2 - x1) + _log_sinh(x2 + x1) - 2.0 * _log_cosh(x1) - 2.0 * _log_sinh(x2)
-    return ratio_from_m(np.exp(log_m), np.exp(log_m1))
+    return k_ratio(np.exp(log_m), np.exp(log_m1))
 
 
 def ratio_sinh(a: ArrayLike, b: ArrayLike, h: ArrayLike) -> np.ndarray:
@@ -77,7 +70,7 @@ def ratio_sinh(a: ArrayLike, b: ArrayLike, h: ArrayLike) -> np.ndarray:
     log_m = 2.0 * (_log_sinh(x1) - _log_sinh(x2))
     # 1 - k^2 = sinh(x2 - x1) sinh(x2 + x1) / sinh^2 x2
     log_m1 = _log_sinh(x2 - x1) + _log_sinh(x2 + x1) - 2.0 * _log_sinh(x2)
-    return ratio_from_m(np.exp(log_m), np.exp(log_m1))
+    return k_ratio(np.exp(log_m), np.exp(log_m1))
 
 
 def thickness_delta(w: ArrayLike, t: ArrayLike) -> np.ndarray:
@@ -108,7 +101,7 @@ def cpw_z_air(
     """Air-filled impedance (thickness-corrected) of CPW or GCPW."""
     w = np.asarray(w, float)
     d = thickness_delta(w, t)
-    r0 = k_over_kp((w + d) / (w + 2 * gap - d))
+    r0 = k_ratio_of_modulus((w + d) / (w + 2 * gap - d))
     if not grounded:
         return ETA0 / (4.0 * r0)
     a, b = w / 2.0, w / 2.0 + gap
@@ -122,7 +115,7 @@ def cpw_eps_quasi_static(
     """Quasi-static eps_eff with the thickness correction."""
     w, gap, er = (np.asarray(v, float) for v in (w, gap, er))
     a, b = w / 2.0, w / 2.0 + gap
-    r0z = k_over_kp(a / b)  # zero-thickness modulus in the filling factor
+    r0z = k_ratio_of_modulus(a / b)  # zero-thickness modulus in the filling factor
     if grounded:
         r3 = ratio_tanh(a, b, h)
         eps = 1.0 + r3 / (r0z + r3) * (er - 1.0)
@@ -150,23 +143,41 @@ def frankel_eps(
     return root * root
 
 
+def _f_te(q: Quantities) -> np.ndarray:
+    """Cut-off of the first surface-wave mode, c / (4 h sqrt(eps_r - 1)) (Frankel et al.)."""
+    return C0 / (4.0 * q.height * np.sqrt(np.maximum(q.dk - 1.0, 1e-12)))
+
+
+def coplanar_limits(kind: str) -> tuple[Limit, ...]:
+    """The validity table of CPW or GCPW (ranges from memory; see DEVELOPERS.md)."""
+    name = f"{kind} (conformal mapping)"
+    disp = f"{kind} dispersion (Frankel)"
+    return (
+        Limit(name, "thickness/gap", 0, 0.5, ("thickness", ("gap",))),
+        Limit(disp, "width/height", 0.1, 5, ("width", ("height",)), above_dc=True),
+        Limit(disp, "width/gap", 0.1, 5, ("width", ("gap",)), above_dc=True),
+        Limit(disp, "dk", 1.5, 50, value=dk, above_dc=True),
+        Limit(disp, "f/f_TE", 0, 10, value=lambda q: q.f / _f_te(q), above_dc=True),
+    )
+
+
 @dataclass(frozen=True)
 class Coplanar(CrossSection):
     """Centre strip of ``width``, ``gap`` to the coplanar grounds on each side, on a
-    substrate of ``height``; ``grounded`` adds the lower return plane (GCPW)."""
+    substrate of ``height``; :class:`Gcpw` adds the lower return plane. Lengths in m."""
 
     width: float
     gap: float
     height: float
     thickness: float
     dielectric: Dielectric
-    grounded: bool = False
     metal: Metal = field(default_factory=Metal)
-    dimensions = ("width", "gap", "height", "thickness")
-
-    @property
-    def kind(self) -> str:  # type: ignore[override]
-        return "gcpw" if self.grounded else "cpw"
+    #: a return plane under the substrate (GCPW)
+    grounded: ClassVar[bool] = False
+    # the order in which the spread draws tolerances (height before gap)
+    dimensions: ClassVar[tuple[str, ...]] = ("width", "height", "gap", "thickness")
+    search: ClassVar[dict] = {"width": (("gap",), 0.01, 100.0)}
+    outer_layer: ClassVar[bool] = True
 
     def __post_init__(self) -> None:
         super().__post_init__()
@@ -185,30 +196,12 @@ class Coplanar(CrossSection):
         w, s, t, h = (np.asarray(x, float) for x in (width, gap, thickness, height))
         check_gap(self.kind, w, s, t)
         er = eps_r.real
-        self._check_validity(w, s, t, h, er, f)
+        dims = {"width": w, "gap": s, "height": h, "thickness": t}
+        self.check_validity(Quantities(dims, er, f))
         eps_q = cpw_eps_quasi_static(w, s, t, h, er, self.grounded)
         eps_f = frankel_eps(w, s, h, er, eps_q, f)
         z0 = cpw_z_air(w, s, t, h, self.grounded) / np.sqrt(eps_f)
         return {"single": assemble_mode("single", f, eps_r, eps_f, z0, self._groups(w, s, t, h))}
-
-    def _check_validity(
-        self,
-        w: np.ndarray,
-        s: np.ndarray,
-        t: np.ndarray,
-        h: np.ndarray,
-        er: np.ndarray,
-        f: np.ndarray,
-    ) -> None:
-        name = f"{self.kind} (conformal mapping)"
-        check_range(name, "thickness/gap", t / s, 0, 0.5)
-        if np.any(f > 0):
-            disp = f"{self.kind} dispersion (Frankel)"
-            check_range(disp, "width/height", w / h, 0.1, 5)
-            check_range(disp, "width/gap", w / s, 0.1, 5)
-            check_range(disp, "dk", er, 1.5, 50)
-            f_te = C0 / (4.0 * h * np.sqrt(np.maximum(er - 1.0, 1e-12)))
-            check_range(disp, "f/f_TE", f / f_te, 0, 10)
 
     def _groups(
         self, w: np.ndarray, s: np.ndarray, t: np.ndarray, h: np.ndarray
@@ -231,28 +224,46 @@ class Coplanar(CrossSection):
                 za, p0, lambda p, d: (p[0], p[1], p[2], p[3] + d), np.minimum(scale, h)
             )
             groups.append(
-                ConductorGroup("plane", g_pl, m.plane_thickness, m.conductor, m.planes, wide=True)
+                ConductorGroup(
+                    "plane", g_pl, m.plane_thickness, m.conductor, m.plane_roughness, wide=True
+                )
             )
         return groups
 
+    @classmethod
+    def size_bounds(cls, vary: str, dims: Mapping[str, float]) -> tuple[float, str] | None:
+        """The widest strip before Gupta's thickness widening closes the gap (an input
+        error, not a validity range): D = (1.25 t/pi)(1 + ln(4 pi w/t)) < gap, i.e.
+        w < t/(4 pi) exp(pi gap/(1.25 t) - 1). None without thickness."""
+        t, gap = dims["thickness"], dims["gap"]
+        if vary != "width" or t <= 0:
+            return None
+        w_max = t / (4 * np.pi) * np.exp(min(np.pi * gap / (1.25 * t) - 1.0, 700.0))
+        return 0.999 * w_max, "Gupta thickness correction (widening below the gap)"
 
-def CPW(
-    width: float,
-    gap: float,
-    height: float,
-    thickness: float,
-    dielectric: Dielectric,
-    metal: Metal | None = None,
-) -> Coplanar:
-    return Coplanar(width, gap, height, thickness, dielectric, False, metal or Metal())
+    @classmethod
+    def field_geometry(cls, dims: Mapping[str, float], options) -> Geometry:
+        """The cross-section for the field solver: the strip between semi-infinite
+        coplanar grounds on the substrate, over the lower plane for GCPW (air below
+        the substrate for CPW)."""
+        from losslane.xsection.fieldsolve.layouts import coplanar
+
+        return coplanar(dims, options, grounded=cls.grounded)
 
 
-def GCPW(
-    width: float,
-    gap: float,
-    height: float,
-    thickness: float,
-    dielectric: Dielectric,
-    metal: Metal | None = None,
-) -> Coplanar:
-    return Coplanar(width, gap, height, thickness, dielectric, True, metal or Metal())
+@dataclass(frozen=True)
+class Cpw(Coplanar):
+    """Coplanar waveguide on a finite substrate with air below (see :class:`Coplanar`)."""
+
+    kind: ClassVar[str] = "cpw"
+    limits: ClassVar[tuple[Limit, ...]] = coplanar_limits("cpw")
+
+
+@dataclass(frozen=True)
+class Gcpw(Coplanar):
+    """Grounded coplanar waveguide: a return plane under the substrate (see
+    :class:`Coplanar`)."""
+
+    kind: ClassVar[str] = "gcpw"
+    grounded: ClassVar[bool] = True
+    limits: ClassVar[tuple[Limit, ...]] = coplanar_limits("gcpw")

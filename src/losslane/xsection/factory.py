@@ -1,93 +1,39 @@
-"""Cross-sections from user-written specs (scenario [lines.*] sections or `losslane line`
-options): key checking, units, material lookup, then the model constructor.
-
-New models register here: a kind, its geometry keys, and a constructor taking the parsed
-lengths (metres), the dielectric and the metal.
+"""Cross-sections from user-written specs (scenario [lines.*] sections, `losslane line`
+options, api keywords): key checking, units, material lookup, then the model class the
+registry names. Nothing here is specific to a kind: the class says which keys it takes.
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable, Mapping
-from dataclasses import dataclass
 
 from losslane.errors import LossLaneError
 from losslane.materials.conductor import Conductor
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness
-from losslane.spec import check_keys, key_name, quantity, suggest, text
+from losslane.spec import Where, check_keys, key_name, quantity, text
 from losslane.units import OZ_COPPER, parse_conductivity
+from losslane.xsection import registry
 from losslane.xsection.base import CrossSection, Metal
-from losslane.xsection.coplanar import Coplanar
-from losslane.xsection.coupled import MicrostripPair, StriplinePair
-from losslane.xsection.microstrip import Microstrip
-from losslane.xsection.stripline import Stripline
+from losslane.xsection.fieldsolve.keys import DIELECTRIC_KEYS, EXTRA_KEYS
 
-#: keys every line spec may carry besides its geometry
-COMMON_KEYS = (
-    "kind",
-    "thickness",
+#: keys every line spec may carry besides its kind and dimensions
+MATERIAL_KEYS = (
     "dielectric",
     "foil",
     "plane_foil",
     "plane_thickness",
     "conductivity",
     "solver",
-    "note",
 )
+#: a free-text remark, accepted in files (not a command-line option)
+NOTE_KEY = "note"
 SOLVERS = ("closed-form", "field")
 
 
-@dataclass(frozen=True)
-class KindSpec:
-    """A cross-section kind: required and optional geometry keys and its constructor."""
-
-    required: tuple[str, ...]
-    optional: tuple[str, ...]
-    build: Callable[[dict[str, float], Dielectric, Metal], CrossSection]
-    conductors: int = 1
-
-
-KINDS: dict[str, KindSpec] = {
-    "microstrip": KindSpec(
-        ("width", "height"),
-        (),
-        lambda g, d, m: Microstrip(g["width"], g["height"], g["thickness"], d, m),
-    ),
-    "stripline": KindSpec(
-        ("width", "below", "above"),
-        (),
-        lambda g, d, m: Stripline(g["width"], g["below"], g["above"], g["thickness"], d, m),
-    ),
-    "cpw": KindSpec(
-        ("width", "gap", "height"),
-        (),
-        lambda g, d, m: Coplanar(g["width"], g["gap"], g["height"], g["thickness"], d, False, m),
-    ),
-    "gcpw": KindSpec(
-        ("width", "gap", "height"),
-        (),
-        lambda g, d, m: Coplanar(g["width"], g["gap"], g["height"], g["thickness"], d, True, m),
-    ),
-    "microstrip-pair": KindSpec(
-        ("width", "spacing", "height"),
-        (),
-        lambda g, d, m: MicrostripPair(g["width"], g["spacing"], g["height"], g["thickness"], d, m),
-        conductors=2,
-    ),
-    "stripline-pair": KindSpec(
-        ("width", "spacing", "below", "above"),
-        (),
-        lambda g, d, m: StriplinePair(
-            g["width"], g["spacing"], g["below"], g["above"], g["thickness"], d, m
-        ),
-        conductors=2,
-    ),
-}
-
-#: builders for ``solver = "field"``: kind -> same signature as KindSpec.build
-FIELD_BUILDERS: dict[str, Callable[..., CrossSection]] = {}
-#: extra keys the field solver accepts (registered by the field-solver package)
-FIELD_KEYS: tuple[str, ...] = ()
+def spec_keys(cls: type[CrossSection], solver: str = "closed-form") -> tuple[str, ...]:
+    """The keys a spec of kind ``cls`` accepts (without the note)."""
+    return ("kind",) + cls.dimensions + MATERIAL_KEYS + (EXTRA_KEYS if solver == "field" else ())
 
 
 def section_from_spec(
@@ -103,29 +49,20 @@ def section_from_spec(
     directly in ``spec`` (the command line builds one from --dk/--df).
     """
     kind = text(where, spec, "kind", required=True)
-    if kind not in KINDS:
-        raise LossLaneError(
-            f"{key_name(where, 'kind')} = {kind!r}: unknown line kind; {suggest(kind, KINDS)}"
-        )
-    ks = KINDS[kind]
+    cls = registry.model(kind, key_name(where, "kind"))
     solver = text(where, spec, "solver", SOLVERS, "closed-form")
-    extra = FIELD_KEYS if solver == "field" else ()
-    check_keys(
-        where,
-        spec,
-        COMMON_KEYS + ks.required + ks.optional + extra,
-        required=ks.required + ("thickness", "dielectric"),
-    )
+    cli = isinstance(where, Where) and where.cli
+    allowed = spec_keys(cls, solver) + (() if cli else (NOTE_KEY,))
+    check_keys(where, spec, allowed, required=cls.dimensions + ("dielectric",))
     geometry: dict[str, float] = {}
-    for key in ks.required + ks.optional + ("thickness",):
-        if key in spec:
-            geometry[key] = quantity(where, spec, key, "length")
-            bad = geometry[key] < 0 if key == "thickness" else geometry[key] <= 0
-            if bad:
-                bound = ">= 0" if key == "thickness" else "> 0"
-                raise LossLaneError(
-                    f"{key_name(where, key)} = {spec[key]!r}: a {kind} needs {key} {bound}"
-                )
+    for key in cls.dimensions:
+        geometry[key] = quantity(where, spec, key, "length")
+        bad = geometry[key] < 0 if key == "thickness" else geometry[key] <= 0
+        if bad:
+            bound = ">= 0" if key == "thickness" else "> 0"
+            raise LossLaneError(
+                f"{key_name(where, key)} = {spec[key]!r}: a {kind} needs {key} {bound}"
+            )
     diel = spec["dielectric"]
     d = (
         diel
@@ -134,15 +71,17 @@ def section_from_spec(
     )
     metal = metal_from_spec(spec, where, foil)
     if solver == "field":
-        if kind not in FIELD_BUILDERS:
+        if not cls.solvable():
             raise LossLaneError(
                 f"{key_name(where, 'solver')} = 'field': the field solver is "
                 f"not available for kind {kind!r}"
             )
-        return FIELD_BUILDERS[kind](
-            geometry, d, metal, _field_dielectrics(spec, where, dielectric), where
+        from losslane.xsection.fieldsolve.options import field_section
+
+        return field_section(
+            cls, geometry, d, metal, _field_dielectrics(spec, where, dielectric), where
         )
-    return ks.build(geometry, d, metal)
+    return cls(**geometry, dielectric=d, metal=metal)
 
 
 def metal_from_spec(spec: Mapping, where: str, foil: Callable[[str, str], Roughness]) -> Metal:
@@ -178,39 +117,15 @@ def _name(where: str, spec: Mapping, key: str) -> str:
     return v
 
 
-#: extra keys of the field solver whose values name dielectrics (resolved like "dielectric")
-FIELD_DIELECTRIC_KEYS: tuple[str, ...] = ()
-
-
 def _field_dielectrics(
     spec: Mapping, where: str, dielectric: Callable[[str, str], Dielectric]
 ) -> dict:
+    """``spec`` with the field solver's dielectric names resolved to objects."""
     out = dict(spec)
-    for key in FIELD_DIELECTRIC_KEYS:
+    for key in DIELECTRIC_KEYS:
         if key in out and not isinstance(out[key], Dielectric):
             out[key] = dielectric(_name(where, spec, key), key_name(where, key))
     return out
 
 
-def _field_builder(kind: str) -> Callable[..., CrossSection]:
-    """The field solver's builder for ``kind``, imported on first use (start-up time)."""
-
-    def build(*args):
-        from losslane.xsection.fieldsolve.builders import BUILDERS
-
-        return BUILDERS[kind](*args)
-
-    return build
-
-
-def _register_field_solver() -> None:
-    """Builders and extra keys of the 2-D field solver (xsection/fieldsolve/)."""
-    global FIELD_KEYS, FIELD_DIELECTRIC_KEYS
-    from losslane.xsection.fieldsolve import keys
-
-    FIELD_BUILDERS.update({kind: _field_builder(kind) for kind in keys.KINDS})
-    FIELD_KEYS = tuple(dict.fromkeys(FIELD_KEYS + keys.EXTRA_KEYS))
-    FIELD_DIELECTRIC_KEYS = tuple(dict.fromkeys(FIELD_DIELECTRIC_KEYS + keys.DIELECTRIC_KEYS))
-
-
-_register_field_solver()
+__all__ = ["MATERIAL_KEYS", "SOLVERS", "metal_from_spec", "section_from_spec", "spec_keys"]

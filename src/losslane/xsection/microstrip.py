@@ -15,25 +15,30 @@ Methods and validity (coefficients as published; ranges from the papers, from me
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, ClassVar
 
 import numpy as np
 from numpy.typing import ArrayLike
 
-from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
 from losslane.xsection.base import CrossSection, Metal, strip_and_planes, strip_loss_modelled
 from losslane.xsection.rlgc import C0, ETA0, ConductorGroup, Mode, assemble_mode
+from losslane.xsection.validity import Limit, Quantities, dk
+
+if TYPE_CHECKING:
+    from losslane.xsection.fieldsolve.geometry import Geometry
 
 
-def hj_z_air(u: np.ndarray) -> np.ndarray:
+def z_air_thin(u: np.ndarray) -> np.ndarray:
     """Hammerstad-Jensen impedance of the air-filled microstrip of width ratio u = w/h."""
     u = np.asarray(u, float)
     fu = 6.0 + (2 * np.pi - 6.0) * np.exp(-((30.666 / u) ** 0.7528))
     return ETA0 / (2 * np.pi) * np.log(fu / u + np.sqrt(1.0 + (2.0 / u) ** 2))
 
 
-def hj_eps_eff(u: np.ndarray, er: np.ndarray) -> np.ndarray:
+def eps_eff_thin(u: np.ndarray, er: np.ndarray) -> np.ndarray:
     """Hammerstad-Jensen quasi-static effective permittivity (zero thickness)."""
     u = np.asarray(u, float)
     er = np.asarray(er, float)
@@ -46,7 +51,7 @@ def hj_eps_eff(u: np.ndarray, er: np.ndarray) -> np.ndarray:
     return (er + 1.0) / 2.0 + (er - 1.0) / 2.0 * (1.0 + 10.0 / u) ** (-a * b)
 
 
-def hj_thickness(u: ArrayLike, t_h: ArrayLike, er: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
+def widened_ratios(u: ArrayLike, t_h: ArrayLike, er: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     """Hammerstad-Jensen strip-thickness correction: widened ratios (u1 in air, ur in the
     dielectric) of a strip of thickness ratio t_h = t/h (arrays broadcast; no widening
     where t_h <= 0)."""
@@ -61,27 +66,27 @@ def hj_thickness(u: ArrayLike, t_h: ArrayLike, er: ArrayLike) -> tuple[np.ndarra
     return u + du1, u + dur
 
 
-def hj_quasi_static(
+def quasi_static(
     w: ArrayLike, h: ArrayLike, t: ArrayLike, er: ArrayLike
 ) -> tuple[np.ndarray, np.ndarray]:
     """(Z0, eps_eff) of the Hammerstad-Jensen model with thickness correction."""
     u = np.asarray(w, float) / h
-    u1, ur = hj_thickness(u, np.asarray(t, float) / h, er)
-    e_r = hj_eps_eff(ur, er)
-    z_r = hj_z_air(ur)
+    u1, ur = widened_ratios(u, np.asarray(t, float) / h, er)
+    e_r = eps_eff_thin(ur, er)
+    z_r = z_air_thin(ur)
     z0 = z_r / np.sqrt(e_r)
-    eps_eff = e_r * (hj_z_air(u1) / z_r) ** 2
+    eps_eff = e_r * (z_air_thin(u1) / z_r) ** 2
     return z0, eps_eff
 
 
-def hj_thick_z_air(w: ArrayLike, h: ArrayLike, t: ArrayLike) -> np.ndarray:
+def z_air_thick(w: ArrayLike, h: ArrayLike, t: ArrayLike) -> np.ndarray:
     """Air-filled impedance with thickness correction (the incremental-inductance base)."""
     u = np.asarray(w, float) / h
-    u1, _ = hj_thickness(u, np.asarray(t, float) / h, 1.0)
-    return hj_z_air(u1)
+    u1, _ = widened_ratios(u, np.asarray(t, float) / h, 1.0)
+    return z_air_thin(u1)
 
 
-def kj_p1_p4(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> tuple[np.ndarray, ...]:
+def dispersion_terms(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> tuple[np.ndarray, ...]:
     """Kirschning-Jansen's dispersion terms P1..P4 of the single strip, which their coupled-
     line eps_e(f), eps_o(f) use as well; fn = f[GHz] * h[mm]."""
     p1 = 0.27488 + (0.6315 + 0.525 / (1.0 + 0.0157 * fn) ** 20) * u - 0.065683 * np.exp(-8.7513 * u)
@@ -91,15 +96,15 @@ def kj_p1_p4(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> tuple[np.ndarray, ..
     return p1, p2, p3, p4
 
 
-def kj_eps_eff(u: ArrayLike, er: ArrayLike, eps0: ArrayLike, fn: ArrayLike) -> np.ndarray:
+def eps_eff_dispersive(u: ArrayLike, er: ArrayLike, eps0: ArrayLike, fn: ArrayLike) -> np.ndarray:
     """Kirschning-Jansen dispersive eps_eff(f); fn = f[GHz] * h[mm]."""
-    p1, p2, p3, p4 = kj_p1_p4(u, er, fn)
+    p1, p2, p3, p4 = dispersion_terms(u, er, fn)
     p = p1 * p2 * ((0.1844 + p3 * p4) * fn) ** 1.5763
     return er - (er - eps0) / (1.0 + p)
 
 
-def jk_exponent(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> np.ndarray:
-    """The exponent R17 of Jansen-Kirschning's Z0(f) (``jk_z0``), which Kirschning-Jansen's
+def z0_dispersion_exponent(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> np.ndarray:
+    """The exponent R17 of Jansen-Kirschning's Z0(f) (``z0_dispersive``), which Kirschning-Jansen's
     coupled-line even-mode Z_e(f) uses as Q0; fn = f[GHz] * h[mm]."""
     r1 = 0.03891 * er**1.4
     r2 = 0.2671 * u**7  # 0.2671 as published (from memory; matches scikit-rf)
@@ -112,7 +117,7 @@ def jk_exponent(u: ArrayLike, er: ArrayLike, fn: ArrayLike) -> np.ndarray:
     return r7 * (1.0 - 1.1241 * r12 / r16 * np.exp(-0.026 * fn**1.15656 - r15))
 
 
-def jk_z0(
+def z0_dispersive(
     u: ArrayLike, er: ArrayLike, eps0: ArrayLike, eps_f: ArrayLike, z00: ArrayLike, fn: ArrayLike
 ) -> np.ndarray:
     """Jansen-Kirschning dispersive Z0(f); fn = f[GHz] * h[mm]."""
@@ -133,13 +138,44 @@ def jk_z0(
     )
     r13 = 0.9408 * eps_f**r8 - 0.9603
     r14 = (0.9408 - r9) * eps0**r8 - 0.9603
-    r17 = jk_exponent(u, er, fn)
+    r17 = z0_dispersion_exponent(u, er, fn)
     with np.errstate(invalid="ignore", divide="ignore"):
         ratio = r13 / r14
     # Near eps_r = 1 both terms approach -0.0195 and the ratio loses meaning; the line is
     # then TEM-like and has no impedance dispersion.
     ok = np.isfinite(ratio) & (ratio > 0)
     return z00 * np.where(ok, np.abs(ratio) ** r17, 1.0)
+
+
+#: the validity table (ranges as the papers state them, from memory; see DEVELOPERS.md)
+LIMITS = (
+    Limit("microstrip (Hammerstad-Jensen)", "width/height", 0.01, 100, ("width", ("height",))),
+    Limit("microstrip (Hammerstad-Jensen)", "dk", 1, 128, value=dk),
+    Limit(
+        "microstrip (Hammerstad-Jensen thickness)",
+        "thickness/height",
+        0,
+        0.5,
+        ("thickness", ("height",)),
+    ),
+    Limit(
+        "microstrip dispersion (Kirschning-Jansen)",
+        "width/height",
+        0.1,
+        100,
+        ("width", ("height",)),
+        above_dc=True,
+    ),
+    Limit("microstrip dispersion (Kirschning-Jansen)", "dk", 1, 20, value=dk, above_dc=True),
+    Limit(
+        "microstrip dispersion (Kirschning-Jansen)",
+        "height/wavelength",
+        0,
+        0.13,
+        value=lambda q: q.f * q.height / C0,
+        above_dc=True,
+    ),
+)
 
 
 @dataclass(frozen=True)
@@ -153,8 +189,11 @@ class Microstrip(CrossSection):
     thickness: float
     dielectric: Dielectric
     metal: Metal = field(default_factory=Metal)
-    kind = "microstrip"
-    dimensions = ("width", "height", "thickness")
+    kind: ClassVar[str] = "microstrip"
+    dimensions: ClassVar[tuple[str, ...]] = ("width", "height", "thickness")
+    limits: ClassVar[tuple[Limit, ...]] = LIMITS
+    search: ClassVar[dict] = {"width": (("height",), 0.01, 100.0)}
+    outer_layer: ClassVar[bool] = True
 
     def mode_arrays(
         self,
@@ -167,24 +206,13 @@ class Microstrip(CrossSection):
     ) -> dict[str, Mode]:
         w, h, t = (np.asarray(x, float) for x in (width, height, thickness))
         er = eps_r.real
+        self.check_validity(Quantities({"width": w, "height": h, "thickness": t}, er, f))
         u = w / h
         fn = f * 1e-9 * h * 1e3
-        self._check_validity(u, t / h, er, fn)
-        z00, eps0 = hj_quasi_static(w, h, t, er)
-        eps_f = kj_eps_eff(u, er, eps0, fn)
-        z0 = jk_z0(u, er, eps0, eps_f, z00, fn)
+        z00, eps0 = quasi_static(w, h, t, er)
+        eps_f = eps_eff_dispersive(u, er, eps0, fn)
+        z0 = z0_dispersive(u, er, eps0, eps_f, z00, fn)
         return {"single": assemble_mode("single", f, eps_r, eps_f, z0, self._groups(w, h, t))}
-
-    @staticmethod
-    def _check_validity(u: np.ndarray, t_h: np.ndarray, er: np.ndarray, fn: np.ndarray) -> None:
-        check_range("microstrip (Hammerstad-Jensen)", "width/height", u, 0.01, 100)
-        check_range("microstrip (Hammerstad-Jensen)", "dk", er, 1, 128)
-        check_range("microstrip (Hammerstad-Jensen thickness)", "thickness/height", t_h, 0, 0.5)
-        if np.any(fn > 0):
-            name = "microstrip dispersion (Kirschning-Jansen)"
-            check_range(name, "width/height", u, 0.1, 100)
-            check_range(name, "dk", er, 1, 20)
-            check_range(name, "height/wavelength", fn / (C0 * 1e-6), 0, 0.13)
 
     def _groups(self, w: np.ndarray, h: np.ndarray, t: np.ndarray) -> list[ConductorGroup]:
         if not strip_loss_modelled(
@@ -192,7 +220,7 @@ class Microstrip(CrossSection):
         ):
             return []
         return strip_and_planes(
-            lambda p: hj_thick_z_air(*p),
+            lambda p: z_air_thick(*p),
             (w, h, t),
             ("strip", lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] - 2 * d)),
             [("plane", lambda p, d: (p[0], p[1] + d, p[2]))],
@@ -200,3 +228,10 @@ class Microstrip(CrossSection):
             w * t,
             self.metal,
         )
+
+    @classmethod
+    def field_geometry(cls, dims: Mapping[str, float], options) -> Geometry:
+        """The cross-section for the field solver: the strip(s) on one layer over the plane."""
+        from losslane.xsection.fieldsolve.layouts import over_plane
+
+        return over_plane(dims, options, pair=cls.n_conductors == 2)

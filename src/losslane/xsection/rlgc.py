@@ -37,13 +37,20 @@ P = TypeVar("P")
 
 @dataclass(frozen=True)
 class RLGC:
-    """Per-unit-length matrices over frequency: ``f`` (N,), ``r l g c`` (N, n, n), SI units."""
+    """Per-unit-length matrices over frequency: ``f`` (N,), ``r l g c`` (N, n, n), SI units.
+
+    ``transform``: for a line whose modes are known in advance (a symmetric pair), the real
+    orthonormal (n, n) matrix T whose columns are the modes, so that T^T Z T and T^T Y T
+    are diagonal at every frequency; line blocks then use the modes directly instead of
+    an eigen-decomposition. None for a general line.
+    """
 
     f: np.ndarray
     r: np.ndarray
     l: np.ndarray
     g: np.ndarray
     c: np.ndarray
+    transform: np.ndarray | None = None
 
     @property
     def n(self) -> int:

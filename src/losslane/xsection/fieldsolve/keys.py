@@ -1,7 +1,7 @@
-"""The scenario keys and kinds of the field solver, kept apart from the solver so that the
-line factory can check a spec without importing the solver (start-up time)."""
+"""The scenario keys of the field solver, kept apart from the solver so that the line
+factory can check a spec without importing it (start-up time)."""
 
-#: extra keys the field solver accepts on top of each kind's own keys
+#: keys the field solver accepts on top of each kind's own keys
 EXTRA_KEYS = (
     "top_width",
     "etch_factor",
@@ -12,5 +12,5 @@ EXTRA_KEYS = (
 )
 #: extra keys whose values are dielectrics (names are resolved by the caller)
 DIELECTRIC_KEYS = ("coating_dielectric", "dielectric_above")
-#: the line kinds the solver builds (builders.BUILDERS has one entry for each)
-KINDS = ("microstrip", "stripline", "cpw", "gcpw", "microstrip-pair", "stripline-pair")
+#: the mesh settings (``solve.LEVELS`` maps them to mesh levels)
+ACCURACIES = ("coarse", "normal", "fine")

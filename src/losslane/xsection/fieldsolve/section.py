@@ -36,6 +36,8 @@ h / lambda0 > 0.02.
 
 from __future__ import annotations
 
+import dataclasses
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -43,8 +45,9 @@ import numpy as np
 from losslane.errors import LossLaneError, check_range, warn
 from losslane.materials.conductor import internal_impedance
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal
+from losslane.xsection.base import CrossSection, LineValues, Metal, check_dimensions
 from losslane.xsection.fieldsolve.geometry import F_REF, Geometry
+from losslane.xsection.fieldsolve.layouts import FieldOptions
 from losslane.xsection.fieldsolve.solve import (
     LEVELS,
     Solution,
@@ -56,29 +59,98 @@ from losslane.xsection.rlgc import C0, RLGC, Mode
 
 
 @dataclass(frozen=True)
+class FieldSource:
+    """How a section was made from a model class (``model.field_geometry``): its
+    dimensions (metres) and the solver's options; what ``replace`` rebuilds from."""
+
+    model: type
+    dims: tuple[tuple[str, float], ...]
+    options: FieldOptions
+
+
+@dataclass(frozen=True)
 class FieldSection(CrossSection):
     """A cross-section solved by the 2-D field solver; ``accuracy`` is 'coarse', 'normal'
-    or 'fine' (see ``solve.LEVELS``)."""
+    or 'fine' (see ``solve.LEVELS``). Made from a model class (``from_model``: the kind's
+    dimensions and options, which ``replace`` varies) or from any ``Geometry``."""
 
     geometry: Geometry
     metal: Metal = field(default_factory=Metal)
     accuracy: str = "normal"
     kind: str = "field"
-    #: geometry values shown in headings (name, metres), e.g. (("width", 1.5e-4),)
-    labels: tuple[tuple[str, float], ...] = field(default=(), compare=False)
+    source: FieldSource | None = field(default=None, compare=False)
 
     def __post_init__(self) -> None:
         level_of(self.accuracy)
 
+    @classmethod
+    def from_model(
+        cls,
+        model: type,
+        dims: Mapping[str, float],
+        options: FieldOptions,
+        metal: Metal,
+        accuracy: str = "normal",
+    ) -> FieldSection:
+        """The section of kind ``model`` at ``dims`` (its ``field_geometry`` layout)."""
+        dims = {k: float(dims[k]) for k in model.dimensions}
+        source = FieldSource(model, tuple(dims.items()), options)
+        return cls(model.field_geometry(dims, options), metal, accuracy, model.kind, source)
+
+    # -- the dimensions, as on the closed-form models ----------------------------------
+    @property
+    def dimensions(self) -> tuple[str, ...]:  # type: ignore[override]
+        return () if self.source is None else tuple(k for k, _ in self.source.dims)
+
+    def dimension_values(self) -> dict[str, float]:
+        return {} if self.source is None else dict(self.source.dims)
+
+    @property
+    def search(self) -> Mapping:  # type: ignore[override]
+        """The model's sizing intervals (the closed forms' validity ranges do not bound
+        the solver)."""
+        return {} if self.source is None else self.source.model.search
+
+    @property
+    def labels(self) -> tuple[tuple[str, float], ...]:
+        """The geometry values shown in headings (name, metres): the dimensions and the
+        etched trace's top width."""
+        if self.source is None:
+            return ()
+        dims = dict(self.source.dims)
+        top = self.source.options.top(dims)
+        return tuple(dims.items()) + (() if top is None else (("top_width", float(top)),))
+
     def __getattr__(self, name: str):
-        # geometry values (width, height...) read as attributes, as on the closed-form
-        # models: sizing reads the solved dimension, compare the re-sized width
-        if name == "labels":
+        # the dimensions (width, height...) read as attributes, as on the closed-form models
+        if name == "source" or name.startswith("__"):
             raise AttributeError(name)
-        for key, value in object.__getattribute__(self, "labels"):
-            if key == name:
-                return value
+        source = object.__getattribute__(self, "source")
+        if source is not None:
+            for key, value in source.dims:
+                if key == name:
+                    return value
         raise AttributeError(name)
+
+    def replace(self, **changes) -> FieldSection:
+        """A copy with dimensions or materials changed, rebuilt by the model's layout."""
+        if self.source is None:
+            return dataclasses.replace(self, **changes)
+        src = self.source
+        dims = dict(src.dims)
+        for key in changes:
+            if key not in dims and key not in ("dielectric", "metal"):
+                raise LossLaneError(
+                    f"{self.kind}: {key!r} is not a dimension of this line; its dimensions "
+                    f"are {', '.join(dims)}"
+                )
+        dims.update({k: float(v) for k, v in changes.items() if k in dims})
+        check_dimensions(self.kind, dims)
+        options = src.options
+        if "dielectric" in changes:
+            options = dataclasses.replace(options, dielectric=changes["dielectric"])
+        metal = changes.get("metal", self.metal)
+        return FieldSection.from_model(src.model, dims, options, metal, self.accuracy)
 
     @property
     def n_conductors(self) -> int:  # type: ignore[override]
@@ -87,6 +159,8 @@ class FieldSection(CrossSection):
     @property
     def dielectric(self) -> Dielectric:  # type: ignore[override]
         """The dielectric around (or under) the first signal conductor."""
+        if self.source is not None:
+            return self.source.options.dielectric
         g = self.geometry
         tr = g.signals[0]
         faces = g.interfaces
@@ -142,7 +216,7 @@ class FieldSection(CrossSection):
                 # planes and coplanar grounds are wide: negligible DC resistance, the
                 # same convention as the closed-form models
                 depth = m.plane_thickness if grp.kind == "plane" else grp.thickness
-                rough_model = m.planes if grp.kind == "plane" else m.foil
+                rough_model = m.plane_roughness if grp.kind == "plane" else m.foil
                 rough = rough_model.factor(f, m.conductor)
                 rg, lg = internal_impedance(f, m.conductor, 1.0, depth, rough, wide=True)
                 r += rg[:, None, None] * grp.matrix
@@ -257,29 +331,15 @@ class FieldSection(CrossSection):
             "conductor_loss_omitted": list(fine.lossless),
         }
 
-    def properties(self, f: np.ndarray) -> dict:
+    def line_values(self, f: np.ndarray) -> LineValues:
         f = np.atleast_1d(np.asarray(f, dtype=float))
         if self.n_conductors <= 2:
-            out = super().properties(f)
-        else:
-            rl = self.rlgc(f)
-            out = {
-                "kind": self.kind,
-                "frequencies_hz": f.tolist(),
-                "rlgc": {
-                    "r_ohm_per_m": rl.r.tolist(),
-                    "l_h_per_m": rl.l.tolist(),
-                    "g_s_per_m": rl.g.tolist(),
-                    "c_f_per_m": rl.c.tolist(),
-                },
-            }
-            _, _, _, c, l_ext = self.matrices(f)
-            # modal velocities of the lossless line: eigenvalues of L_ext C = eps_eff / c0^2
-            lam = np.linalg.eigvals(l_ext @ c).real * C0**2
-            out["eps_eff_modes"] = np.sort(lam, axis=-1).tolist()
-        out["solver"] = "field"
-        out["field_solver"] = self.solver_report()
-        return out
+            return super().line_values(f)
+        rl = self.rlgc(f)
+        _, _, _, c, l_ext = self.matrices(f)
+        # modal velocities of the lossless line: eigenvalues of L_ext C = eps_eff / c0^2
+        lam = np.linalg.eigvals(l_ext @ c).real * C0**2
+        return LineValues(self.kind, f, rl, None, eps_eff_modes=np.sort(lam, axis=-1))
 
 
 def complex_capacitance(sol: Solution, eps: np.ndarray) -> np.ndarray:

@@ -40,11 +40,12 @@ import numpy as np
 
 from losslane.errors import LossLaneError
 from losslane.xsection.fieldsolve.geometry import F_REF, Geometry
+from losslane.xsection.fieldsolve.keys import ACCURACIES
 from losslane.xsection.fieldsolve.mesh import GridMesh, MeshParams, build_mesh
 from losslane.xsection.rlgc import EPS0
 
 #: accuracy setting -> mesh level; level -1 only serves the error estimate of "coarse"
-LEVELS = {"coarse": 0, "normal": 1, "fine": 2}
+LEVELS = {name: level for level, name in enumerate(ACCURACIES)}
 PARAMS = {
     -1: MeshParams(corner=0.08, face=0.4, growth=0.7, far=25.0),
     0: MeshParams(corner=0.03, face=0.25, growth=0.5, far=40.0),
@@ -454,31 +455,59 @@ def charge_factor(
 
 
 # -- cache ---------------------------------------------------------------------------
-_CACHE: OrderedDict = OrderedDict()
-CACHE_SIZE = 64
-stats = {"solves": 0, "hits": 0}
+class SolutionCache:
+    """Solved cross-sections, keyed by the electrostatic problem (shapes and reference
+    permittivities, ``Geometry.electrostatic_key``) and the mesh level, so that a
+    channel, a sizing search or a sweep that meets one cross-section again solves it
+    once. Bounded: beyond ``size`` entries the least recently used goes. ``solves`` and
+    ``hits`` count what happened since the last ``clear``.
+
+    A cache belongs to one process: pickling it (to ship work to another process) keeps
+    only its size, so solutions are never sent between processes; each worker fills its
+    own.
+    """
+
+    def __init__(self, size: int = 64) -> None:
+        self.size = int(size)
+        self._items: OrderedDict = OrderedDict()
+        self.solves = 0
+        self.hits = 0
+
+    def solve(self, geom: Geometry, level: int) -> Solution:
+        key = (geom.electrostatic_key(), level)
+        hit = self._items.get(key)
+        if hit is not None:
+            self._items.move_to_end(key)
+            self.hits += 1
+            return hit
+        sol = solve_level(geom, level)
+        self.solves += 1
+        self._items[key] = sol
+        while len(self._items) > self.size:
+            self._items.popitem(last=False)
+        return sol
+
+    def clear(self) -> None:
+        self._items.clear()
+        self.solves = self.hits = 0
+
+    def __len__(self) -> int:
+        return len(self._items)
+
+    def __getstate__(self) -> dict:
+        return {"size": self.size}
+
+    def __setstate__(self, state: dict) -> None:
+        self.__init__(state["size"])
+
+
+#: this process's cache (what ``solve`` uses)
+CACHE = SolutionCache(64)
 
 
 def solve(geom: Geometry, level: int) -> Solution:
-    """``solve_level`` through a cache keyed by the electrostatic problem (shapes and
-    reference permittivities): a channel or sweep that reuses a section solves it once."""
-    key = (geom.electrostatic_key(), level)
-    hit = _CACHE.get(key)
-    if hit is not None:
-        _CACHE.move_to_end(key)
-        stats["hits"] += 1
-        return hit
-    sol = solve_level(geom, level)
-    stats["solves"] += 1
-    _CACHE[key] = sol
-    while len(_CACHE) > CACHE_SIZE:
-        _CACHE.popitem(last=False)
-    return sol
-
-
-def clear_cache() -> None:
-    _CACHE.clear()
-    stats["solves"] = stats["hits"] = 0
+    """The electrostatic results of ``geom`` at mesh ``level``, through ``CACHE``."""
+    return CACHE.solve(geom, level)
 
 
 def level_of(accuracy: str) -> int:
@@ -498,12 +527,13 @@ def relative_change(a: np.ndarray, b: np.ndarray) -> float:
 
 
 __all__ = [
+    "CACHE",
     "LEVELS",
     "PARAMS",
     "Fields",
     "GroupFactor",
     "Solution",
-    "clear_cache",
+    "SolutionCache",
     "fields",
     "level_of",
     "reference_permittivities",

@@ -13,8 +13,11 @@ import base64
 from collections.abc import Sequence
 from dataclasses import dataclass
 from html import escape
+from pathlib import Path
 
-from losslane.report.tables import CAUTION, budget_rows, point_title, verdict
+from losslane import __version__
+from losslane.report.budget import budget_rows, point_title
+from losslane.report.text import CAUTION, verdict
 
 STYLE = """
 body { font-family: sans-serif; margin: 1.5em auto; max-width: 70em; color: #222;
@@ -239,3 +242,53 @@ def render_report(
     parts.append(f'<p class="caution">{escape(CAUTION)}</p>')
     parts += ["</body>", "</html>", ""]
     return "\n".join(parts)
+
+
+def report_html(
+    result,
+    budget,
+    fit,
+    stage: Path,
+    stem: str,
+    charts: Sequence[tuple[Path, str]],
+    names: Sequence[str],
+    summary: Sequence[dict],
+) -> str:
+    """The self-contained page: the channel plots already staged (insertion and return
+    loss) and the budget charts, embedded."""
+    sc = result.scenario
+    figures = []
+    for suffix, caption in (
+        ("insertion-loss", "Insertion loss, cumulative through each segment"),
+        ("return-loss", "Return loss at both ends"),
+    ):
+        p = Path(stage) / f"{stem}-{suffix}.png"
+        if p.is_file():
+            figures.append(Figure(caption, p.read_bytes()))
+    figures += [Figure(caption, Path(p).read_bytes()) for p, caption in charts]
+    f = result.f
+    meta = [
+        f"{len(result.blocks)} segments, {result.nports}-port"
+        + (" (differential pair)" if result.nports == 4 else "")
+        + f", reference {sc.ports.reference:g} ohm per port"
+        + (f", port order {sc.ports.order}" if result.nports == 4 else ""),
+        f"sweep {f[0] / 1e9:g}..{f[-1] / 1e9:g} GHz, {f.size} points",
+        f"built by losslane {__version__} from "
+        + (sc.path.name if sc.path is not None else "a scenario"),
+    ]
+    models = [seg.path.name for seg in sc.channel if seg.type == "touchstone" and seg.path]
+    if models:
+        meta.append("imported Touchstone models: " + ", ".join(models))
+    return render_report(
+        title=f"{sc.name}: channel report",
+        meta=meta,
+        budget=budget,
+        fit=fit,
+        summary=summary,
+        figures=figures,
+        warnings=list(result.warnings),
+        scenario_name=sc.path.name if sc.path is not None else "scenario",
+        scenario_text=sc.source_text,
+        files=names,
+        mode="" if result.nports == 2 else " (differential mode)",
+    )

@@ -1,4 +1,5 @@
-"""The files of a build: Touchstone, plots, and the terminal/JSON summary.
+"""A built channel's outputs: the Touchstone file, the insertion-loss, return-loss and
+mixed-mode charts, the terminal and JSON summary, and the writing of a whole build.
 
 Everything is written into a staging directory beside the output directory and moved
 into place only when every file is complete, so a failed build leaves nothing behind.
@@ -9,7 +10,7 @@ from __future__ import annotations
 import re
 import shutil
 import tempfile
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from pathlib import Path
 
 import numpy as np
@@ -17,8 +18,10 @@ import numpy as np
 from losslane import __version__
 from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
-from losslane.report.channel_plots import Curve, Marker, db_plot, to_db
-from losslane.report.tables import CAUTION, table
+from losslane.report.budget import budget_text, write_budget_files
+from losslane.report.charts import Curve, Marker, db_plot, to_db
+from losslane.report.page import report_html
+from losslane.report.text import CAUTION, table
 
 
 def slug(name: str) -> str:
@@ -60,19 +63,9 @@ def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
     return float(np.interp(x, f, y))
 
 
-def reflection_db(result: ChannelResult) -> tuple[np.ndarray, np.ndarray]:
-    """Return loss (positive dB) at the input and the output of the main mode."""
-    return result.return_loss_db()
-
-
-def mixed(result: ChannelResult):
-    """Mixed-mode blocks of a 4-port result (None for a 2-port)."""
-    return result.mixed_mode()
-
-
 def summary_rows(result: ChannelResult) -> list[dict]:
-    rl_in, rl_out = reflection_db(result)
-    mm = mixed(result)
+    rl_in, rl_out = result.return_loss
+    mm = result.mixed_mode
     rows = []
     for x in summary_frequencies(result):
         row = {
@@ -121,7 +114,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         markers,
         floor_db=-200,
     )
-    rl_in, rl_out = reflection_db(result)
+    rl_in, rl_out = result.return_loss
     rl_markers = [
         Marker(c.at, f"check {c.at / 1e9:g} GHz", c.min_return_loss)
         for c in (sc.budget.checks if sc.budget else ())
@@ -139,7 +132,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         floor_db=-80,
     )
     files = [il, rl]
-    mm = mixed(result)
+    mm = result.mixed_mode
     if mm is not None:
         files.append(
             db_plot(
@@ -175,16 +168,21 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
 
 def write_build(
     result: ChannelResult,
+    budget,
+    fit,
+    summary: list[dict],
     out_dir: Path | str,
     version: int = 1,
     form: str = "ri",
     plots: bool = True,
-    extra: Callable[[ChannelResult, Path, str], list[Path]] | None = None,
 ) -> list[Path]:
-    """Write the build's files into ``out_dir``; returns their final paths."""
+    """Write the build's files into ``out_dir`` (checked with ``prepare_out_dir``): the
+    Touchstone file, the channel charts, the budget's files and the report page; returns
+    their final paths. ``budget``/``fit``: a ChannelBudget/LossFit or None; ``summary``:
+    the rows of ``summary_rows``."""
     from losslane.network.touchstone import write_touchstone
 
-    out = prepare_out_dir(out_dir)
+    out = Path(out_dir)
     stem = slug(result.scenario.name)
     # staged beside the output directory, so nothing appears in it until all is written
     stage = Path(tempfile.mkdtemp(prefix=".losslane-build-", dir=out.resolve().parent))
@@ -206,8 +204,15 @@ def write_build(
         ]
         if plots:
             files += plot_files(result, stage, stem)
-        if extra is not None:
-            files += extra(result, stage, stem)
+        budget_files, charts = write_budget_files(result, budget, fit, stage, stem, plots)
+        files += budget_files
+        page = stage / f"{stem}-report.html"
+        names = sorted({p.name for p in files} | {page.name})
+        page.write_text(
+            report_html(result, budget, fit, stage, stem, charts, names, summary),
+            encoding="utf-8",
+        )
+        files.append(page)
         final = []
         out.mkdir(exist_ok=True)
         for p in files:
@@ -219,8 +224,14 @@ def write_build(
         shutil.rmtree(stage, ignore_errors=True)
 
 
-def summary_text(result: ChannelResult, files: list[Path], sections: Sequence[str] = ()) -> str:
-    """The terminal summary; ``sections`` (e.g. the loss budget) go before the file list."""
+def summary_text(
+    result: ChannelResult,
+    summary: list[dict],
+    files: list[Path],
+    sections: Sequence[str] = (),
+) -> str:
+    """The terminal summary (``summary``: the rows of ``summary_rows``); ``sections``
+    (e.g. the loss budget) go before the file list."""
     sc = result.scenario
     four = result.nports == 4
     mode = " (differential mode)" if four else ""
@@ -230,7 +241,7 @@ def summary_text(result: ChannelResult, files: list[Path], sections: Sequence[st
         heads += ["common-mode loss", "Scd21"]
         units += ["dB", "dB"]
     rows = []
-    for r in summary_rows(result):
+    for r in summary:
         row = [
             f"{r['at_hz'] / 1e9:.4g}",
             f"{r['insertion_loss_db']:.2f}",
@@ -255,7 +266,7 @@ def summary_text(result: ChannelResult, files: list[Path], sections: Sequence[st
     return "\n".join(out)
 
 
-def summary_json(result: ChannelResult, files: list[Path]) -> dict:
+def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) -> dict:
     touch = next((str(p) for p in files if re.search(r"\.s\dp$", p.name)), None)
     return {
         "touchstone": touch,
@@ -264,5 +275,13 @@ def summary_json(result: ChannelResult, files: list[Path]) -> dict:
         "files": [str(p) for p in files],
         "port_order": result.scenario.ports.order if result.nports == 4 else None,
         "reference_ohm": result.scenario.ports.reference,
-        "summary": summary_rows(result),
+        "summary": summary,
     }
+
+
+def build_text(build) -> str:
+    """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
+    budget and the fit, the files written."""
+    return summary_text(
+        build.channel, build.summary, build.files, sections=[budget_text(build.budget, build.fit)]
+    )

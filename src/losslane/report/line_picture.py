@@ -5,13 +5,12 @@ looking at it."""
 from __future__ import annotations
 
 import math
-import os
-import tempfile
 from pathlib import Path
 
 import numpy as np
 
 from losslane.errors import LossLaneError
+from losslane.report.charts import save_figure
 from losslane.units import MIL
 
 _FORMATS = (".png", ".svg", ".pdf")
@@ -49,10 +48,10 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     from matplotlib.tri import LinearTriInterpolator, Triangulation
 
     geom = section.geometry
-    fl = fields(geom, level_of(section.accuracy))
-    mesh = fl.mesh
+    solved = fields(geom, level_of(section.accuracy))
+    mesh = solved.mesh
     nv = mesh.p.shape[1]
-    u = fl.potential[:nv]
+    u = solved.potential[:nv]
     n = u.shape[1]
     if n == 2:
         phi, title_mode, vmin = u[:, 0] - u[:, 1], "odd mode, +1 V / -1 V", -1.0
@@ -87,7 +86,7 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     ax = fig.add_subplot(1, 1, 1)
     ax.tripcolor(
         tri,
-        facecolors=geom_regions(fl),
+        facecolors=geom_regions(solved),
         cmap=ListedColormap(colors),
         vmin=-0.5,
         vmax=len(colors) - 0.5,
@@ -163,7 +162,7 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     ax.set_xlabel("x [mil]")
     ax.set_ylabel("y [mil]")
     handles = []
-    present = set(np.unique(fl.grid.region).tolist())
+    present = set(np.unique(solved.grid.region).tolist())
     for i, ((name, diel), col) in enumerate(zip(regions, colors, strict=True)):
         if i not in present:
             continue
@@ -177,27 +176,19 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     )
     fig.tight_layout()
 
-    fd, tmp = tempfile.mkstemp(prefix=".losslane-", suffix=path.suffix, dir=path.parent)
-    os.close(fd)
-    try:
-        fig.savefig(tmp, format=path.suffix.lower()[1:])
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-    return path
+    return save_figure(fig, path)
 
 
-def geom_regions(fl) -> np.ndarray:
-    """Region index of every triangle of the mesh in ``fl``."""
-    return fl.grid.region.astype(float)
+def geom_regions(solved) -> np.ndarray:
+    """Region index of every triangle of the mesh of ``solved`` (a ``solve.Fields``)."""
+    return solved.grid.region.astype(float)
 
 
 def _summary(section) -> str:
+    from losslane.report.line import line_json
     from losslane.xsection.fieldsolve.geometry import F_REF
 
-    props = section.properties(np.array([F_REF]))
+    props = line_json(section.line_values(np.array([F_REF])), section.solver_report())
     at = f"at {F_REF / 1e9:g} GHz"
     est = props["field_solver"]["error_estimate"].get("z0")
     err = "" if est is None else f"  (estimated discretisation error {100 * est:.2g} %)"

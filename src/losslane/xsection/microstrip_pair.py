@@ -1,4 +1,4 @@
-"""Edge-coupled symmetric pairs: two equal strips side by side, as microstrip or stripline.
+"""Edge-coupled symmetric microstrip pair: two equal strips side by side over one plane.
 
 A symmetric pair carries two quasi-TEM modes: the even mode (both strips at +V) and the
 odd mode (+V, -V). Each has its own per-line impedance Z_e, Z_o and effective
@@ -7,8 +7,8 @@ line (``assemble_mode``), and the 2x2 R, L, G, C follow from the two modes
 (``base.pair_rlgc``).
 
 Methods and validity (the formulas below are written from memory of the published papers
-and checked in tests/test_coupled*.py against an exact solution, independent numerical
-solutions and the single-line limits -- see the tests for the measured agreement):
+and checked in tests/test_coupled*.py against independent numerical solutions and the
+single-line limits -- see the tests for the measured agreement):
 
 microstrip-pair
   * quasi-static even/odd eps_eff and Z0 (zero thickness): M. Kirschning and R. H. Jansen,
@@ -26,23 +26,9 @@ microstrip-pair
     loss and finite strip thickness", IEEE Trans. MTT 26(2), 1978 (from memory), used in
     Hammerstad-Jensen's two-width form, plus the odd mode's side-wall capacitance
     2 eps0 t/s of the coupled-microstrip capacitance models (Garg and Bahl, IEEE Trans.
-    MTT 27(7), 1979); see ``kj_mode_capacitances``. For s -> infinity both modes become
+    MTT 27(7), 1979); see ``mode_capacitances``. For s -> infinity both modes become
     losslane's single ``Microstrip`` exactly. Checked against a finite-difference solution
     for t/h <= 0.35 (see the tests); meant for t/h <= 0.5.
-
-stripline-pair (centred: trace midway between the planes)
-  * zero thickness, exact (conformal mapping): S. B. Cohn, "Shielded coupled-strip
-    transmission line", IRE Trans. MTT 3, 1955:
-    Z = (eta0 / 4 sqrt(eps_r)) K(k')/K(k), k_e = tanh(pi w/2b) tanh(pi (w+s)/2b),
-    k_o = tanh(pi w/2b) coth(pi (w+s)/2b), b the plane-to-plane spacing. Any w/b, s/b.
-  * thickness: Cohn's 1955 thick-strip corrections in admittance form on top of the exact
-    zero-thickness values and of the single stripline of the same strip (losslane's
-    Cohn x Wheeler model), so t = 0 stays exact and s -> infinity gives losslane's
-    single ``Stripline``; see ``centred_pair_z_air``. Range (from memory) t/b <= 0.1;
-    the finite-difference check in the tests finds them within 3 % for t/w <= 0.2.
-  * offset trace (nearer one plane): the parallel combination of the two centred pairs of
-    spacings 2 h1 + t and 2 h2 + t, as for the single offset stripline -- an
-    approximation (common practice), best for w/(b - t) > 0.35.
 
 Conductor loss of each mode follows Wheeler's incremental-inductance rule applied to that
 mode's own air-filled impedance function (strip walls and plane walls receding); the strip
@@ -51,43 +37,47 @@ depth G * w * t makes the DC resistance of a strip 1/(sigma w t) in both modes.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, ClassVar
 
 import numpy as np
 from numpy.typing import ArrayLike
 
-from losslane.errors import check_range
 from losslane.materials.dielectric import Dielectric
-from losslane.xsection.base import CrossSection, Metal, strip_and_planes, strip_loss_modelled
+from losslane.xsection.base import (
+    PAIR_MODES,
+    CrossSection,
+    Metal,
+    strip_and_planes,
+    strip_loss_modelled,
+)
 from losslane.xsection.microstrip import (
-    hj_eps_eff,
-    hj_quasi_static,
-    hj_thickness,
-    hj_z_air,
-    jk_exponent,
-    jk_z0,
-    kj_eps_eff,
-    kj_p1_p4,
+    dispersion_terms,
+    eps_eff_dispersive,
+    eps_eff_thin,
+    quasi_static,
+    widened_ratios,
+    z0_dispersion_exponent,
+    z0_dispersive,
+    z_air_thin,
 )
 from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode
-from losslane.xsection.stripline import centred_z_air, cohn_z_air
+from losslane.xsection.validity import Limit, Quantities, dk
 
-MODES = ("even", "odd")
-
-# ---------------------------------------------------------------------------------------
-# microstrip pair: Kirschning & Jansen (1984/85)
-# ---------------------------------------------------------------------------------------
+if TYPE_CHECKING:
+    from losslane.xsection.fieldsolve.geometry import Geometry
 
 
-def kj_static_eps(u: ArrayLike, g: ArrayLike, er: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
+def static_eps_thin(u: ArrayLike, g: ArrayLike, er: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     """Kirschning-Jansen quasi-static (eps_e, eps_o) of a zero-thickness coupled pair,
     u = w/h, g = s/h (u, g and eps_r broadcast)."""
     u = np.asarray(u, float)
     er = np.asarray(er, float)
-    eps0 = hj_eps_eff(u, er)
+    eps0 = eps_eff_thin(u, er)
     # even mode: the single-strip formula at a coupling-dependent width v
     v = u * (20.0 + g * g) / (10.0 + g * g) + g * np.exp(-g)
-    eps_e = hj_eps_eff(v, er)
+    eps_e = eps_eff_thin(v, er)
     a_o = 0.7287 * (eps0 - (er + 1.0) / 2.0) * (1.0 - np.exp(-0.179 * u))
     b_o = 0.747 * er / (0.15 + er)
     c_o = b_o - (b_o - 0.207) * np.exp(-0.414 * u)
@@ -102,7 +92,7 @@ def _log_ratio(g: ArrayLike, g0: float) -> np.ndarray:
     return lg - np.logaddexp(0.0, lg - 10.0 * np.log(g0))
 
 
-def kj_static_q(u: ArrayLike, g: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
+def coupling_terms(u: ArrayLike, g: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     """Kirschning-Jansen coupling terms (Q4, Q10) of the even and odd impedances."""
     u = np.asarray(u, float)
     g = np.asarray(g, float)
@@ -119,15 +109,15 @@ def kj_static_q(u: ArrayLike, g: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
     return q4, q10
 
 
-def kj_static(
+def static_modes_thin(
     u: ArrayLike, g: ArrayLike, er: ArrayLike
 ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
     """Kirschning-Jansen quasi-static {mode: (Z0, eps_eff)} of a zero-thickness pair."""
     u = np.asarray(u, float)
     er = np.asarray(er, float)
-    eps_e, eps_o = kj_static_eps(u, g, er)
-    z_air = hj_z_air(u)  # the single strip's Z_L(0) sqrt(eps_eff(0))
-    q4, q10 = kj_static_q(u, g)
+    eps_e, eps_o = static_eps_thin(u, g, er)
+    z_air = z_air_thin(u)  # the single strip's Z_L(0) sqrt(eps_eff(0))
+    q4, q10 = coupling_terms(u, g)
     # Z_m = Z_L(0) sqrt(eps_eff(0)/eps_m) / (1 - Z_L(0) sqrt(eps_eff(0)) Q / eta0): the
     # denominator depends on the geometry only, so Z_m sqrt(eps_m) is the mode's air
     # impedance, as a TEM-like mode requires.
@@ -136,7 +126,7 @@ def kj_static(
     return {"even": (za_e / np.sqrt(eps_e), eps_e), "odd": (za_o / np.sqrt(eps_o), eps_o)}
 
 
-def pair_widths(
+def pair_widened_ratios(
     u: ArrayLike, g: ArrayLike, t_h: ArrayLike, er: ArrayLike
 ) -> tuple[np.ndarray, np.ndarray]:
     """Thickness-widened width ratios of a coupled strip: (air, dielectric).
@@ -151,7 +141,7 @@ def pair_widths(
     """
     u = np.asarray(u, float)
     t_h = np.asarray(t_h, float)
-    u1, ur = hj_thickness(u, t_h, er)
+    u1, ur = widened_ratios(u, t_h, er)
     # du/dt = (du/t_h) * g, written so that tiny thicknesses stay finite (du = 0 at t = 0)
     th = np.where(t_h > 0, t_h, 1.0)
     k1 = (u1 - u) / th * g
@@ -162,12 +152,12 @@ def pair_widths(
     )
 
 
-def kj_mode_capacitances(
+def mode_capacitances(
     mode: str, w: ArrayLike, s: ArrayLike, h: ArrayLike, t: ArrayLike, er: ArrayLike
 ) -> tuple[np.ndarray, np.ndarray]:
     """Normalised capacitances (C_air/eps0, C/eps0) of one mode of the thick pair.
 
-    Kirschning-Jansen at the widened ratios (``pair_widths``) in Hammerstad-Jensen's two-
+    Kirschning-Jansen at the widened ratios (``pair_widened_ratios``) in Hammerstad-Jensen's two-
     width form -- the air widths give C_air, the dielectric widths the geometric mean
     sqrt(C C_air) -- plus, in the odd mode, the capacitance of the facing side walls to
     the symmetry plane, 2 eps0 t/s, which lies in air (the gap-capacitance term of
@@ -177,9 +167,9 @@ def kj_mode_capacitances(
     """
     w, s, h, t, er = (np.asarray(v, float) for v in (w, s, h, t, er))
     u, g = w / h, s / h
-    ua, ud = pair_widths(u, g, t / h, er)
-    k_air = ETA0 / kj_static(ua, g, 1.0)[mode][0]
-    z, eps = kj_static(ud, g, er)[mode]
+    ua, ud = pair_widened_ratios(u, g, t / h, er)
+    k_air = ETA0 / static_modes_thin(ua, g, 1.0)[mode][0]
+    z, eps = static_modes_thin(ud, g, er)[mode]
     k_mean = ETA0 / z
     k_diel = k_mean**2 / k_air
     if mode == "odd":
@@ -189,30 +179,30 @@ def kj_mode_capacitances(
     return np.broadcast_to(k_air, k_diel.shape), k_diel
 
 
-def kj_mode_z_air(mode: str, w: ArrayLike, s: ArrayLike, h: ArrayLike, t: ArrayLike) -> np.ndarray:
+def mode_z_air(mode: str, w: ArrayLike, s: ArrayLike, h: ArrayLike, t: ArrayLike) -> np.ndarray:
     """Air-filled impedance of one mode of the microstrip pair (thickness included): the
     incremental-inductance base of the mode's conductor loss."""
-    k_air, _ = kj_mode_capacitances(mode, w, s, h, t, 1.0)
+    k_air, _ = mode_capacitances(mode, w, s, h, t, 1.0)
     return ETA0 / k_air
 
 
-def kj_quasi_static(
+def static_modes(
     w: ArrayLike, s: ArrayLike, h: ArrayLike, t: ArrayLike, er: ArrayLike
 ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
-    """{mode: (Z0, eps_eff)} quasi-static with strip thickness (``kj_mode_capacitances``);
+    """{mode: (Z0, eps_eff)} quasi-static with strip thickness (``mode_capacitances``);
     Z0 = eta0 / sqrt(k_air k), eps_eff = k / k_air."""
     out = {}
-    for mode in MODES:
-        k_air, k = kj_mode_capacitances(mode, w, s, h, t, er)
+    for mode in PAIR_MODES:
+        k_air, k = mode_capacitances(mode, w, s, h, t, er)
         out[mode] = (ETA0 / np.sqrt(k_air * k), k / k_air)
     return out
 
 
-def kj_dispersion_eps(
+def dispersive_eps(
     u: ArrayLike, g: ArrayLike, er: ArrayLike, eps_e0: ArrayLike, eps_o0: ArrayLike, fn: ArrayLike
 ) -> tuple[np.ndarray, np.ndarray]:
     """Kirschning-Jansen eps_e(f), eps_o(f) from the quasi-static values; fn = f[GHz] h[mm]."""
-    p1, p2, p3, p4 = kj_p1_p4(u, er, fn)
+    p1, p2, p3, p4 = dispersion_terms(u, er, fn)
     p5 = 0.334 * np.exp(-3.3 * (er / 15.0) ** 3) + 0.746
     p6 = p5 * np.exp(-((fn / 18.0) ** 0.368))
     p7 = 1.0 + 4.069 * p6 * g**0.479 * np.exp(-1.347 * g**0.595 - 0.17 * g**2.5)
@@ -233,7 +223,7 @@ def kj_dispersion_eps(
     return eps_e, eps_o
 
 
-def kj_dispersion_z(
+def dispersive_z(
     u: ArrayLike,
     g: ArrayLike,
     er: ArrayLike,
@@ -293,7 +283,7 @@ def kj_dispersion_z(
         + q18
         + q20
     )
-    q0 = jk_exponent(u, er, fn)  # Q0 = the single strip's R17 (Kirschning-Jansen 1984)
+    q0 = z0_dispersion_exponent(u, er, fn)  # Q0 = the single strip's R17 (Kirschning-Jansen 1984)
     num = 0.9408 * epsf**ce - 0.9603
     den = (0.9408 - de) * eps0**ce - 0.9603
     with np.errstate(invalid="ignore", divide="ignore"):
@@ -317,101 +307,29 @@ def kj_dispersion_z(
     return z_e, z_o
 
 
-# ---------------------------------------------------------------------------------------
-# stripline pair: Cohn (1955), exact for zero thickness
-# ---------------------------------------------------------------------------------------
-
-
-def _k_ratio(mp: ArrayLike) -> np.ndarray:
-    """K(k')/K(k) for a modulus given by mp = 1 - k^2 (precise when k -> 1)."""
-    from scipy.special import ellipk, ellipkm1  # here: scipy.special costs start-up time
-
-    return ellipk(mp) / ellipkm1(mp)
-
-
-def _sech2(x: ArrayLike) -> np.ndarray:
-    """sech^2 x without overflow for large x."""
-    e = np.exp(-2.0 * np.abs(x))
-    return 4.0 * e / (1.0 + e) ** 2
-
-
-def cohn_pair_z_air(w: ArrayLike, s: ArrayLike, b: ArrayLike) -> dict[str, np.ndarray]:
-    """Cohn's exact air-filled even/odd impedances of zero-thickness centred coupled
-    striplines of plane spacing b."""
-    w, s, b = (np.asarray(v, float) for v in (w, s, b))
-    a = np.pi * w / (2.0 * b)
-    c = np.pi * (w + s) / (2.0 * b)
-    sech2_a, sech2_c = _sech2(a), _sech2(c)
-    # 1 - k^2 without cancellation: k_e = tanh a tanh c, k_o = tanh a / tanh c
-    mp_e = sech2_a + np.tanh(a) ** 2 * sech2_c
-    mp_o = (sech2_a - sech2_c) / np.tanh(c) ** 2
-    return {"even": ETA0 / 4.0 * _k_ratio(mp_e), "odd": ETA0 / 4.0 * _k_ratio(mp_o)}
-
-
-def cohn_fringe(x: ArrayLike) -> np.ndarray:
-    """Cohn's fringing capacitance C_f'/eps of one corner of a thick semi-infinite strip
-    centred between planes, x = t/b (S. B. Cohn, IRE Trans. MTT 2, 1954); 2 ln 2 / pi
-    at x <= 0."""
-    x = np.asarray(x, float)
-    thick = x > 0
-    xs = np.where(thick, x, 0.5)  # the x -> 0 limit holds an x ln x term
-    # with r = 1/(1 - x): (2 r ln(r + 1) - (r - 1) ln(r^2 - 1)) / pi, written so that
-    # r - 1 and r^2 - 1 keep their precision for thin strips
-    r = 1.0 / (1.0 - xs)
-    cf = (2.0 * r * np.log(r + 1.0) - xs * r * np.log(xs * (2.0 - xs) * r * r)) / np.pi
-    return np.where(thick, cf, 2.0 * np.log(2.0) / np.pi)
-
-
-def centred_pair_z_air(
-    mode: str, w: ArrayLike, s: ArrayLike, b: ArrayLike, t: ArrayLike
-) -> np.ndarray:
-    """Air-filled impedance of one mode of a centred stripline pair with thickness t.
-
-    Cohn's (1955) thick coupled-strip corrections on the exact zero-thickness values, in
-    admittance form with Z_s the single stripline (losslane's Cohn x Wheeler model) and
-    C_f' the corner fringing capacitance (``cohn_fringe``), eta0 = 376.7 ohm:
-
-    * 1/Z_m = 1/Z_s(t) + [C_f'(t)/C_f'(0)] (1/Z_m(0) - 1/Z_s(0)) -- the zero-thickness
-      coupling scaled by the growth of the edge fringing (Cohn's form for s/t >= 5);
-    * odd mode, narrow gaps: 1/Z_o = 1/Z_o(0) + (1/Z_s(t) - 1/Z_s(0))
-      - (2/eta0)(C_f'(t) - C_f'(0)) + 2 t/(eta0 s) -- the inner edges' fringing replaced
-      by the parallel-plate field between the facing side walls (Cohn's form for s/t < 5).
-
-    Cohn switches forms at s/t = 5; here the odd mode takes the larger of the two
-    capacitances, which makes the switch continuous (the two cross near s/t = 5..20).
-    At t <= 0 the value is Cohn's exact one.
-    """
-    w, s, b, t = (np.asarray(v, float) for v in (w, s, b, t))
-    z0 = cohn_pair_z_air(w, s, b)[mode]
-    zs_t = centred_z_air(w, b, t)
-    zs_0 = cohn_z_air(w, b)
-    cf_t, cf_0 = cohn_fringe(t / b), cohn_fringe(0.0)
-    y = 1.0 / zs_t + cf_t / cf_0 * (1.0 / z0 - 1.0 / zs_0)
-    if mode == "odd":
-        y_gap = (
-            1.0 / z0 + (1.0 / zs_t - 1.0 / zs_0) - 2.0 / ETA0 * (cf_t - cf_0) + 2.0 * t / (ETA0 * s)
-        )
-        y = np.maximum(y, y_gap)
-    # the correction is not exactly 0 at t = 0 in floating point; keep the exact value
-    return np.where(t > 0, 1.0 / y, z0)
-
-
-def stripline_pair_z_air(
-    mode: str, w: ArrayLike, s: ArrayLike, below: ArrayLike, above: ArrayLike, t: ArrayLike
-) -> np.ndarray:
-    """Air-filled impedance of one mode, centred or offset (parallel combination of the
-    two centred pairs of spacings 2 below + t and 2 above + t)."""
-    below, above, t = (np.asarray(v, float) for v in (below, above, t))
-    centred = np.abs(below - above) <= 1e-12 * (below + above)
-    z1 = centred_pair_z_air(mode, w, s, 2.0 * below + t, t)
-    z2 = centred_pair_z_air(mode, w, s, 2.0 * above + t, t)
-    zc = centred_pair_z_air(mode, w, s, below + above + t, t)
-    return np.where(centred, zc, 2.0 * z1 * z2 / (z1 + z2))
-
-
-# ---------------------------------------------------------------------------------------
-# the cross-sections
-# ---------------------------------------------------------------------------------------
+#: the validity table (ranges from memory of the 1984 paper; see DEVELOPERS.md)
+LIMITS = (
+    Limit("microstrip-pair (Kirschning-Jansen)", "width/height", 0.1, 10, ("width", ("height",))),
+    Limit(
+        "microstrip-pair (Kirschning-Jansen)", "spacing/height", 0.1, 10, ("spacing", ("height",))
+    ),
+    Limit("microstrip-pair (Kirschning-Jansen)", "dk", 1, 18, value=dk),
+    Limit(
+        "microstrip-pair (Jansen thickness)",
+        "thickness/height",
+        0,
+        0.5,
+        ("thickness", ("height",)),
+    ),
+    Limit(
+        "microstrip-pair dispersion (Kirschning-Jansen)",
+        "frequency x height [GHz mm]",
+        0,
+        15,
+        value=lambda q: q.f * 1e-9 * q.height * 1e3,
+        above_dc=True,
+    ),
+)
 
 
 #: what the zero-thickness warning of a pair names, and the thickness it suggests
@@ -430,9 +348,15 @@ class MicrostripPair(CrossSection):
     thickness: float
     dielectric: Dielectric
     metal: Metal = field(default_factory=Metal)
-    kind = "microstrip-pair"
-    n_conductors = 2
-    dimensions = ("width", "spacing", "height", "thickness")
+    kind: ClassVar[str] = "microstrip-pair"
+    n_conductors: ClassVar[int] = 2
+    dimensions: ClassVar[tuple[str, ...]] = ("width", "spacing", "height", "thickness")
+    limits: ClassVar[tuple[Limit, ...]] = LIMITS
+    search: ClassVar[dict] = {
+        "width": (("height",), 0.01, 100.0),
+        "spacing": (("height",), 0.01, 100.0),
+    }
+    outer_layer: ClassVar[bool] = True
 
     def mode_arrays(
         self,
@@ -446,18 +370,17 @@ class MicrostripPair(CrossSection):
     ) -> dict[str, Mode]:
         w, s, h, t = (np.asarray(x, float) for x in (width, spacing, height, thickness))
         er = eps_r.real
+        dims = {"width": w, "spacing": s, "height": h, "thickness": t}
+        self.check_validity(Quantities(dims, er, f))
         u, g = w / h, s / h
         fn = f * 1e-9 * h * 1e3
-        self._check_validity(u, g, t / h, er, fn)
-        qs = kj_quasi_static(w, s, h, t, er)
+        qs = static_modes(w, s, h, t, er)
         (z_e0, eps_e0), (z_o0, eps_o0) = qs["even"], qs["odd"]
-        eps_ef, eps_of = kj_dispersion_eps(u, g, er, eps_e0, eps_o0, fn)
-        z00, eps0 = hj_quasi_static(w, h, t, er)
-        epsf = kj_eps_eff(u, er, eps0, fn)
-        z0f = jk_z0(u, er, eps0, epsf, z00, fn)
-        z_ef, z_of = kj_dispersion_z(
-            u, g, er, fn, z_e0, z_o0, eps_o0, eps_of, (z00, eps0, z0f, epsf)
-        )
+        eps_ef, eps_of = dispersive_eps(u, g, er, eps_e0, eps_o0, fn)
+        z00, eps0 = quasi_static(w, h, t, er)
+        epsf = eps_eff_dispersive(u, er, eps0, fn)
+        z0f = z0_dispersive(u, er, eps0, epsf, z00, fn)
+        z_ef, z_of = dispersive_z(u, g, er, fn, z_e0, z_o0, eps_o0, eps_of, (z00, eps0, z0f, epsf))
         lossy = strip_loss_modelled(self.kind, t, *_NO_THICKNESS)
         return {
             "even": assemble_mode(
@@ -468,28 +391,11 @@ class MicrostripPair(CrossSection):
             ),
         }
 
-    def _check_validity(
-        self, u: np.ndarray, g: np.ndarray, t_h: np.ndarray, er: np.ndarray, fn: np.ndarray
-    ) -> None:
-        name = "microstrip-pair (Kirschning-Jansen)"
-        check_range(name, "width/height", u, 0.1, 10)
-        check_range(name, "spacing/height", g, 0.1, 10)
-        check_range(name, "dk", er, 1, 18)
-        check_range("microstrip-pair (Jansen thickness)", "thickness/height", t_h, 0, 0.5)
-        if np.any(fn > 0):
-            check_range(
-                "microstrip-pair dispersion (Kirschning-Jansen)",
-                "frequency x height [GHz mm]",
-                fn,
-                0,
-                15,
-            )
-
     def _groups(
         self, mode: str, w: np.ndarray, s: np.ndarray, h: np.ndarray, t: np.ndarray
     ) -> list[ConductorGroup]:
         return strip_and_planes(
-            lambda p: kj_mode_z_air(mode, *p),
+            lambda p: mode_z_air(mode, *p),
             (w, s, h, t),
             ("strips", lambda p, d: (p[0] - 2 * d, p[1] + 2 * d, p[2] + d, p[3] - 2 * d)),
             [("plane", lambda p, d: (p[0], p[1], p[2] + d, p[3]))],
@@ -498,88 +404,9 @@ class MicrostripPair(CrossSection):
             self.metal,
         )
 
+    @classmethod
+    def field_geometry(cls, dims: Mapping[str, float], options) -> Geometry:
+        """The cross-section for the field solver: the two strips on one layer over the plane."""
+        from losslane.xsection.fieldsolve.layouts import over_plane
 
-@dataclass(frozen=True)
-class StriplinePair(CrossSection):
-    """Two strips of ``width`` and ``thickness``, ``spacing`` apart (edge to edge), with
-    ``below`` and ``above`` the distances from their lower and upper faces to the lower and
-    upper planes (equal: centred), in a homogeneous ``dielectric``. Lengths in metres."""
-
-    width: float
-    spacing: float
-    below: float
-    above: float
-    thickness: float
-    dielectric: Dielectric
-    metal: Metal = field(default_factory=Metal)
-    kind = "stripline-pair"
-    n_conductors = 2
-    dimensions = ("width", "spacing", "below", "above", "thickness")
-
-    def mode_arrays(
-        self,
-        f: np.ndarray,
-        eps_r: np.ndarray,
-        *,
-        width: ArrayLike,
-        spacing: ArrayLike,
-        below: ArrayLike,
-        above: ArrayLike,
-        thickness: ArrayLike,
-    ) -> dict[str, Mode]:
-        p0 = tuple(np.asarray(x, float) for x in (width, spacing, below, above, thickness))
-        self._check_validity(*p0)
-        er = eps_r.real
-        lossy = strip_loss_modelled(self.kind, p0[4], *_NO_THICKNESS)
-        out = {}
-        for mode in MODES:
-            z_air = stripline_pair_z_air(mode, *p0)
-            out[mode] = assemble_mode(
-                mode,
-                f,
-                eps_r,
-                er,
-                z_air / np.sqrt(er),
-                self._groups(mode, *p0) if lossy else [],
-                q=np.ones(er.shape),
-            )
-        return out
-
-    @staticmethod
-    def _check_validity(
-        w: np.ndarray, s: np.ndarray, lo: np.ndarray, hi: np.ndarray, t: np.ndarray
-    ) -> None:
-        b = lo + hi + t
-        name = "stripline-pair (Cohn thickness correction)"
-        check_range(name, "thickness/plane spacing", t / b, 0, 0.1)
-        check_range(name, "thickness/width", t / w, 0, 0.2)
-        check_range(
-            "offset stripline-pair",
-            "width/(plane spacing - thickness)",
-            w / (b - t),
-            0.35,
-            None,
-            where=np.abs(lo - hi) > 1e-9 * b,
-        )
-
-    def _groups(
-        self,
-        mode: str,
-        w: np.ndarray,
-        s: np.ndarray,
-        lo: np.ndarray,
-        hi: np.ndarray,
-        t: np.ndarray,
-    ) -> list[ConductorGroup]:
-        return strip_and_planes(
-            lambda p: stripline_pair_z_air(mode, *p),
-            (w, s, lo, hi, t),
-            ("strips", lambda p, d: (p[0] - 2 * d, p[1] + 2 * d, p[2] + d, p[3] + d, p[4] - 2 * d)),
-            [
-                ("lower plane", lambda p, d: (p[0], p[1], p[2] + d, p[3], p[4])),
-                ("upper plane", lambda p, d: (p[0], p[1], p[2], p[3] + d, p[4])),
-            ],
-            np.minimum(np.minimum(np.minimum(w, s), np.minimum(lo, hi)), t),
-            w * t,
-            self.metal,
-        )
+        return over_plane(dims, options, pair=True)

@@ -1,6 +1,8 @@
-"""PNG plots of a channel's S-parameters: insertion loss and return loss in dB vs GHz.
+"""What every chart shares: matplotlib on the Agg backend, dB curves against GHz with
+vertical markers, and saving a figure atomically.
 
-matplotlib is imported inside the functions (Agg backend, no display needed).
+matplotlib is imported inside the functions (Agg backend, no display needed), so
+importing this module costs nothing.
 """
 
 from __future__ import annotations
@@ -10,6 +12,8 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
+
+from losslane.atomic import write_atomic
 
 
 @dataclass(frozen=True)
@@ -113,14 +117,18 @@ def db_plot(
         color="0.45",
     )
     fig.tight_layout()
-    return save_png(fig, path, plt)
+    try:
+        return save_figure(fig, path)
+    finally:
+        plt.close(fig)
 
 
-def save_png(fig, path: Path, plt) -> Path:
+def save_figure(fig, path: Path | str, dpi: float | None = None) -> Path:
+    """Write ``fig`` to ``path`` (its suffix names the format: .png, .svg, .pdf)
+    atomically; the caller closes the figure."""
     path = Path(path)
-    fig.savefig(path, format="png")
-    plt.close(fig)
-    return path
+    fmt = path.suffix.lower()[1:] or "png"
+    return write_atomic(path, lambda tmp: fig.savefig(tmp, format=fmt, dpi=dpi or "figure"))
 
 
 def to_db(x: np.ndarray) -> np.ndarray:
