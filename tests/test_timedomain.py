@@ -491,3 +491,35 @@ def test_bad_input_is_named():
         impedance_profile(F40, s[:, :2, 0])
     with pytest.raises(LossLaneError, match="z_ref"):
         impedance_profile(F40, s[:, 0, 0], z_ref=-50)
+
+
+def test_file_written_by_scikit_rf_from_its_own_media(tmp_path):
+    # an independent network: scikit-rf's DefinedGammaZ0 lines (50, 65, 50 ohm, lossless
+    # TEM, eps = Dk) cascaded by scikit-rf, written to and read from a Touchstone file,
+    # starting at 10 MHz as measured files do. IEEE 370-2020 metrics: 100, 100, good; the
+    # lattice diagram: the 65-ohm section from the round trip 2 tau_lead on
+    import skrf
+    from skrf.media import DefinedGammaZ0
+
+    from losslane.network.quality import quality
+
+    f = F40[1:]
+    freq = skrf.Frequency.from_f(f, unit="Hz")
+    gamma = 2j * np.pi * f * DELAY_PER_M
+    lines = [
+        DefinedGammaZ0(freq, z0_port=50.0, z0=z, gamma=gamma).line(length, unit="m")
+        for z, length in ((50.0, 2 * INCH), (65.0, 1 * INCH), (50.0, 2 * INCH))
+    ]
+    skrf.network.cascade_list(lines).write_touchstone(str(tmp_path / "steps"))
+    net = skrf.Network(str(tmp_path / "steps.s2p"))
+    q = quality(net.f, net.s)
+    assert (q.passivity, q.reciprocity) == (100.0, 100.0)
+    assert q.causality_level == "good", q.causality
+    rep = time_domain(net.f, net.s, 50.0)
+    assert any("extrapolated" in n for n in rep.notes)
+    p = rep.tdr[0]
+    t, tr = p.time_s, p.rise_time_s
+    t1, t2 = 4 * INCH * DELAY_PER_M, 6 * INCH * DELAY_PER_M
+    inside = (t > t1 + 3 * tr) & (t < t2 - 3 * tr)
+    np.testing.assert_allclose(p.impedance_ohm[inside], 65.0, rtol=0.003)
+    assert rep.step[0].delay_s == pytest.approx(5 * INCH * DELAY_PER_M, abs=t[1] - t[0])
