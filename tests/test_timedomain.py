@@ -351,9 +351,10 @@ def test_dc_point_is_the_estimate_of_scikit_rf():
 
 
 def test_data_from_10_mhz_give_the_profile_of_the_data_with_dc():
-    # stated tolerance: a file starting at 10 MHz gives the impedance profile of the same
-    # data with their true DC point within 0.15 ohm (0.3 % of 50 ohm; measured 0.08 ohm,
-    # all of it in the late, DC-set level) and the same delay within one time step
+    # stated tolerance: a file starting at 10 MHz gives the impedance profiles of the same
+    # data with their true DC point within 0.02 ohm over the profiles' span (measured
+    # 0.003 ohm; the DC-set level long after the channel's round trip differs by 0.08 ohm)
+    # and the same delay within one time step
     net = _lossy_channel(F40)
     full = time_domain(F40, net.s, 50.0)
     cut = time_domain(F40[1:], net.s[1:], 50.0)
@@ -362,7 +363,7 @@ def test_data_from_10_mhz_give_the_profile_of_the_data_with_dc():
     for a, b in zip(full.tdr, cut.tdr, strict=True):
         n = min(a.time_s.size, b.time_s.size)
         np.testing.assert_array_equal(a.time_s[:n], b.time_s[:n])
-        assert np.max(np.abs(a.impedance_ohm[:n] - b.impedance_ohm[:n])) < 0.15
+        assert np.max(np.abs(a.impedance_ohm[:n] - b.impedance_ohm[:n])) < 0.02
     dt = full.step[0].time_s[1] - full.step[0].time_s[0]
     assert cut.step[0].delay_s == pytest.approx(full.step[0].delay_s, abs=dt)
 
