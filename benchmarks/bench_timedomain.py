@@ -33,7 +33,7 @@ def _channel(f: np.ndarray) -> np.ndarray:
     from losslane.materials.dielectric import WidebandDebye
     from losslane.network import LineSegment, SeriesCapacitor, Via, build_network
     from losslane.units import INCH, MIL
-    from losslane.xsection.coupled import StriplinePair
+    from losslane.xsection import StriplinePair
 
     core = WidebandDebye(3.7, 0.009, 10e9)
     pair = StriplinePair(

@@ -19,8 +19,7 @@ from losslane.network.quality import (
     quality_level,
 )
 from losslane.units import INCH, MIL
-from losslane.xsection import Microstrip, Stripline
-from losslane.xsection.coupled import StriplinePair
+from losslane.xsection import Microstrip, Stripline, StriplinePair
 
 N = 200
 F = np.linspace(0.0, 20e9, N)

@@ -31,8 +31,7 @@ from losslane.network.timedomain import (
     uniform_spectrum,
 )
 from losslane.units import INCH, MIL
-from losslane.xsection import Microstrip, Stripline
-from losslane.xsection.coupled import StriplinePair
+from losslane.xsection import Microstrip, Stripline, StriplinePair
 from losslane.xsection.rlgc import C0
 
 pytestmark = pytest.mark.filterwarnings("ignore:stripline.* thickness = 0")
@@ -409,7 +408,7 @@ def test_differential_profile_of_a_coupled_pair_is_its_odd_mode_impedance_double
         thickness=0.0,
         dielectric=LOSSLESS,
     )
-    z_diff = pair.properties(np.array([1e9]))["z_diff_ohm"][0]
+    z_diff = float(pair.line_values(np.array([1e9])).impedance[0])
     length = 3 * INCH
     net = build_network([LineSegment(pair, length)], F40, 50.0)
     rep = time_domain(F40, net.s, 50.0)

@@ -51,7 +51,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from losslane.errors import LossLaneError, warn
-from losslane.network.blocks import linear_interpolation
+from losslane.network.imported import linear_interpolation
 from losslane.network.ports import DEFAULT_ORDER, check_order, from_order, port_permutation
 
 __all__ = [
