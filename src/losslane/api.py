@@ -293,7 +293,7 @@ def size(
     floss = parse_frequency_list(loss_at, where.key("loss_at")) if loss_at else None
     lib = _library(library_files)
     options = dict(options)
-    _placeholder(kind, options, vary, where, "losslane size")
+    _placeholder(kind, options, vary, where, "losslane size" if where.cli else "size()")
     sec = _make_section(kind, options, where, lib)
     return size_(sec, z, at=f0, vary=vary, loss_at=floss, where=where)
 
@@ -345,7 +345,7 @@ def compare(
         )
     mats = {n: lib.dielectric(n, k("materials")) for n in _names(materials, k("materials"))}
     options = dict(options, dielectric=next(iter(mats.values())))
-    _placeholder(kind, options, "width", where, "losslane compare")
+    _placeholder(kind, options, "width", where, "losslane compare" if where.cli else "compare()")
     sec = _make_section(kind, options, where, lib)
     if foils is not None:
         if options.get("foil") or options.get("roughness_model"):
