@@ -244,6 +244,29 @@ class CrossSection:
         check_limits(self.limits, q)
 
     @classmethod
+    def dimensions_from_spec(cls, spec: Mapping, where) -> dict[str, float]:
+        """The dimensions (metres) of a user's spec: each key of ``dimensions`` as a length
+        (> 0; a thickness >= 0). A kind with other kinds of keys (a list of traces, say)
+        overrides this; the factory checks the keys against ``spec_keys`` first."""
+        from losslane.spec import key_name, quantity
+
+        out: dict[str, float] = {}
+        for key in cls.dimensions:
+            out[key] = quantity(where, spec, key, "length")
+            bad = out[key] < 0 if key in MAY_BE_ZERO else out[key] <= 0
+            if bad:
+                bound = ">= 0" if key in MAY_BE_ZERO else "> 0"
+                raise LossLaneError(
+                    f"{key_name(where, key)} = {spec[key]!r}: a {cls.kind} needs {key} {bound}"
+                )
+        return out
+
+    @classmethod
+    def spec_keys(cls) -> tuple[str, ...]:
+        """The keys of a user's spec that describe the geometry (required)."""
+        return cls.dimensions
+
+    @classmethod
     def size_bounds(cls, vary: str, dims: Mapping[str, float]) -> tuple[float, str] | None:
         """An upper bound on dimension ``vary`` (m) beyond which the model refuses the
         input (not a validity range: those are in ``limits``), with its reason; None."""

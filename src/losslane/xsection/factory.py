@@ -33,7 +33,8 @@ SOLVERS = ("closed-form", "field")
 
 def spec_keys(cls: type[CrossSection], solver: str = "closed-form") -> tuple[str, ...]:
     """The keys a spec of kind ``cls`` accepts (without the note)."""
-    return ("kind",) + cls.dimensions + MATERIAL_KEYS + (EXTRA_KEYS if solver == "field" else ())
+    extra = EXTRA_KEYS if solver == "field" else ()
+    return ("kind",) + cls.spec_keys() + MATERIAL_KEYS + extra
 
 
 def section_from_spec(
@@ -53,16 +54,8 @@ def section_from_spec(
     solver = text(where, spec, "solver", SOLVERS, "closed-form")
     cli = isinstance(where, Where) and where.cli
     allowed = spec_keys(cls, solver) + (() if cli else (NOTE_KEY,))
-    check_keys(where, spec, allowed, required=cls.dimensions + ("dielectric",))
-    geometry: dict[str, float] = {}
-    for key in cls.dimensions:
-        geometry[key] = quantity(where, spec, key, "length")
-        bad = geometry[key] < 0 if key == "thickness" else geometry[key] <= 0
-        if bad:
-            bound = ">= 0" if key == "thickness" else "> 0"
-            raise LossLaneError(
-                f"{key_name(where, key)} = {spec[key]!r}: a {kind} needs {key} {bound}"
-            )
+    check_keys(where, spec, allowed, required=cls.spec_keys() + ("dielectric",))
+    geometry = cls.dimensions_from_spec(spec, where)
     diel = spec["dielectric"]
     d = (
         diel
