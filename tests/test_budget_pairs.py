@@ -12,9 +12,9 @@ from network_channels import pair_channel
 
 from losslane.budget import evaluate_budget, fit_channel
 from losslane.channel import ChannelResult
-from losslane.network.cascade import cascade_scaled
+from losslane.network.cascade import cascade_steps
 from losslane.network.mixedmode import ONE_PAIR
-from losslane.network.scaled import abcd_to_s
+from losslane.network.scatter import loss_db
 from losslane.scenario import Budget, Check, Ports
 
 F = np.linspace(50e6, 20e9, 400)  # 50 MHz steps: 8 GHz is on the grid
@@ -23,8 +23,6 @@ F = np.linspace(50e6, 20e9, 400)  # 50 MHz steps: 8 GHz is on the grid
 @pytest.fixture(scope="module")
 def pair_result():
     blocks = pair_channel(F)
-    items = [b.scaled_abcd(F) for b in blocks]
-    chain = cascade_scaled(items)
     budget = Budget(16e9, "nrz", 20.0, (Check(F[100], 10.0, 8.0),))
     scenario = SimpleNamespace(
         name="pair",
@@ -32,8 +30,10 @@ def pair_result():
         channel=[SimpleNamespace(type=b.kind) for b in blocks],
         ports=Ports(50.0, "in-in-out-out"),
     )
-    s = abcd_to_s(chain, 50.0)
-    return ChannelResult(scenario, F, blocks, items, chain, s, ONE_PAIR), blocks
+    steps = list(cascade_steps(blocks, F, 50.0))
+    seg = np.array([loss_db(sb) for sb, _ in steps])
+    cum = np.array([loss_db(s) for _, s in steps])
+    return ChannelResult(scenario, F, blocks, steps[-1][1], seg, cum, ONE_PAIR), blocks
 
 
 def _dd(s4: np.ndarray) -> skrf.Network:

@@ -16,13 +16,13 @@ import numpy as np
 
 from losslane.errors import LossLaneError
 from losslane.network.block import Block
-from losslane.network.cascade import cascade_scaled, to_network
+from losslane.network.cascade import cascade_steps, to_network
 from losslane.network.imported import TouchstoneBlock
 from losslane.network.line import LineSegment, UniformLine
 from losslane.network.lumped import SeriesCapacitor, SeriesRL, ShuntCapacitor
 from losslane.network.mixedmode import ONE_PAIR, MixedMode, mixed_mode_internal
 from losslane.network.ports import port_names, to_order
-from losslane.network.scaled import ScaledABCD, abcd_to_s, forward_transmission, scaled_db
+from losslane.network.scatter import loss_db
 from losslane.network.via import Via
 from losslane.scenario import Scenario, Segment
 
@@ -58,22 +58,21 @@ class ChannelResult:
 
     ``s``: the S-parameters (N, 2n, 2n) in the internal port order (near ends first);
     ``network``: the same as a skrf.Network with the ports in the scenario's order;
-    ``items``: each block's scaled chain matrix on ``f``, ``chain`` their cascade;
     ``pairs``: the conductors judged as differential pairs (none for a single-ended
     channel); ``mixed_mode``: their mixed-mode S; ``segment_loss_db``: each segment
     alone between matched references, insertion loss in dB (positive), (K, N);
     ``cumulative_loss_db``: loss from the input through segment k, (K, N);
     ``insertion_loss_db``: the whole channel's, (N,). For a differential channel the
-    losses are the differential mode. Everything derived is computed once, when first
-    asked for, so a build that needs none of it does not pay for it.
+    losses are the differential mode. Losses beyond 6000 dB read 6000 dB (|S21| below
+    1e-300). What is derived from ``s`` is computed once, when first asked for.
     """
 
     scenario: Scenario
     f: np.ndarray
     blocks: list[Block]
-    items: list[ScaledABCD] = field(repr=False)
-    chain: ScaledABCD = field(repr=False)
     s: np.ndarray = field(repr=False)
+    segment_loss_db: np.ndarray = field(repr=False)
+    cumulative_loss_db: np.ndarray = field(repr=False)
     pairs: tuple[tuple[int, int], ...] = ()
     warnings: list[str] = field(default_factory=list)
 
@@ -84,6 +83,11 @@ class ChannelResult:
     @property
     def nports(self) -> int:
         return self.s.shape[1]
+
+    @property
+    def insertion_loss_db(self) -> np.ndarray:
+        """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
+        return self.cumulative_loss_db[-1]
 
     @cached_property
     def network(self):
@@ -102,27 +106,6 @@ class ChannelResult:
         return mixed_mode_internal(self.s, self.scenario.ports.reference, self.pairs)
 
     @cached_property
-    def segment_loss_db(self) -> np.ndarray:
-        z_ref = self.scenario.ports.reference
-        return np.array([_loss_db(it, z_ref) for it in self.items])
-
-    @cached_property
-    def cumulative_loss_db(self) -> np.ndarray:
-        z_ref = self.scenario.ports.reference
-        cum = []
-        acc = None
-        for it in self.items[:-1]:
-            acc = it if acc is None else acc @ it
-            cum.append(_loss_db(acc, z_ref))
-        cum.append(self.insertion_loss_db)  # through the last segment: the whole channel
-        return np.array(cum)
-
-    @cached_property
-    def insertion_loss_db(self) -> np.ndarray:
-        """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
-        return _loss_db(self.chain, self.scenario.ports.reference)
-
-    @cached_property
     def return_loss(self) -> tuple[np.ndarray, np.ndarray]:
         """Return loss (positive dB) of the main mode at the input and at the output, (N,)
         each: |S11|, |S22| of a single-ended channel, |Sdd11|, |Sdd22| of a pair."""
@@ -135,35 +118,21 @@ class ChannelResult:
             return tuple(-20.0 * np.log10(np.maximum(np.abs(x), 1e-300)) for x in (s11, s22))
 
 
-def _loss_db(chain: ScaledABCD, z_ref: float) -> np.ndarray:
-    """Insertion loss (positive dB) of the main mode between matched references: S21 of a
-    single-ended channel, the differential-mode Sdd21 of a pair; in the log domain, so a
-    channel whose transmission underflows still reports its dB."""
-    x21, log_scale = forward_transmission(chain, z_ref)
-    if chain.n == 1:
-        return -scaled_db(x21[:, 0, 0], log_scale)
-    # Sdd21 = (S31 - S32 - S41 + S42) / 2, the mixed-mode transform (see mixedmode.py)
-    sdd21 = 0.5 * (x21[:, 0, 0] - x21[:, 0, 1] - x21[:, 1, 0] + x21[:, 1, 1])
-    return -scaled_db(sdd21, log_scale)
-
-
 def build_channel(scenario: Scenario) -> ChannelResult:
     """Cascade the scenario's channel on its sweep: each [lines.*] section used by a
-    segment is evaluated once and shared by its segments."""
+    segment is evaluated once and shared by its segments; each block's own loss and the
+    loss through it are taken as the cascade goes, so no block's S is kept."""
     f = scenario.frequencies()
     n = scenario.conductors
     order = scenario.ports.order
     used = dict.fromkeys(seg.line for seg in scenario.channel if seg.type == "line")
     lines = {name: UniformLine.from_rlgc(scenario.lines[name].rlgc(f)) for name in used}
     blocks = [make_block(seg, n, order, lines) for seg in scenario.channel]
-    items = [b.scaled_abcd(f) for b in blocks]
-    for k, it in enumerate(items):
-        if it.n != n:
-            raise LossLaneError(
-                f"{scenario.channel[k].where}: the segment has {it.n} conductor(s) but the "
-                f"channel has {n}"
-            )
-    chain = cascade_scaled(items)
-    s = abcd_to_s(chain, scenario.ports.reference)
+    seg_loss = np.empty((len(blocks), f.size))
+    cum_loss = np.empty((len(blocks), f.size))
+    s = None
+    for k, (s_block, s) in enumerate(cascade_steps(blocks, f, scenario.ports.reference)):
+        seg_loss[k] = loss_db(s_block)
+        cum_loss[k] = loss_db(s)
     pairs = ONE_PAIR if n == 2 else ()
-    return ChannelResult(scenario, f, blocks, items, chain, s, pairs)
+    return ChannelResult(scenario, f, blocks, s, seg_loss, cum_loss, pairs)

@@ -24,7 +24,7 @@ import numpy as np
 from losslane.errors import LossLaneError
 from losslane.network.scaled import ScaledABCD, abcd_to_s, block_diagonal_legs
 
-__all__ = ["Block", "conductors", "legs", "length_value", "nonnegative"]
+__all__ = ["Block", "conductors", "legs", "legs_s", "length_value", "nonnegative"]
 
 
 class Block:
@@ -80,3 +80,16 @@ def legs(leg: ScaledABCD, n: int) -> ScaledABCD:
     if n == 1:
         return leg
     return ScaledABCD.reciprocal(block_diagonal_legs(leg.matrix, n), leg.log_scale)
+
+
+def legs_s(leg: ScaledABCD, n: int, z_ref: float) -> np.ndarray:
+    """S (N, 2n, 2n), internal port order, of the single-conductor block ``leg`` repeated in
+    each of ``n`` uncoupled legs (the leg's 2-port S placed on each conductor's ports)."""
+    s2 = abcd_to_s(leg, z_ref)
+    if n == 1:
+        return s2
+    out = np.zeros((s2.shape[0], 2 * n, 2 * n), dtype=complex)
+    for i in range(n):
+        for a, b in ((0, 0), (0, 1), (1, 0), (1, 1)):
+            out[:, i + a * n, i + b * n] = s2[:, a, b]
+    return out

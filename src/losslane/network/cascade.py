@@ -22,7 +22,7 @@ near ends, n+1..2n far ends); :func:`build_network` reorders to the requested or
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from typing import TYPE_CHECKING, Protocol
 
 import numpy as np
@@ -30,6 +30,7 @@ import numpy as np
 from losslane.errors import LossLaneError
 from losslane.network.ports import DEFAULT_ORDER, port_names, port_permutation, to_order
 from losslane.network.scaled import ScaledABCD, abcd_to_s, cascade_items, transmission_db
+from losslane.network.scatter import renormalize, star
 
 if TYPE_CHECKING:
     import skrf
@@ -40,6 +41,7 @@ __all__ = [
     "build_network",
     "cascade",
     "cascade_scaled",
+    "cascade_steps",
     "check_sweep",
     "to_network",
     "transmission_db",
@@ -53,6 +55,8 @@ class BlockLike(Protocol):
     length: float
 
     def scaled_abcd(self, f: np.ndarray) -> ScaledABCD: ...
+
+    def s(self, f: np.ndarray, z_ref: float = 50.0) -> np.ndarray: ...
 
 
 def check_sweep(f, key: str = "sweep") -> np.ndarray:
@@ -144,6 +148,38 @@ def _port_refs(z_ref, n: int, order: str) -> np.ndarray:
     return z[..., inv]
 
 
+def cascade_steps(
+    blocks: Sequence[BlockLike | ScaledABCD], f, z_ref: float = 50.0
+) -> Iterator[tuple[np.ndarray, np.ndarray]]:
+    """For each block in order from the near end: (its own S, the S of the cascade
+    through it), (N, 2n, 2n) each in the internal port order, every port referred to the
+    real ``z_ref``. The cascade is the star product of the blocks' S (see
+    :mod:`losslane.network.scatter` for why), each block's S from its own ``s(f, z_ref)``
+    (a line splits itself into pieces of bounded loss; an imported file renormalises its
+    own S), so any loss stays passive and reciprocal to rounding.
+    """
+    f = check_sweep(f)
+    if not blocks:
+        raise LossLaneError("channel: there are no segments to cascade")
+    n0 = blocks[0].n
+    total = None
+    for k, b in enumerate(blocks):
+        if b.n != n0:
+            label = getattr(b, "name", "") or f"segment {k + 1}"
+            raise LossLaneError(
+                f"channel: segment {k + 1} ({label!r}) has {b.n} signal conductor(s) but "
+                f"the first segment has {n0}; a channel is all single-ended (2-port) or "
+                "all differential pairs (4-port)"
+            )
+        sb = abcd_to_s(b, z_ref) if isinstance(b, ScaledABCD) else b.s(f, z_ref)
+        if sb.shape[0] != f.size:
+            raise LossLaneError(
+                f"channel: segment {k + 1} gives {sb.shape[0]} points, the sweep has {f.size}"
+            )
+        total = sb if total is None else star(total, sb)
+        yield sb, total
+
+
 def build_network(
     blocks: Sequence[BlockLike | ScaledABCD],
     f,
@@ -156,13 +192,17 @@ def build_network(
     ``z_ref``: the reference impedance of every single-ended port (real; a scalar, or
     per port in ``order``). Ports: for n = 1, 1 = near end, 2 = far end; for n = 2 as
     ``order`` says ("in-in-out-out" or "in-out-in-out"). The network's ``port_names``
-    are "in"/"out" or "in1", "in2", "out1", "out2" in that order.
+    are "in"/"out" or "in1", "in2", "out1", "out2" in that order. The cascade is formed
+    at one reference (the first port's) and the result renormalised to ``z_ref``.
     """
-    chain = cascade(blocks, f)
-    n = chain.n
-    s = abcd_to_s(chain, _port_refs(z_ref, n, order))
-    z_out = np.asarray(z_ref, float)
-    return to_network(to_order(s, n, order), f, z_out, name, port_names(n, order))
+    z = np.asarray(z_ref, float)
+    z_common = float(z.flat[0])
+    for step in cascade_steps(blocks, f, z_common):
+        s = step[1]
+    n = s.shape[-1] // 2
+    if z.ndim:
+        s = renormalize(s, z_common, _port_refs(z, n, order))
+    return to_network(to_order(s, n, order), f, z, name, port_names(n, order))
 
 
 def block_network(

@@ -12,6 +12,7 @@ from losslane.network.block import Block, conductors
 from losslane.network.cascade import check_sweep
 from losslane.network.ports import DEFAULT_ORDER, check_order, port_permutation
 from losslane.network.scaled import ScaledABCD, s_to_scaled_abcd
+from losslane.network.scatter import renormalize
 
 __all__ = ["TouchstoneBlock", "linear_interpolation"]
 
@@ -167,3 +168,8 @@ class TouchstoneBlock(Block):
     def scaled_abcd(self, f: np.ndarray) -> ScaledABCD:
         s, z = self.sampled(f)
         return s_to_scaled_abcd(s, z)
+
+    def s(self, f: np.ndarray, z_ref: float = 50.0) -> np.ndarray:
+        """The file's S on ``f`` in the internal port order, renormalised to ``z_ref``."""
+        s, z = self.sampled(f)
+        return renormalize(s, z, z_ref)

@@ -26,7 +26,8 @@ import numpy as np
 from losslane.errors import LossLaneError
 from losslane.network.block import Block, length_value
 from losslane.network.cascade import check_sweep
-from losslane.network.scaled import ScaledABCD
+from losslane.network.scaled import ScaledABCD, abcd_to_s
+from losslane.network.scatter import star
 from losslane.xsection.rlgc import RLGC
 
 __all__ = [
@@ -39,6 +40,11 @@ __all__ = [
 
 _SERIES_LIMIT = 0.05
 """|x| below which sinhc(x) is summed as a series (error < x^10/11! ~ 3e-21)."""
+
+PIECE_NEPER = 4.0
+"""Largest modal attenuation of one piece when a multiconductor line forms its S from
+pieces: the weakest mode then sits at most exp(-4) below the strongest in the piece's
+chain matrix, so rounding leaves it intact."""
 
 
 def scaled_cosh_sinhc(x: np.ndarray, shift: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -141,34 +147,84 @@ class UniformLine:
 
     rlgc: RLGC
     constants: tuple
+    #: with known modes (``RLGC.transform``): each mode's series and shunt constants,
+    #: (N, n) each
+    mode_zy: tuple | None = None
 
     @classmethod
     def from_rlgc(cls, rlgc: RLGC) -> UniformLine:
         if rlgc.n == 1:
             z, y = rlgc.z()[:, 0, 0], rlgc.y()[:, 0, 0]
             return cls(rlgc, (z, y, np.sqrt(z * y)))
-        return cls(rlgc, modal_decomposition(rlgc.z(), rlgc.y(), rlgc.transform))
+        constants = modal_decomposition(rlgc.z(), rlgc.y(), rlgc.transform)
+        mode_zy = None
+        if rlgc.transform is not None:
+            t = rlgc.transform
+            z, y = constants[0], constants[1]
+            mode_zy = (np.einsum("ik,fij,jk->fk", t, z, t), np.einsum("ik,fij,jk->fk", t, y, t))
+        return cls(rlgc, constants, mode_zy)
 
     @property
     def n(self) -> int:
         return self.rlgc.n
 
+    def s(self, length: float, z_ref: float = 50.0) -> np.ndarray:
+        """S (N, 2n, 2n), internal port order, of ``length`` metres between ``z_ref``.
+
+        One conductor: from the chain matrix, exact for any loss. Known modes (a
+        symmetric pair, ``RLGC.transform`` T): each mode is a single line, its 2-port S
+        exact for any loss, and S = Q S_modes Q^T with Q = diag(T, T) (every port at the
+        same real reference, so the orthonormal T carries power waves unchanged). Other
+        lines: the chain matrix of 2^-k of the length, whose modes' attenuation is at most
+        PIECE_NEPER, in S, then k star-product squarings (S of 2L = S(L) * S(L)); the modes
+        keep their own accuracy whatever their loss (see :mod:`losslane.network.scatter`).
+        """
+        if self.n == 1:
+            return abcd_to_s(self.scaled_abcd(length), z_ref)
+        n = self.n
+        if self.mode_zy is not None:
+            # each n x n block of S is T diag(that entry of each mode's 2-port S) T^T
+            t = self.rlgc.transform
+            z_modes, y_modes = self.mode_zy
+            out = np.zeros((z_modes.shape[0], 2 * n, 2 * n), dtype=complex)
+            for m in range(n):
+                zm, ym = z_modes[:, m], y_modes[:, m]
+                s2 = abcd_to_s(single_line_abcd(zm, ym, np.sqrt(zm * ym), length), z_ref)
+                outer = np.outer(t[:, m], t[:, m])
+                for a in (0, 1):
+                    for b in (0, 1):
+                        out[:, a * n : (a + 1) * n, b * n : (b + 1) * n] += (
+                            s2[:, a, b, None, None] * outer
+                        )
+            return out
+        alpha = np.max(np.abs(np.sqrt(self.constants[2]).real)) * length
+        k = int(np.ceil(np.log2(alpha / PIECE_NEPER))) if alpha > PIECE_NEPER else 0
+        s = abcd_to_s(self.scaled_abcd(length / 2.0**k), z_ref)
+        for _ in range(k):
+            s = star(s, s)
+        return s
+
     def scaled_abcd(self, length: float) -> ScaledABCD:
         """Scaled chain matrix (with its reverse) of ``length`` metres of this line."""
         if self.n == 1:
-            z, y, gamma = self.constants
-            gl = gamma * length
-            s = np.abs(gl.real)
-            ch, shc = scaled_cosh_sinhc(gl, s)
-            # built frequency-last, the layout the cascade multiplies in
-            stack = np.empty((2, 2) + z.shape, dtype=complex)
-            stack[0, 0] = stack[1, 1] = ch
-            stack[0, 1] = z * (length * shc)
-            stack[1, 0] = y * (length * shc)
-            return ScaledABCD.reciprocal_stack(stack, s)
+            return single_line_abcd(*self.constants, length)
         z, y = self.constants[0], self.constants[1]
         m, s = modal_scaled_abcd(z, y, length, decomposition=self.constants)
         return ScaledABCD.reciprocal(m, s)
+
+
+def single_line_abcd(z: np.ndarray, y: np.ndarray, gamma: np.ndarray, length: float) -> ScaledABCD:
+    """Scaled chain matrix of ``length`` of a single line of series ``z``, shunt ``y`` and
+    propagation constant ``gamma`` per metre ((N,) each)."""
+    gl = gamma * length
+    s = np.abs(gl.real)
+    ch, shc = scaled_cosh_sinhc(gl, s)
+    # built frequency-last, the layout the cascade multiplies in
+    stack = np.empty((2, 2) + z.shape, dtype=complex)
+    stack[0, 0] = stack[1, 1] = ch
+    stack[0, 1] = z * (length * shc)
+    stack[1, 0] = y * (length * shc)
+    return ScaledABCD.reciprocal_stack(stack, s)
 
 
 def line_scaled_abcd(rlgc: RLGC, length: float) -> ScaledABCD:
@@ -226,3 +282,6 @@ class LineSegment(Block):
 
     def scaled_abcd(self, f: np.ndarray) -> ScaledABCD:
         return self.line(f).scaled_abcd(self.length)
+
+    def s(self, f: np.ndarray, z_ref: float = 50.0) -> np.ndarray:
+        return self.line(f).s(self.length, z_ref)

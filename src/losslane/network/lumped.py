@@ -8,7 +8,7 @@ from __future__ import annotations
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.network.block import Block, conductors, legs, nonnegative
+from losslane.network.block import Block, conductors, legs, legs_s, nonnegative
 from losslane.network.cascade import check_sweep
 from losslane.network.scaled import ScaledABCD, block_diagonal_legs
 
@@ -25,6 +25,9 @@ class _Lumped(Block):
 
     def scaled_abcd(self, f: np.ndarray) -> ScaledABCD:
         return legs(self._leg(check_sweep(f)), self.n)
+
+    def s(self, f: np.ndarray, z_ref: float = 50.0) -> np.ndarray:
+        return legs_s(self._leg(check_sweep(f)), self.n, z_ref)
 
 
 def _series(z: np.ndarray) -> ScaledABCD:

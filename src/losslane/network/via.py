@@ -5,7 +5,7 @@ from __future__ import annotations
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.network.block import Block, conductors, legs, length_value, nonnegative
+from losslane.network.block import Block, conductors, legs, legs_s, length_value, nonnegative
 from losslane.network.cascade import check_sweep
 from losslane.network.line import line_scaled_abcd
 from losslane.network.scaled import ScaledABCD
@@ -108,3 +108,6 @@ class Via(Block):
 
     def scaled_abcd(self, f: np.ndarray) -> ScaledABCD:
         return legs(self._leg(check_sweep(f)), self.n)
+
+    def s(self, f: np.ndarray, z_ref: float = 50.0) -> np.ndarray:
+        return legs_s(self._leg(check_sweep(f)), self.n, z_ref)
