@@ -161,7 +161,8 @@ def test_touchstone_block_interpolates_with_scikit_rf(tmp_path):
 
 
 def test_non_reciprocal_file_cascades_like_scikit_rf(tmp_path):
-    # an isolator-like 2-port (S12 = 0): the reverse chain must carry it exactly
+    # an isolator-like 2-port (S12 = 0), accepted as it is (a non-reciprocal file is
+    # refused by default): the cascade must carry it exactly
     import skrf
 
     f = np.linspace(1e9, 10e9, 10)
@@ -173,7 +174,7 @@ def test_non_reciprocal_file_cascades_like_scikit_rf(tmp_path):
     n = f.size
     rl = RLGC.single(f, np.full(n, 5.0), np.full(n, 300e-9), np.zeros(n), np.full(n, 125e-12))
     line = LineSegment(rl, 0.2)
-    ours = build_network([line, TouchstoneBlock(path), line], f, Z0)
+    ours = build_network([line, TouchstoneBlock(path, as_is=True), line], f, Z0)
     ln = block_network(line, f, Z0)
     ref = skrf.network.cascade_list([ln, iso, ln])
     assert np.max(np.abs(ours.s - ref.s)) < 1e-12
@@ -245,5 +246,8 @@ def test_non_passive_file_is_flagged(tmp_path):
     s = np.zeros((3, 2, 2), complex)
     s[:, 1, 0] = s[:, 0, 1] = 1.2
     path = write_touchstone(to_network(s, f, Z0, "gain"), tmp_path / "gain.s2p")
-    with pytest.warns(LossLaneWarning, match="not passive"):
+    # refused, naming the file and the worst frequency (a gain of 1.2 is no rounding)
+    with pytest.raises(LossLaneError, match=r"gain.s2p.*1\.2 at 1 GHz \(not passive"):
         TouchstoneBlock(path)
+    # accepted as it is only when asked
+    assert TouchstoneBlock(path, as_is=True).check.action == "as-is"

@@ -46,7 +46,9 @@ def make_block(
         return ShuntCapacitor(v["capacitance"], n=n, name=seg.name)
     if seg.type == "touchstone":
         try:
-            return TouchstoneBlock(seg.path, name=seg.name, n=n, order=seg.order or default_order)
+            return TouchstoneBlock(
+                seg.path, name=seg.name, n=n, order=seg.order or default_order, as_is=seg.as_is
+            )
         except LossLaneError as exc:
             raise LossLaneError(f"{seg.where}: {exc}") from None
     raise AssertionError(seg.type)
@@ -88,6 +90,17 @@ class ChannelResult:
     def insertion_loss_db(self) -> np.ndarray:
         """Cascaded insertion loss, dB, (N,) -- the last cumulative curve."""
         return self.cumulative_loss_db[-1]
+
+    @property
+    def imports(self) -> list:
+        """The check of each imported file (``network.import_check.ImportCheck``)."""
+        return [b.check for b in self.blocks if isinstance(b, TouchstoneBlock)]
+
+    @property
+    def guaranteed(self) -> bool:
+        """Whether the outputs are passive and reciprocal to 1e-9 (every imported file
+        checked or repaired; none accepted as it is)."""
+        return all(c.guaranteed for c in self.imports)
 
     @cached_property
     def network(self):

@@ -74,6 +74,7 @@ class Segment:
     dielectric: Dielectric | None = None
     path: Path | None = None
     order: str | None = None
+    as_is: bool = False
 
     @property
     def where(self) -> str:
@@ -311,7 +312,7 @@ _SEGMENT_KEYS = {
     "capacitor": ("capacitor", "name"),
     "series": ("series", "name"),
     "shunt": ("shunt", "name"),
-    "touchstone": ("touchstone", "name", "order"),
+    "touchstone": ("touchstone", "name", "order", "as_is"),
 }
 
 
@@ -394,7 +395,13 @@ def _segment(
             )
         if not re.search(r"\.s\d+p$", p.name, re.IGNORECASE):
             raise LossLaneError(f"{w} = {fname!r}: expected a Touchstone file (.s2p, .s4p)")
-        return Segment(i, "touchstone", name or p.stem, path=p, order=order)
+        as_is = entry.get("as_is", False)
+        if not isinstance(as_is, bool):
+            raise LossLaneError(
+                f"{where}.as_is = {as_is!r}: expected true or false (true accepts a file that "
+                "is not passive or reciprocal as it is)"
+            )
+        return Segment(i, "touchstone", name or p.stem, path=p, order=order, as_is=as_is)
     if not isinstance(body, Mapping):
         raise LossLaneError(f"{w} = {body!r}: expected an inline table, e.g. {kind} = {{ ... }}")
     if kind == "via":

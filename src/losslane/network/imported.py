@@ -51,8 +51,11 @@ class TouchstoneBlock(Block):
     non-physical at DC, is dropped) and a LossLaneWarning says so; sweep points between 0
     and the file's first frequency are then interpolated towards that DC point. The chain
     matrix uses the file's own reference impedances and carries the file's reverse
-    direction exactly (no reciprocity assumed). A file that is not passive (IEEE 370-2020:
-    a singular value of S above 1) is accepted with a LossLaneWarning.
+    direction exactly (no reciprocity assumed).
+
+    The file's passivity and reciprocity are checked on reading (``check``, see
+    :mod:`losslane.network.import_check`): violations within the rounding of its printed
+    digits are repaired, larger ones refused unless ``as_is`` accepts the file as it is.
     """
 
     kind = "touchstone"
@@ -64,7 +67,9 @@ class TouchstoneBlock(Block):
         name: str | None = None,
         n: int = 1,
         order: str = DEFAULT_ORDER,
+        as_is: bool = False,
     ) -> None:
+        from losslane.network.import_check import check_import
         from losslane.network.touchstone import read_touchstone
 
         self.path = Path(path)
@@ -83,21 +88,12 @@ class TouchstoneBlock(Block):
                 f"touchstone file '{self.path}' has {len(net.f)} frequency point(s); "
                 "at least 2 are needed"
             )
+        text = self.path.read_text(encoding="latin-1")
+        self.check, fixed = check_import(self.path, np.asarray(net.f), net.s, text, as_is)
+        if fixed is not net.s:
+            net = net.copy()
+            net.s = fixed
         self.network = net
-        self._check_passive()
-
-    def _check_passive(self) -> None:
-        """Warn when the file itself is not passive (IEEE 370-2020: the largest singular
-        value of S must not exceed 1); the cascade would carry the gain along."""
-        sv = np.linalg.svd(np.asarray(self.network.s), compute_uv=False)[:, 0]
-        k = int(np.argmax(sv))
-        if sv[k] > 1 + 1e-6:
-            from losslane.units import format_frequency
-
-            warn(
-                f"touchstone file '{self.path}' is not passive: the largest singular value "
-                f"of S is {sv[k]:.6g} (> 1) at {format_frequency(float(self.network.f[k]))}"
-            )
 
     @property
     def band(self) -> tuple[float, float]:

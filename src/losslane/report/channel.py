@@ -20,7 +20,7 @@ from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
 from losslane.report.budget import budget_text, write_budget_files
 from losslane.report.charts import Curve, Marker, db_plot, to_db
-from losslane.report.page import report_html
+from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
 
 
@@ -199,6 +199,7 @@ def write_build(
                     f"built by losslane {__version__} from "
                     f"{result.scenario.path.name if result.scenario.path else 'a scenario'}",
                     "estimate: confirm against the fabricator's stackup and measured test coupons",
+                    *guarantee_lines(result),
                 ],
             )
         ]
@@ -257,6 +258,10 @@ def summary_text(
         f"reference {sc.ports.reference:g} ohm" + (f", port order {sc.ports.order}" if four else "")
     )
     out = [head, "", f"insertion and return loss{mode}", table(heads, units, rows)]
+    if result.imports:
+        out += ["", "imported models (IEEE 370 quality, as read)"]
+        out += [f"  {c.summary()}" for c in result.imports]
+        out += [f"  {line}" for line in guarantee_lines(result)]
     for sec in sections:
         if sec:
             out += ["", sec]
@@ -276,6 +281,8 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
         "port_order": result.scenario.ports.order if result.nports == 4 else None,
         "reference_ohm": result.scenario.ports.reference,
         "summary": summary,
+        "imports": [c.to_json() for c in result.imports],
+        "guaranteed_passive_reciprocal": result.guaranteed,
     }
 
 

@@ -244,6 +244,18 @@ def render_report(
     return "\n".join(parts)
 
 
+def guarantee_lines(result) -> list[str]:
+    """What the outputs of ``result`` (a ChannelResult) do not guarantee: empty when they
+    are passive and reciprocal to 1e-9."""
+    loose = [c.path.name for c in result.imports if not c.guaranteed]
+    if not loose:
+        return []
+    return [
+        "NOT guaranteed passive or reciprocal: imported file(s) accepted as they are "
+        f"(as_is = true): {', '.join(loose)}"
+    ]
+
+
 def report_html(
     result,
     budget,
@@ -276,9 +288,9 @@ def report_html(
         f"built by losslane {__version__} from "
         + (sc.path.name if sc.path is not None else "a scenario"),
     ]
-    models = [seg.path.name for seg in sc.channel if seg.type == "touchstone" and seg.path]
-    if models:
-        meta.append("imported Touchstone models: " + ", ".join(models))
+    for check in result.imports:
+        meta.append("imported model " + check.summary())
+    meta += guarantee_lines(result)
     return render_report(
         title=f"{sc.name}: channel report",
         meta=meta,
