@@ -252,7 +252,7 @@ def line_command(kind: str, at: str, as_json: bool, plot: str | None, **options)
         _echo(result.to_json(), as_json, lambda p: line_table(p, describe(result.section)))
 
 
-@_section_command("size")
+@_section_command("size", extra=_field_options)
 @click.argument("kind")
 @click.option(
     "--target",
@@ -303,7 +303,7 @@ def size_command(
         _echo(res.to_json(), as_json, lambda r: size_table(r, describe_solved(res.section, vary)))
 
 
-@_section_command("compare")
+@_section_command("compare", extra=_field_options)
 @click.argument("kind")
 @click.option(
     "--materials",
@@ -393,7 +393,7 @@ def _progress_bar(label: str) -> Iterator[Callable[[int, int], None]]:
             bar.__exit__(None, None, None)
 
 
-@_section_command("spread", extra=_tolerance_options)
+@_section_command("spread", extra=lambda: _tolerance_options() + _field_options())
 @click.argument("kind")
 @click.option(
     "--distribution",

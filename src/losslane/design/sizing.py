@@ -191,6 +191,10 @@ def solve(
             f"{section.kind}: the model's validity ranges leave no {vary} "
             f"to search ({rng.source}); change the other dimensions"
         )
+    if getattr(section, "source", None) is not None:
+        x = _seeded_root(section, target, at, vary, lo, hi)
+        if x is not None:
+            return x, rng
     grid = np.geomspace(lo, hi, points)
     z = _quiet_impedance(section, at, **{vary: grid})
     d = z - target
@@ -226,6 +230,53 @@ def solve(
 
     x = brentq(residual, float(grid[i]), float(grid[i + 1]), xtol=1e-12 * grid[i], rtol=1e-12)
     return float(x), rng
+
+
+#: relative tolerance of a field-solved root (far below the solver's own discretisation)
+FIELD_XTOL = 1e-7
+
+
+def _seeded_root(
+    section: CrossSection, target: float, at: float, vary: str, lo: float, hi: float
+) -> float | None:
+    """The root for a field-solved section in a few solves: the closed form of its kind
+    (same dimensions and materials) gives the start and the slope, secant steps on the
+    field solution follow, and a bracket, once found, is closed by Brent's method. None
+    when the closed form has no root or the steps leave the search range (the caller
+    then searches a grid)."""
+    from scipy.optimize import brentq
+
+    src = section.source
+    closed = src.model(**dict(src.dims), dielectric=section.dielectric, metal=section.metal)
+    try:
+        x0, _ = solve(closed, target, at, vary)
+    except LossLaneError:
+        return None
+    x0 = float(np.clip(x0, lo, hi))
+
+    def miss(x: float) -> float:
+        return float(_quiet_impedance(section, at, **{vary: x})[0] - target)
+
+    z_cf = _quiet_impedance(closed, at, **{vary: np.array([0.99 * x0, 1.01 * x0])})
+    slope = float(z_cf[1] - z_cf[0]) / (0.02 * x0)
+    if not (np.isfinite(slope) and slope != 0):
+        return None
+    xa, da = x0, miss(x0)
+    for _ in range(8):
+        if da == 0:
+            return xa
+        xb = float(np.clip(xa - da / slope, lo, hi))
+        if xb == xa:
+            return None
+        db = miss(xb)
+        if np.sign(da) != np.sign(db):
+            a, b = sorted((xa, xb))
+            return float(brentq(miss, a, b, xtol=FIELD_XTOL * a, rtol=FIELD_XTOL))
+        if abs(db) < 1e-9 * target:
+            return xb
+        slope = (db - da) / (xb - xa) if db != da else slope
+        xa, da = xb, db
+    return None
 
 
 def sensitivity(section: CrossSection, at: float = DEFAULT_SIZE_AT) -> dict[str, float | None]:
