@@ -1,0 +1,678 @@
+"""Material parameters that make a cross-section model reproduce an extracted line.
+
+Given the attenuation alpha(f) and effective permittivity eps_eff(f) of a line (from
+:func:`losslane.measure.extract.extract_line`, or arrays), and the cross-section it was
+built on, :func:`fit_materials` finds the dielectric's Dk and Df at a frequency (a causal
+wideband Debye model: Djordjevic, Biljic, Likar-Smiljanic, Sarkar, IEEE Trans. EMC 43(4),
+2001), the foil's roughness (Hammerstad or Groiss: rq; Huray: sphere radius and surface
+ratio) and the conductivity, any subset held fixed, by bounded nonlinear least squares
+(``scipy.optimize.least_squares``, trust-region reflective) over a band.
+
+The model's alpha and eps_eff come from the section's R, L, G, C: gamma = sqrt(Z Y),
+eps_eff = Re(-(gamma c0 / omega)^2) -- the same definitions the extraction uses, so the
+internal inductance and the loss terms are compared like for like. For a pair the
+differential (odd) mode uses the per-line R11 - R12 etc., the common (even) mode R11 + R12
+(the modal quantities of a symmetric pair).
+
+Residuals are alpha and eps_eff differences divided by the measurement's standard
+uncertainty at each point (``weighting="uncertainty"``, from the extraction's noise model)
+or by 1 % of alpha and 0.1 % of eps_eff (``"relative"``). Parameters are fitted in log
+scale where they are positive by nature (Df, rq, radius, conductivity) and linearly
+otherwise (Dk, surface ratio), within physical bounds (``BOUNDS``).
+
+Uncertainty: the covariance (J^T J)^-1 s^2 from the Jacobian J of the weighted residuals
+at the solution, scaled by the residual variance s^2 = sum r^2 / (m - n) (the usual
+linearised least-squares estimate). Directions the data do not determine (a singular value
+of J below 1e-10 of the largest) get an infinite uncertainty, never a pseudo-inverse's
+zero. Parameters whose correlation exceeds ``SEPARABLE_LIMIT`` in magnitude are reported
+as not separable (e.g. Df against roughness against conductivity over a narrow band, or
+Huray radius against surface ratio where the skin depth is much larger than the radius):
+the fit then says so and the uncertainties are large, rather than a confident value.
+
+The fitted materials can be written as a library TOML text (``[dielectrics.NAME]``,
+``[foils.NAME]``) that :func:`losslane.materials.library.load_library` reads back.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+import warnings
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from losslane.errors import LossLaneError, LossLaneWarning, warn
+from losslane.materials.conductor import Conductor
+from losslane.materials.dielectric import Dielectric, WidebandDebye
+from losslane.materials.roughness import Groiss, Hammerstad, Huray, Roughness, Smooth
+from losslane.units import INCH
+from losslane.xsection.base import CrossSection
+from losslane.xsection.rlgc import C0, NP_TO_DB
+
+__all__ = [
+    "BOUNDS",
+    "PARAMETERS",
+    "MaterialFit",
+    "fit_materials",
+    "line_constants",
+    "with_materials",
+]
+
+PARAMETERS = ("dk", "df", "rq", "radius", "surface_ratio", "conductivity")
+BOUNDS = {
+    "dk": (2.0, 20.0),
+    "df": (1e-5, 0.05),
+    "rq": (1e-9, 20e-6),
+    "radius": (1e-8, 20e-6),
+    "surface_ratio": (0.0, 20.0),
+    "conductivity": (1e5, 1e9),
+}
+"""Search bounds (SI). Dk >= 2 and Df <= 0.05 keep the wideband Debye model's
+high-frequency permittivity above 1 for any ``at`` between 1 MHz and 100 GHz."""
+_LOG = {"df", "rq", "radius", "conductivity"}
+_JSON_KEY = {
+    "dk": "dk",
+    "df": "df",
+    "rq": "rq_m",
+    "radius": "radius_m",
+    "surface_ratio": "surface_ratio",
+    "conductivity": "conductivity_s_per_m",
+}
+FOIL_PARAMETERS = {
+    "none": (),
+    "hammerstad": ("rq",),
+    "groiss": ("rq",),
+    "huray": ("radius", "surface_ratio"),
+}
+TYPICAL_START = {"rq": 1e-6, "radius": 0.5e-6, "surface_ratio": 1.5}
+"""Starting roughness when the section's foil is of another model (typical values)."""
+DEFAULT_AT = 10e9
+SEPARABLE_LIMIT = 0.99
+_SINGULAR = 1e-10
+
+
+# ---------------------------------------------------------------- model side
+
+
+def with_materials(
+    section: CrossSection,
+    dielectric: Dielectric | None = None,
+    foil: Roughness | None = None,
+    conductor: Conductor | None = None,
+) -> CrossSection:
+    """``section`` rebuilt with another dielectric, signal foil and/or conductor (None:
+    keep). The return planes keep their own foil when ``metal.plane_foil`` is set, else
+    they follow the signal foil. The one place that knows how a section is rebuilt."""
+    metal = section.metal
+    changes = {}
+    if foil is not None:
+        changes["foil"] = foil
+    if conductor is not None:
+        changes["conductor"] = conductor
+    if changes:
+        metal = replace(metal, **changes)
+    if dielectric is not None:
+        return replace(section, dielectric=dielectric, metal=metal)
+    return replace(section, metal=metal)
+
+
+def line_constants(
+    section: CrossSection, f: np.ndarray, mode: str = "single-ended"
+) -> tuple[np.ndarray, np.ndarray]:
+    """(alpha in Np/m, eps_eff = Re(-(gamma c0/omega)^2)) of ``section`` at ``f`` (Hz, > 0),
+    from its R, L, G, C; ``mode`` "single-ended" for a single line, "differential" or
+    "common" for a symmetric pair."""
+    f = np.asarray(f, float)
+    rl = section.rlgc(f)
+    if rl.n == 1:
+        if mode != "single-ended":
+            raise LossLaneError(f"mode = {mode!r} needs a pair; this section has one strip")
+        r, l, g, c = rl.scalar()
+    elif rl.n == 2:
+        signs = {"differential": -1.0, "common": 1.0}
+        if mode not in signs:
+            raise LossLaneError(
+                f"mode = {mode!r} does not fit a pair; use 'differential' or 'common'"
+            )
+        sg = signs[mode]
+        r, l, g, c = (m[:, 0, 0] + sg * m[:, 0, 1] for m in (rl.r, rl.l, rl.g, rl.c))
+    else:
+        raise LossLaneError(f"sections of {rl.n} conductors are not supported here")
+    omega = 2 * np.pi * f
+    gamma = np.sqrt((r + 1j * omega * l) * (g + 1j * omega * c))
+    return gamma.real, (-((gamma * C0 / omega) ** 2)).real
+
+
+def _foil_model(foil: Roughness) -> str:
+    return getattr(foil, "model", "none")
+
+
+def _make_foil(model: str, values: Mapping[str, float], matte: float) -> Roughness:
+    if model == "hammerstad":
+        return Hammerstad(values["rq"])
+    if model == "groiss":
+        return Groiss(values["rq"])
+    if model == "huray":
+        return Huray.from_surface_ratio(values["radius"], values["surface_ratio"], matte)
+    return Smooth()
+
+
+# ---------------------------------------------------------------- result
+
+
+@dataclass(frozen=True, eq=False)
+class MaterialFit:
+    """The fitted materials and how well they are determined.
+
+    ``section``: the cross-section rebuilt with them; ``dielectric``, ``foil``,
+    ``conductivity`` (S/m); ``values`` every parameter of the model (fitted and fixed, SI);
+    ``vary`` the fitted ones, ``uncertainty`` their standard uncertainties (inf where the
+    data do not determine them), ``correlation`` (n x n); ``separable`` False when two
+    fitted parameters are correlated beyond ``SEPARABLE_LIMIT`` or one is undetermined;
+    ``at_bound`` the fitted parameters that ended on a search bound. ``f`` and the
+    measured/model curves are the band's points used; ``residual_db_per_in`` is the RMS
+    of the loss difference there.
+    """
+
+    section: CrossSection
+    dielectric: Dielectric
+    foil: Roughness
+    conductivity: float
+    values: dict
+    vary: tuple[str, ...]
+    uncertainty: dict
+    correlation: np.ndarray
+    separable: bool
+    at_bound: tuple[str, ...]
+    band_hz: tuple[float, float]
+    mode: str
+    f: np.ndarray
+    alpha_measured: np.ndarray
+    eps_measured: np.ndarray
+    alpha_model: np.ndarray
+    eps_model: np.ndarray
+    at_hz: float
+    weighting: str
+    sources: tuple[str, ...] = ()
+
+    @property
+    def residual_db_per_in(self) -> float:
+        d = (self.alpha_model - self.alpha_measured) * NP_TO_DB * INCH
+        return float(np.sqrt(np.mean(d**2)))
+
+    @property
+    def residual_max_db_per_in(self) -> float:
+        d = (self.alpha_model - self.alpha_measured) * NP_TO_DB * INCH
+        return float(np.max(np.abs(d)))
+
+    @property
+    def residual_eps_eff(self) -> float:
+        return float(np.sqrt(np.mean((self.eps_model - self.eps_measured) ** 2)))
+
+    def foil_json(self) -> dict:
+        model = _foil_model(self.foil)
+        out: dict = {"model": model}
+        if model in ("hammerstad", "groiss"):
+            out["rq_m"] = float(self.foil.rq)
+        elif model == "huray":
+            (radius, ratio), *_ = self.foil.spheres
+            out.update(
+                radius_m=float(radius),
+                surface_ratio=float(ratio),
+                matte_ratio=float(self.foil.matte_ratio),
+            )
+        return out
+
+    def to_json(self) -> dict:
+        dk, df = self.dielectric.dk_df(np.array([self.at_hz]))
+        names = list(self.vary)
+        return {
+            "dielectric": {
+                "dk": float(dk[0]),
+                "df": float(df[0]),
+                "at_hz": self.at_hz,
+                "model": self.dielectric.model,
+            },
+            "foil": self.foil_json(),
+            "conductivity_s_per_m": self.conductivity,
+            "uncertainty": {
+                _JSON_KEY[k]: (float(v) if np.isfinite(v) else None)
+                for k, v in self.uncertainty.items()
+            },
+            "vary": names,
+            "correlation": {
+                "parameters": names,
+                "matrix": [
+                    [float(v) if np.isfinite(v) else None for v in row] for row in self.correlation
+                ],
+            },
+            "separable": self.separable,
+            "at_bound": list(self.at_bound),
+            "residual_db_per_in": self.residual_db_per_in,
+            "residual_max_db_per_in": self.residual_max_db_per_in,
+            "residual_eps_eff": self.residual_eps_eff,
+            "band_hz": list(self.band_hz),
+            "points": int(self.f.size),
+            "mode": self.mode,
+            "weighting": self.weighting,
+            "curves": {
+                "frequencies_hz": self.f.tolist(),
+                "measured_loss_db_per_in": (self.alpha_measured * NP_TO_DB * INCH).tolist(),
+                "model_loss_db_per_in": (self.alpha_model * NP_TO_DB * INCH).tolist(),
+                "measured_eps_eff": self.eps_measured.tolist(),
+                "model_eps_eff": self.eps_model.tolist(),
+            },
+        }
+
+    def library_toml(
+        self, dielectric_name: str = "fitted", foil_name: str = "fitted-foil", note: str = ""
+    ) -> str:
+        """The fitted dielectric and foil as a library TOML text ([dielectrics.NAME],
+        [foils.NAME]); a fitted conductivity, which the library has no key for, is written
+        as a comment. Read it with ``load_library([path])`` or a scenario's ``library``."""
+        dk, df = self.dielectric.dk_df(np.array([self.at_hz]))
+        band = f"{self.band_hz[0] / 1e9:g}-{self.band_hz[1] / 1e9:g} GHz"
+        text_note = note or f"fitted to measured coupons over {band}"
+        if self.sources:
+            text_note += " (" + ", ".join(self.sources) + ")"
+        lines = [
+            "# Written by losslane (measure.fit): materials fitted to an extracted line.",
+            f"# band {band}, {self.f.size} points, mode {self.mode}; RMS loss residual "
+            f"{self.residual_db_per_in:.3g} dB/in, RMS eps_eff residual "
+            f"{self.residual_eps_eff:.3g}",
+        ]
+        for k in self.vary:
+            u = self.uncertainty[k]
+            shown = f"{u:.3g}" if np.isfinite(u) else "undetermined"
+            lines.append(f"# {k} = {self.values[k]:.6g} +- {shown} (1 sigma)")
+        if not self.separable:
+            lines.append("# WARNING: some fitted parameters could not be separated over the band")
+        if "conductivity" in self.vary:
+            lines.append(
+                f"# conductivity = {self.conductivity:.6g} S/m (no library key: give it to the "
+                "line's metal)"
+            )
+        lines += [
+            "",
+            f"[dielectrics.{_toml_key(dielectric_name)}]",
+            f"dk = {float(dk[0])!r}",
+            f"df = {float(df[0])!r}",
+            f'at = "{self.at_hz!r} Hz"',
+            f'model = "{self.dielectric.model}"',
+            f"note = {json.dumps(text_note)}",
+        ]
+        model = _foil_model(self.foil)
+        if model in FOIL_PARAMETERS:
+            lines += ["", f"[foils.{_toml_key(foil_name)}]", f'model = "{model}"']
+            if model in ("hammerstad", "groiss"):
+                lines.append(f'rq = "{self.foil.rq * 1e6!r} um"')
+            elif model == "huray":
+                (radius, ratio), *_ = self.foil.spheres
+                lines.append(f'radius = "{radius * 1e6!r} um"')
+                lines.append(f"surface_ratio = {float(ratio)!r}")
+                if self.foil.matte_ratio != 1.0:
+                    lines.append(f"matte_ratio = {float(self.foil.matte_ratio)!r}")
+            lines.append(f"note = {json.dumps(text_note)}")
+        else:
+            lines.append(f"# the foil (model {model!r}) was held fixed and is not written")
+        return "\n".join(lines) + "\n"
+
+
+def _toml_key(name: str) -> str:
+    if not name:
+        raise LossLaneError("library name = '' is not valid; give a non-empty name")
+    return name if re.fullmatch(r"[A-Za-z0-9_-]+", name) else json.dumps(name)
+
+
+# ---------------------------------------------------------------- fitting
+
+
+def _measured(measured, band, mode):
+    """(f, alpha, eps, sigma_alpha, sigma_eps, mode, band, weighting_ok, sources)."""
+    from losslane.measure.extract import LineExtraction
+
+    if isinstance(measured, LineExtraction):
+        f, alpha, eps = measured.f, measured.alpha, measured.eps_eff
+        ua, ue = measured.u_alpha, measured.u_eps_eff
+        use = measured.ok
+        mode = mode or measured.mode
+        default_band = measured.usable_band_hz
+        sources = measured.sources
+        if mode != measured.mode:
+            raise LossLaneError(
+                f"mode = {mode!r} differs from the extraction's mode {measured.mode!r}"
+            )
+    else:
+        if not isinstance(measured, tuple | list) or len(measured) not in (3, 5):
+            raise LossLaneError(
+                "measured: give a LineExtraction or a tuple (f, alpha_np_per_m, eps_eff"
+                "[, u_alpha, u_eps])"
+            )
+        arrs = [np.asarray(a, float).ravel() for a in measured]
+        f, alpha, eps = arrs[:3]
+        if not all(a.shape == f.shape for a in arrs):
+            raise LossLaneError("measured: f, alpha, eps_eff (and uncertainties) differ in length")
+        ua, ue = (arrs[3], arrs[4]) if len(arrs) == 5 else (None, None)
+        use = np.ones(f.size, dtype=bool)
+        mode = mode or "single-ended"
+        default_band = None
+        sources = ()
+    if band is None:
+        band = default_band if default_band is not None else (float(f[0]), float(f[-1]))
+    lo, hi = (float(b) for b in band)
+    if not (np.isfinite(lo) and np.isfinite(hi) and 0 < lo < hi):
+        raise LossLaneError(f"band = {band!r} Hz is not valid; give start < stop, both > 0")
+    sel = use & (f >= lo * (1 - 1e-12)) & (f <= hi * (1 + 1e-12))
+    sel &= np.isfinite(alpha) & np.isfinite(eps)
+    if ua is not None:
+        sel &= np.isfinite(ua) & np.isfinite(ue) & (ua > 0) & (ue > 0)
+    return f, alpha, eps, ua, ue, sel, mode, (lo, hi), sources
+
+
+def _start_values(section, at, foil_model, start):
+    vals: dict[str, float] = {}
+    dk, df = section.dielectric.dk_df(np.array([at]))
+    vals["dk"], vals["df"] = float(dk[0]), float(df[0])
+    foil = section.metal.foil
+    current = _foil_model(foil)
+    if current == foil_model and foil_model in ("hammerstad", "groiss"):
+        vals["rq"] = float(foil.rq)
+    elif current == foil_model == "huray":
+        if len(foil.spheres) != 1:
+            raise LossLaneError(
+                "foil: the Huray fit takes one sphere size; the section's foil has "
+                f"{len(foil.spheres)}"
+            )
+        vals["radius"], vals["surface_ratio"] = (float(v) for v in foil.spheres[0])
+    for k in FOIL_PARAMETERS.get(foil_model, ()):
+        vals.setdefault(k, TYPICAL_START[k])
+    vals["conductivity"] = float(section.metal.conductor.sigma)
+    for k, v in (start or {}).items():
+        if k not in PARAMETERS:
+            raise LossLaneError(f"start: unknown parameter {k!r}; valid: {', '.join(PARAMETERS)}")
+        vals[k] = float(v)
+    return vals
+
+
+def fit_materials(
+    measured,
+    section: CrossSection,
+    vary: Sequence[str] = ("dk", "df", "rq"),
+    *,
+    band: tuple[float, float] | None = None,
+    at: float | None = None,
+    foil_model: str | None = None,
+    mode: str | None = None,
+    start: Mapping[str, float] | None = None,
+    weighting: str | None = None,
+    restarts: int = 4,
+) -> MaterialFit:
+    """Fit the materials of ``section`` to ``measured`` (see the module docstring).
+
+    ``measured``: a :class:`~losslane.measure.extract.LineExtraction` (its unflagged points
+    inside ``band``, default its usable band) or a tuple ``(f, alpha [Np/m], eps_eff[,
+    u_alpha, u_eps])``. ``vary``: any of "dk", "df" (the dielectric, at ``at`` Hz: default
+    the section's wideband Debye frequency, else 10 GHz), "rq" (Hammerstad/Groiss),
+    "radius", "surface_ratio" (Huray), "conductivity"; the rest stay as the section has
+    them. ``foil_model`` ("none", "hammerstad", "groiss", "huray"; default the section's)
+    chooses the roughness model to fit. ``start`` overrides starting values (SI).
+    ``weighting``: "uncertainty" (default when uncertainties are given) or "relative".
+    ``restarts``: extra starting points (a fixed Halton pattern over typical ranges) tried
+    besides the given start; the lowest residual wins, and a distinct start ending as good
+    as the best (within the noise) marks the parameters as not separable.
+    """
+    from scipy.optimize import least_squares
+
+    vary = tuple(dict.fromkeys(vary))
+    for k in vary:
+        if k not in PARAMETERS:
+            raise LossLaneError(f"vary: unknown parameter {k!r}; valid: {', '.join(PARAMETERS)}")
+    if not vary:
+        raise LossLaneError("vary: give at least one parameter to fit")
+    foil_model = foil_model or _foil_model(section.metal.foil)
+    if foil_model not in FOIL_PARAMETERS:
+        raise LossLaneError(
+            f"foil_model = {foil_model!r} cannot be fitted; valid: {', '.join(FOIL_PARAMETERS)}"
+        )
+    foil_keys = FOIL_PARAMETERS[foil_model]
+    for k in vary:
+        if k in ("rq", "radius", "surface_ratio") and k not in foil_keys:
+            valid = ", ".join(foil_keys) or "none"
+            raise LossLaneError(
+                f"vary: {k!r} is not a parameter of the {foil_model!r} roughness model "
+                f"(its parameters: {valid}); choose foil_model or another parameter"
+            )
+    if at is None:
+        diel = section.dielectric
+        at = float(diel.at) if isinstance(diel, WidebandDebye) else DEFAULT_AT
+    at = float(at)
+
+    f_all, alpha, eps, ua, ue, sel, mode, band_hz, sources = _measured(measured, band, mode)
+    if weighting is None:
+        weighting = "uncertainty" if ua is not None else "relative"
+    if weighting not in ("uncertainty", "relative"):
+        raise LossLaneError(
+            f"weighting = {weighting!r} is not valid; use 'uncertainty' or 'relative'"
+        )
+    if weighting == "uncertainty" and ua is None:
+        raise LossLaneError("weighting = 'uncertainty' needs the measurement's uncertainties")
+    f = f_all[sel]
+    n_par = len(vary)
+    if 2 * f.size <= n_par:
+        raise LossLaneError(
+            f"band = {band_hz[0]:g}..{band_hz[1]:g} Hz holds {f.size} usable point(s); "
+            f"fitting {n_par} parameter(s) needs more"
+        )
+    a_meas, e_meas = alpha[sel], eps[sel]
+    if weighting == "uncertainty":
+        sa, se = ua[sel], ue[sel]
+    else:
+        sa, se = 0.01 * np.abs(a_meas) + 1e-12, 1e-3 * np.abs(e_meas)
+
+    values = _start_values(section, at, foil_model, start)
+    matte = float(getattr(section.metal.foil, "matte_ratio", 1.0))
+    vary_diel = bool({"dk", "df"} & set(vary))
+    vary_foil = bool(set(foil_keys) & set(vary)) or foil_model != _foil_model(section.metal.foil)
+    vary_cond = "conductivity" in vary
+
+    def build(vals: Mapping[str, float]) -> CrossSection:
+        diel = WidebandDebye(vals["dk"], vals["df"], at, name="fitted") if vary_diel else None
+        foil = _make_foil(foil_model, vals, matte) if vary_foil else None
+        cond = replace(section.metal.conductor, sigma=vals["conductivity"]) if vary_cond else None
+        return with_materials(section, diel, foil, cond)
+
+    lower = np.array([_encode(k, BOUNDS[k][0]) for k in vary])
+    upper = np.array([_encode(k, BOUNDS[k][1]) for k in vary])
+    x0 = np.array([_encode(k, values[k]) for k in vary])
+    x0 = np.clip(x0, lower + 1e-9 * (upper - lower), upper - 1e-9 * (upper - lower))
+
+    def decode(x: np.ndarray) -> dict:
+        vals = dict(values)
+        vals.update({k: _decode(k, v) for k, v in zip(vary, x, strict=True)})
+        return vals
+
+    def residuals(x: np.ndarray) -> np.ndarray:
+        am, em = line_constants(build(decode(x)), f, mode)
+        return np.concatenate([(am - a_meas) / sa, (em - e_meas) / se])
+
+    starts = [x0] + _restarts(vary, values, lower, upper, restarts)
+    ends = []
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", LossLaneWarning)
+        for xs in starts:
+            sol = least_squares(
+                residuals,
+                xs,
+                bounds=(lower, upper),
+                x_scale="jac",
+                xtol=1e-12,
+                ftol=1e-12,
+                gtol=1e-12,
+                max_nfev=100 * (n_par + 1),
+            )
+            ends.append((float(np.sum(sol.fun**2)), sol.x))
+        ends.sort(key=lambda e: e[0])
+        best_cost, x_best = ends[0]
+        jac = _central_jacobian(residuals, x_best, lower, upper)
+    final = decode(x_best)
+    fitted = build(final)
+    a_mod, e_mod = line_constants(fitted, f, mode)  # warnings of the fitted model, once
+
+    m = 2 * f.size
+    s2 = best_cost / max(m - n_par, 1)
+    cov_int = _covariance(jac, s2)
+    sig_int = np.sqrt(np.diag(cov_int))
+    unc = {}
+    for i, k in enumerate(vary):
+        scale = final[k] if k in _LOG else 1.0  # d value / d internal coordinate
+        unc[k] = float(abs(scale) * sig_int[i])
+    with np.errstate(invalid="ignore", divide="ignore"):
+        corr = cov_int / np.outer(sig_int, sig_int)
+    corr = np.where(np.isfinite(corr), corr, np.nan)
+    np.fill_diagonal(corr, 1.0)
+    off = np.abs(corr - np.eye(n_par))
+    separable = bool(np.all(np.isfinite(sig_int)) and not np.any(off > SEPARABLE_LIMIT))
+    rivals = [
+        x
+        for cost, x in ends[1:]
+        if (cost - best_cost) <= 4 * n_par * max(s2, 1e-300)
+        and np.any(np.abs(x - x_best) > 3 * sig_int)
+    ]
+    if rivals:
+        separable = False
+    span = upper - lower
+    at_bound = tuple(
+        k
+        for k, x, lo, hi, sp in zip(vary, x_best, lower, upper, span, strict=True)
+        if min(x - lo, hi - x) < 1e-6 * sp
+    )
+    band_txt = f"{band_hz[0]:g}..{band_hz[1]:g} Hz"
+    if not separable:
+        pairs = [
+            f"{vary[i]}/{vary[j]} (r = {corr[i, j]:.4f})"
+            for i in range(n_par)
+            for j in range(i + 1, n_par)
+            if not np.isfinite(corr[i, j]) or abs(corr[i, j]) > SEPARABLE_LIMIT
+        ]
+        undetermined = [k for k in vary if not np.isfinite(unc[k])]
+        what = ", ".join(pairs + [f"{k} (undetermined)" for k in undetermined])
+        if rivals:
+            what = (what + "; " if what else "") + (
+                f"{len(rivals)} distinct parameter set(s) fit as well as the best"
+            )
+        warn(
+            f"fit over {band_txt}: the data cannot separate {what}; the uncertainties say "
+            "how little is known -- widen the band or hold a parameter fixed"
+        )
+    if at_bound:
+        warn(
+            f"fit over {band_txt}: {', '.join(at_bound)} ended on a search bound "
+            f"({', '.join(f'{k} in {BOUNDS[k]}' for k in at_bound)}); its uncertainty is "
+            "not meaningful"
+        )
+    diel_out = fitted.dielectric
+    return MaterialFit(
+        section=fitted,
+        dielectric=diel_out,
+        foil=fitted.metal.foil,
+        conductivity=float(fitted.metal.conductor.sigma),
+        values=final,
+        vary=vary,
+        uncertainty=unc,
+        correlation=corr,
+        separable=separable,
+        at_bound=at_bound,
+        band_hz=(float(f[0]), float(f[-1])),
+        mode=mode,
+        f=f,
+        alpha_measured=a_meas,
+        eps_measured=e_meas,
+        alpha_model=a_mod,
+        eps_model=e_mod,
+        at_hz=at,
+        weighting=weighting,
+        sources=tuple(sources),
+    )
+
+
+TYPICAL_RANGE = {
+    "df": (1e-3, 0.03),
+    "rq": (0.1e-6, 3e-6),
+    "radius": (0.1e-6, 2e-6),
+    "surface_ratio": (0.2, 4.0),
+    "conductivity": (1e7, 6e7),
+}
+"""Where the restarts are spread (typical laminates and foils; Dk: the start +- 10 %)."""
+
+
+def _restarts(vary, values, lower, upper, count: int) -> list[np.ndarray]:
+    """``count`` deterministic starting points (Halton sequence, bases 2, 3, 5, ...)."""
+    if count <= 0:
+        return []
+    primes = [2, 3, 5, 7, 11, 13]
+    out = []
+    for i in range(1, count + 1):
+        x = []
+        for d, k in enumerate(vary):
+            u = _radical_inverse(i, primes[d % len(primes)])
+            if k == "dk":
+                lo, hi = 0.9 * values["dk"], 1.1 * values["dk"]
+            else:
+                lo, hi = TYPICAL_RANGE[k]
+            x.append(_encode(k, lo) + u * (_encode(k, hi) - _encode(k, lo)))
+        out.append(np.clip(np.array(x), lower, upper))
+    return out
+
+
+def _radical_inverse(i: int, base: int) -> float:
+    r, inv = 0.0, 1.0 / base
+    while i > 0:
+        i, digit = divmod(i, base)
+        r += digit * inv
+        inv /= base
+    return r
+
+
+def _central_jacobian(fun, x: np.ndarray, lower, upper, step: float = 1e-6) -> np.ndarray:
+    """Central differences of ``fun`` at ``x`` (one-sided at a bound)."""
+    cols = []
+    for i in range(x.size):
+        h = step * max(1.0, abs(x[i]))
+        xp, xm = x.copy(), x.copy()
+        xp[i] = min(x[i] + h, upper[i])
+        xm[i] = max(x[i] - h, lower[i])
+        cols.append((fun(xp) - fun(xm)) / (xp[i] - xm[i]))
+    return np.column_stack(cols)
+
+
+def _encode(key: str, value: float) -> float:
+    if key in _LOG:
+        if not value > 0:
+            raise LossLaneError(f"{key} = {value!r} must be > 0")
+        return float(np.log(value))
+    return float(value)
+
+
+def _decode(key: str, x: float) -> float:
+    return float(np.exp(x)) if key in _LOG else float(x)
+
+
+def _covariance(jac: np.ndarray, s2: float) -> np.ndarray:
+    """s2 (J^T J)^-1 from the SVD of J; directions with a singular value below _SINGULAR of
+    the largest are undetermined (infinite variance), not dropped."""
+    _, sv, vt = np.linalg.svd(np.asarray(jac, float), full_matrices=False)
+    top = sv[0] if sv.size and sv[0] > 0 else 1.0
+    with np.errstate(divide="ignore"):
+        inv2 = np.where(sv > _SINGULAR * top, 1.0 / sv**2, np.inf)
+    v = vt.T
+    finite = np.isfinite(inv2)
+    cov = (v * np.where(finite, inv2, 0.0)) @ v.T * s2
+    if not np.all(finite):
+        # every parameter that loads on an undetermined direction is undetermined
+        bad = np.any(np.abs(v[:, ~finite]) > 1e-12, axis=1)
+        cov[bad, :] = np.nan
+        cov[:, bad] = np.nan
+        cov[bad, bad] = np.inf
+    return cov
