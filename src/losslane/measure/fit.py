@@ -22,12 +22,28 @@ otherwise (Dk, surface ratio), within physical bounds (``BOUNDS``).
 
 Uncertainty: the covariance (J^T J)^-1 s^2 from the Jacobian J of the weighted residuals
 at the solution, scaled by the residual variance s^2 = sum r^2 / (m - n) (the usual
-linearised least-squares estimate). Directions the data do not determine (a singular value
+linearised least-squares estimate; with uncertainty weighting s^2 is not taken below 1, so
+the result is never tighter than the data's stated noise). Where the residual rises more
+slowly than that quadratic model along a principal direction (flat, curved valleys of
+nearly interchangeable parameters), the direction is widened to where the residual has
+actually risen by 9 s^2 (3 sigma); and the least determined direction is followed as a
+profile (the other parameters re-fitted at each step) to the same rise, so that a curved
+valley is not cut short: each parameter's uncertainty is at least a third of its
+excursion there. Directions the data do not determine (a singular value
 of J below 1e-10 of the largest) get an infinite uncertainty, never a pseudo-inverse's
-zero. Parameters whose correlation exceeds ``SEPARABLE_LIMIT`` in magnitude are reported
-as not separable (e.g. Df against roughness against conductivity over a narrow band, or
-Huray radius against surface ratio where the skin depth is much larger than the radius):
-the fit then says so and the uncertainties are large, rather than a confident value.
+zero. A parameter whose multiple correlation with the others exceeds ``SEPARABLE_LIMIT``
+is reported as not separable (e.g. Df against roughness against conductivity over a
+narrow band, or Huray radius against surface ratio where the skin depth is much larger
+than the radius): the fit then says so and the uncertainties are large, rather than a
+confident value. The fit starts from the section's values and from a few fixed points
+spread over typical ranges (local minima exist: Hammerstad's roughness saturates); a
+distinct start that ends as well as the best, within the noise, also marks the
+parameters as not separable.
+
+Points used: those inside the band whose branch was resolved (no "branch" flag); with
+uncertainty weighting the noisy ("ill-conditioned") points are kept, at their low weight;
+with relative weighting only unflagged points are used. The default band is the
+extraction's usable band.
 
 The fitted materials can be written as a library TOML text (``[dielectrics.NAME]``,
 ``[foils.NAME]``) that :func:`losslane.materials.library.load_library` reads back.
@@ -47,6 +63,7 @@ from losslane.errors import LossLaneError, LossLaneWarning, warn
 from losslane.materials.conductor import Conductor
 from losslane.materials.dielectric import Dielectric, WidebandDebye
 from losslane.materials.roughness import Groiss, Hammerstad, Huray, Roughness, Smooth
+from losslane.measure.extract import BRANCH
 from losslane.units import INCH
 from losslane.xsection.base import CrossSection
 from losslane.xsection.rlgc import C0, NP_TO_DB
@@ -89,7 +106,7 @@ FOIL_PARAMETERS = {
 TYPICAL_START = {"rq": 1e-6, "radius": 0.5e-6, "surface_ratio": 1.5}
 """Starting roughness when the section's foil is of another model (typical values)."""
 DEFAULT_AT = 10e9
-SEPARABLE_LIMIT = 0.99
+SEPARABLE_LIMIT = 0.999
 _SINGULAR = 1e-10
 
 
@@ -169,8 +186,10 @@ class MaterialFit:
     ``section``: the cross-section rebuilt with them; ``dielectric``, ``foil``,
     ``conductivity`` (S/m); ``values`` every parameter of the model (fitted and fixed, SI);
     ``vary`` the fitted ones, ``uncertainty`` their standard uncertainties (inf where the
-    data do not determine them), ``correlation`` (n x n); ``separable`` False when two
-    fitted parameters are correlated beyond ``SEPARABLE_LIMIT`` or one is undetermined;
+    data do not determine them), ``correlation`` (n x n) and ``multiple_correlation`` (each
+    parameter against all the others); ``separable`` False when a multiple correlation
+    exceeds ``SEPARABLE_LIMIT``, a parameter is undetermined, or a distinct start ends as
+    well as the best;
     ``at_bound`` the fitted parameters that ended on a search bound. ``f`` and the
     measured/model curves are the band's points used; ``residual_db_per_in`` is the RMS
     of the loss difference there.
@@ -184,6 +203,7 @@ class MaterialFit:
     vary: tuple[str, ...]
     uncertainty: dict
     correlation: np.ndarray
+    multiple_correlation: np.ndarray
     separable: bool
     at_bound: tuple[str, ...]
     band_hz: tuple[float, float]
@@ -336,7 +356,8 @@ def _measured(measured, band, mode):
     if isinstance(measured, LineExtraction):
         f, alpha, eps = measured.f, measured.alpha, measured.eps_eff
         ua, ue = measured.u_alpha, measured.u_eps_eff
-        use = measured.ok
+        use = np.array([BRANCH not in q for q in measured.quality], dtype=bool)
+        ok = measured.ok
         mode = mode or measured.mode
         default_band = measured.usable_band_hz
         sources = measured.sources
@@ -356,6 +377,7 @@ def _measured(measured, band, mode):
             raise LossLaneError("measured: f, alpha, eps_eff (and uncertainties) differ in length")
         ua, ue = (arrs[3], arrs[4]) if len(arrs) == 5 else (None, None)
         use = np.ones(f.size, dtype=bool)
+        ok = use
         mode = mode or "single-ended"
         default_band = None
         sources = ()
@@ -368,7 +390,7 @@ def _measured(measured, band, mode):
     sel &= np.isfinite(alpha) & np.isfinite(eps)
     if ua is not None:
         sel &= np.isfinite(ua) & np.isfinite(ue) & (ua > 0) & (ue > 0)
-    return f, alpha, eps, ua, ue, sel, mode, (lo, hi), sources
+    return f, alpha, eps, ua, ue, sel, ok, mode, (lo, hi), sources
 
 
 def _start_values(section, at, foil_model, start):
@@ -449,7 +471,7 @@ def fit_materials(
         at = float(diel.at) if isinstance(diel, WidebandDebye) else DEFAULT_AT
     at = float(at)
 
-    f_all, alpha, eps, ua, ue, sel, mode, band_hz, sources = _measured(measured, band, mode)
+    f_all, alpha, eps, ua, ue, sel, ok, mode, band_hz, sources = _measured(measured, band, mode)
     if weighting is None:
         weighting = "uncertainty" if ua is not None else "relative"
     if weighting not in ("uncertainty", "relative"):
@@ -458,6 +480,8 @@ def fit_materials(
         )
     if weighting == "uncertainty" and ua is None:
         raise LossLaneError("weighting = 'uncertainty' needs the measurement's uncertainties")
+    if weighting == "relative":
+        sel = sel & ok  # without uncertainties, noisy points would weigh as much as good ones
     f = f_all[sel]
     n_par = len(vary)
     if 2 * f.size <= n_par:
@@ -522,18 +546,29 @@ def fit_materials(
 
     m = 2 * f.size
     s2 = best_cost / max(m - n_par, 1)
+    if weighting == "uncertainty":
+        s2 = max(s2, 1.0)  # never tighter than the data's own stated noise
     cov_int = _covariance(jac, s2)
-    sig_int = np.sqrt(np.diag(cov_int))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", LossLaneWarning)
+        cov_int = _widen(cov_int, residuals, x_best, best_cost, s2, lower, upper)
+    sig_lin = np.sqrt(np.diag(cov_int))
+    sig_int = sig_lin
+    if n_par > 1 and np.all(np.isfinite(sig_int)):
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", LossLaneWarning)
+            reach = _profile_weakest(cov_int, residuals, x_best, best_cost, s2, lower, upper)
+        sig_int = np.maximum(sig_int, reach / 3.0)
     unc = {}
     for i, k in enumerate(vary):
         scale = final[k] if k in _LOG else 1.0  # d value / d internal coordinate
         unc[k] = float(abs(scale) * sig_int[i])
     with np.errstate(invalid="ignore", divide="ignore"):
-        corr = cov_int / np.outer(sig_int, sig_int)
+        corr = cov_int / np.outer(sig_lin, sig_lin)
     corr = np.where(np.isfinite(corr), corr, np.nan)
     np.fill_diagonal(corr, 1.0)
-    off = np.abs(corr - np.eye(n_par))
-    separable = bool(np.all(np.isfinite(sig_int)) and not np.any(off > SEPARABLE_LIMIT))
+    multi = _multiple_correlation(corr)
+    separable = bool(np.all(np.isfinite(sig_int)) and not np.any(multi > SEPARABLE_LIMIT))
     rivals = [
         x
         for cost, x in ends[1:]
@@ -550,12 +585,15 @@ def fit_materials(
     )
     band_txt = f"{band_hz[0]:g}..{band_hz[1]:g} Hz"
     if not separable:
-        pairs = [
-            f"{vary[i]}/{vary[j]} (r = {corr[i, j]:.4f})"
-            for i in range(n_par)
-            for j in range(i + 1, n_par)
-            if not np.isfinite(corr[i, j]) or abs(corr[i, j]) > SEPARABLE_LIMIT
-        ]
+        pairs = []
+        for i, k in enumerate(vary):
+            if np.isfinite(unc[k]) and multi[i] > SEPARABLE_LIMIT:
+                r = np.where(np.arange(n_par) == i, 0.0, np.abs(np.nan_to_num(corr[i])))
+                j = int(np.argmax(r))
+                pairs.append(
+                    f"{k} (multiple correlation {multi[i]:.4f}; most with {vary[j]}, "
+                    f"r = {corr[i, j]:.4f})"
+                )
         undetermined = [k for k in vary if not np.isfinite(unc[k])]
         what = ", ".join(pairs + [f"{k} (undetermined)" for k in undetermined])
         if rivals:
@@ -582,6 +620,7 @@ def fit_materials(
         vary=vary,
         uncertainty=unc,
         correlation=corr,
+        multiple_correlation=multi,
         separable=separable,
         at_bound=at_bound,
         band_hz=(float(f[0]), float(f[-1])),
@@ -645,6 +684,113 @@ def _central_jacobian(fun, x: np.ndarray, lower, upper, step: float = 1e-6) -> n
         xm[i] = max(x[i] - h, lower[i])
         cols.append((fun(xp) - fun(xm)) / (xp[i] - xm[i]))
     return np.column_stack(cols)
+
+
+def _widen(cov, fun, x0, cost0, s2, lower, upper) -> np.ndarray:
+    """Widen the linearised covariance along each principal direction where the residual
+    rises more slowly than its quadratic model: walking out from the solution, the
+    distance where sum r^2 has risen by 9 s2 (3 sigma) sets that direction's sigma (never
+    less than the linearised one). Catches flat, banana-shaped valleys."""
+    if not np.all(np.isfinite(cov)):
+        return cov
+    lam, vecs = np.linalg.eigh(cov)
+    target = 9.0 * s2
+    new = lam.copy()
+
+    def rise(v, t):
+        x = np.clip(x0 + t * v, lower, upper)
+        return float(np.sum(fun(x) ** 2)) - cost0, bool(np.any(x != x0 + t * v))
+
+    for i in range(lam.size):
+        if not lam[i] > 0:
+            continue
+        v = vecs[:, i]
+        reach = 0.0
+        for sign in (1.0, -1.0):
+            lo, hi = 0.0, 3.0 * np.sqrt(lam[i]) * sign
+            up, clipped = rise(v, hi)
+            grown = 0
+            while up < target and not clipped and grown < 6:
+                lo, hi = hi, 2.0 * hi
+                up, clipped = rise(v, hi)
+                grown += 1
+            if grown == 0:
+                continue  # as steep as predicted, or steeper: keep the linearised sigma
+            for _ in range(5):
+                mid = 0.5 * (lo + hi)
+                if rise(v, mid)[0] < target:
+                    lo = mid
+                else:
+                    hi = mid
+            reach = max(reach, abs(hi))
+        new[i] = max(lam[i], (reach / 3.0) ** 2)
+    return (vecs * new) @ vecs.T
+
+
+def _profile_weakest(cov, fun, x0, cost0, s2, lower, upper) -> np.ndarray:
+    """How far each parameter moves along the profile of the least determined direction:
+    stepping along it, the other directions re-fitted at each step, out to where
+    sum r^2 has risen by 9 s2 (3 sigma) on either side. Follows a curved valley that a
+    straight line leaves. Returns the largest excursion per parameter (internal units)."""
+    from scipy.optimize import least_squares
+
+    lam, vecs = np.linalg.eigh(cov)
+    k = int(np.argmax(lam))
+    v = vecs[:, k]
+    others = np.delete(vecs, k, axis=1)
+    target = 9.0 * s2
+    reach = np.zeros(x0.size)
+
+    def profile(t: float, y0: np.ndarray) -> tuple[float, np.ndarray, np.ndarray]:
+        def g(y):
+            return fun(np.clip(x0 + t * v + others @ y, lower, upper))
+
+        sol = least_squares(g, y0, x_scale="jac", max_nfev=50)
+        x = np.clip(x0 + t * v + others @ sol.x, lower, upper)
+        return float(np.sum(sol.fun**2)) - cost0, x, sol.x
+
+    for sign in (1.0, -1.0):
+        y = np.zeros(others.shape[1])
+        lo, hi = 0.0, 3.0 * np.sqrt(lam[k]) * sign
+        up, x_hi, y = profile(hi, y)
+        grown = 0
+        while up < target and grown < 6 and np.all((x_hi > lower) & (x_hi < upper)):
+            lo, hi = hi, 2.0 * hi
+            up, x_hi, y = profile(hi, y)
+            grown += 1
+        if grown:
+            for _ in range(4):
+                mid = 0.5 * (lo + hi)
+                up_mid, x_mid, y_mid = profile(mid, y)
+                if up_mid < target:
+                    lo = mid
+                else:
+                    hi, x_hi, y = mid, x_mid, y_mid
+        reach = np.maximum(reach, np.abs(x_hi - x0))
+    return reach
+
+
+def _multiple_correlation(corr: np.ndarray) -> np.ndarray:
+    """R_i = sqrt(1 - 1 / (corr^-1)_ii): how well each parameter's estimate is explained by
+    the others' (1 for an undetermined or linearly dependent one). Unlike the largest
+    pairwise correlation it also catches a parameter traded against two others at once."""
+    n = corr.shape[0]
+    if n == 1:
+        return np.zeros(1)
+    out = np.ones(n)
+    good = np.all(np.isfinite(corr), axis=1)
+    if np.sum(good) >= 2:
+        sub = corr[np.ix_(good, good)]
+        try:
+            inv_diag = np.diag(np.linalg.inv(sub))
+        except np.linalg.LinAlgError:
+            return out
+        with np.errstate(divide="ignore", invalid="ignore"):
+            r2 = np.where(inv_diag >= 1.0, 1.0 - 1.0 / inv_diag, 0.0)
+        out[good] = np.sqrt(np.clip(r2, 0.0, 1.0))
+    elif np.sum(good) == 1:
+        out[good] = 0.0
+    return out
 
 
 def _encode(key: str, value: float) -> float:
