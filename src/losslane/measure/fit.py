@@ -319,7 +319,7 @@ class MaterialFit:
             f"[dielectrics.{_toml_key(dielectric_name)}]",
             f"dk = {float(dk[0])!r}",
             f"df = {float(df[0])!r}",
-            f'at = "{self.at_hz!r} Hz"',
+            f'at = "{_exact_text(self.at_hz, FREQUENCY_UNITS)}"',
             f'model = "{self.dielectric.model}"',
             f"note = {json.dumps(text_note)}",
         ]
@@ -327,10 +327,10 @@ class MaterialFit:
         if model in FOIL_PARAMETERS:
             lines += ["", f"[foils.{_toml_key(foil_name)}]", f'model = "{model}"']
             if model in ("hammerstad", "groiss"):
-                lines.append(f'rq = "{self.foil.rq * 1e6!r} um"')
+                lines.append(f'rq = "{_exact_text(self.foil.rq, LENGTH_UNITS)}"')
             elif model == "huray":
                 (radius, ratio), *_ = self.foil.spheres
-                lines.append(f'radius = "{radius * 1e6!r} um"')
+                lines.append(f'radius = "{_exact_text(radius, LENGTH_UNITS)}"')
                 lines.append(f"surface_ratio = {float(ratio)!r}")
                 if self.foil.matte_ratio != 1.0:
                     lines.append(f"matte_ratio = {float(self.foil.matte_ratio)!r}")
@@ -338,6 +338,20 @@ class MaterialFit:
         else:
             lines.append(f"# the foil (model {model!r}) was held fixed and is not written")
         return "\n".join(lines) + "\n"
+
+
+FREQUENCY_UNITS = (("GHz", 1e9), ("MHz", 1e6), ("kHz", 1e3), ("Hz", 1.0))
+LENGTH_UNITS = (("um", 1e-6), ("m", 1.0))
+
+
+def _exact_text(value: float, units) -> str:
+    """``value`` written in the first unit whose number reads back to exactly ``value``
+    (the unit parser multiplies the number by the unit's factor)."""
+    for name, factor in units:
+        number = float(repr(value / factor))
+        if number * factor == value:
+            return f"{number!r} {name}"
+    return f"{value!r} {units[-1][0]}"
 
 
 def _toml_key(name: str) -> str:
