@@ -92,6 +92,18 @@ def test_plain_two_line_helper_matches_line_theory():
     np.testing.assert_allclose(g, bare_gamma(section, f), rtol=1e-9)
 
 
+def test_chain_matrix_agrees_with_scikit_rf():
+    # scikit-rf's s2a on unequal real references (50 and 75 ohm) as the outside reference
+    import skrf
+
+    from losslane.measure.extract import _chain
+
+    rng = np.random.default_rng(0)
+    s = 0.3 * (rng.standard_normal((7, 2, 2)) + 1j * rng.standard_normal((7, 2, 2)))
+    z = np.tile([50.0, 75.0], (7, 1))
+    np.testing.assert_allclose(_chain(s, z)[0], skrf.network.s2a(s, z), rtol=1e-13)
+
+
 def test_noise_of_1e_4_stays_within_1_percent_above_1_ghz():
     """Relative noise eps on S gives an alpha error of about 0.7 eps / dL (Np/m), i.e. a
     relative error ~ eps / (alpha dL): with eps = 1e-4 and dL = 4 in, alpha dL is 0.077 Np

@@ -76,7 +76,6 @@ import numpy as np
 
 from losslane.errors import LossLaneError, warn
 from losslane.network.ports import DEFAULT_ORDER, check_order
-from losslane.network.scaled import s_to_scaled_abcd
 from losslane.units import INCH
 from losslane.xsection.rlgc import C0, NP_TO_DB
 
@@ -287,8 +286,24 @@ def _modal(c: _Coupon, mode: str, order: str) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _chain(s: np.ndarray, z: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    sc = s_to_scaled_abcd(s, z)
-    return sc.matrix, sc.log_scale
+    """Chain (ABCD) matrix (N, 2, 2) of a 2-port's S on real references z (N, 2), and a
+    zero log scale: A = ((1 + S11)(1 - S22) + S12 S21) sqrt(z1/z2) / (2 S21), B, C, D
+    likewise (D. M. Pozar, *Microwave Engineering*, the S -> ABCD table, with unequal
+    real references as in D. A. Frickey, IEEE Trans. MTT 42(2), 1994). A coupon's S21 is
+    never exactly 0 (it is measured through a line), so the division is safe."""
+    s11, s12, s21, s22 = s[:, 0, 0], s[:, 0, 1], s[:, 1, 0], s[:, 1, 1]
+    z = np.broadcast_to(np.asarray(z, float), (s.shape[0], 2))
+    r1, r2 = np.sqrt(z[:, 0]), np.sqrt(z[:, 1])
+    if np.any(s21 == 0):
+        raise LossLaneError("a coupon's S21 is exactly 0 at some frequency; it cannot be used")
+    t = s12 * s21
+    h = 0.5 / s21
+    m = np.empty(s.shape, dtype=complex)
+    m[:, 0, 0] = ((1 + s11) * (1 - s22) + t) * h * r1 / r2
+    m[:, 0, 1] = ((1 + s11) * (1 + s22) - t) * h * r1 * r2
+    m[:, 1, 0] = ((1 - s11) * (1 - s22) - t) * h / (r1 * r2)
+    m[:, 1, 1] = ((1 - s11) * (1 + s22) + t) * h * r2 / r1
+    return m, np.zeros(s.shape[0])
 
 
 def _cosh_of_pair(ma, la, mb, lb) -> np.ndarray:
