@@ -180,6 +180,20 @@ def test_undetermined_parameter_gets_infinite_uncertainty():
     assert fit.values["df"] == pytest.approx(0.01, rel=1e-6)  # the rest is still found
 
 
+def test_a_wrong_fixed_foil_is_reported_as_a_model_that_misses_the_data():
+    # coupons made with 0.5 um / 1.6 Huray spheres, fitted with another foil held fixed
+    ext = extract_line(coupons(microstrip(), LENGTHS), LENGTHS)
+    wrong = with_materials(microstrip(), foil=Huray(((0.4e-6, 1.0), (1.2e-6, 0.5)), 1.2))
+    with pytest.warns(LossLaneWarning, match="misses the data"):
+        fit = fit_materials(ext, wrong, ("dk", "df"), band=(1e9, 40e9))
+    assert fit.chi2_per_dof > 10  # against the default 1e-3 noise model
+    data = fit.to_json()
+    assert data["foil"]["spheres"][1] == {"radius_m": 1.2e-6, "surface_ratio": 0.5}
+    assert "radius" not in fit.values  # only the section's own foil parameters
+    with pytest.raises(LossLaneError, match="one sphere size"):
+        fit_materials(ext, wrong, ("radius",))
+
+
 def test_library_toml_loads_back_and_gives_the_same_line(tmp_path, clean_stripline):
     fit = fit_materials(clean_stripline, nominal_stripline(), ("dk", "df", "rq"))
     path = tmp_path / "fitted.toml"

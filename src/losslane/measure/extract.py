@@ -537,6 +537,7 @@ class LineExtraction:
         ]
         out["checks"] = [c.to_json() for c in self.checks]
         out["noise_model"] = {"relative": self.noise[0], "floor": self.noise[1]}
+        out["dropped_dc"] = self.dropped_dc
         return out
 
     def curves_csv(self) -> str:

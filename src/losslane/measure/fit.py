@@ -40,6 +40,10 @@ spread over typical ranges (local minima exist: Hammerstad's roughness saturates
 distinct start that ends as well as the best, within the noise, also marks the
 parameters as not separable.
 
+With uncertainty weighting a chi-square per degree of freedom above ``CHI2_LIMIT`` is
+reported as a model that misses the data (a wrong fixed parameter, foil model or
+geometry): the uncertainties then describe the noise, not that error.
+
 Points used: those inside the band whose branch was resolved (no "branch" flag); with
 uncertainty weighting the noisy ("ill-conditioned") points are kept, at their low weight;
 with relative weighting only unflagged points are used. The default band is the
@@ -107,6 +111,9 @@ TYPICAL_START = {"rq": 1e-6, "radius": 0.5e-6, "surface_ratio": 1.5}
 """Starting roughness when the section's foil is of another model (typical values)."""
 DEFAULT_AT = 10e9
 SEPARABLE_LIMIT = 0.999
+CHI2_LIMIT = 4.0
+"""Chi-square per degree of freedom above which (uncertainty weighting) the model is said
+to miss the data by more than their noise."""
 _SINGULAR = 1e-10
 
 
@@ -192,7 +199,9 @@ class MaterialFit:
     well as the best;
     ``at_bound`` the fitted parameters that ended on a search bound. ``f`` and the
     measured/model curves are the band's points used; ``residual_db_per_in`` is the RMS
-    of the loss difference there.
+    of the loss difference there; ``chi2_per_dof`` the weighted residual per degree of
+    freedom (about 1 when the model fits within the data's noise; with "relative"
+    weighting only a relative figure).
     """
 
     section: CrossSection
@@ -215,6 +224,7 @@ class MaterialFit:
     eps_model: np.ndarray
     at_hz: float
     weighting: str
+    chi2_per_dof: float = float("nan")
     sources: tuple[str, ...] = ()
 
     @property
@@ -236,13 +246,15 @@ class MaterialFit:
         out: dict = {"model": model}
         if model in ("hammerstad", "groiss"):
             out["rq_m"] = float(self.foil.rq)
-        elif model == "huray":
+        elif model == "huray" and len(self.foil.spheres) == 1:
             (radius, ratio), *_ = self.foil.spheres
             out.update(
                 radius_m=float(radius),
                 surface_ratio=float(ratio),
                 matte_ratio=float(self.foil.matte_ratio),
             )
+        else:  # a foil held fixed: its own parameters (several sphere sizes, a finish)
+            out.update(self.foil.parameters())
         return out
 
     def to_json(self) -> dict:
@@ -277,6 +289,7 @@ class MaterialFit:
             "points": int(self.f.size),
             "mode": self.mode,
             "weighting": self.weighting,
+            "chi2_per_dof": _finite(self.chi2_per_dof),
             "curves": {
                 "frequencies_hz": self.f.tolist(),
                 "measured_loss_db_per_in": (self.alpha_measured * NP_TO_DB * INCH).tolist(),
@@ -329,9 +342,16 @@ class MaterialFit:
             if model in ("hammerstad", "groiss"):
                 lines.append(f'rq = "{_exact_text(self.foil.rq, LENGTH_UNITS)}"')
             elif model == "huray":
-                (radius, ratio), *_ = self.foil.spheres
-                lines.append(f'radius = "{_exact_text(radius, LENGTH_UNITS)}"')
-                lines.append(f"surface_ratio = {float(ratio)!r}")
+                spheres = [
+                    f'{{ radius = "{_exact_text(a, LENGTH_UNITS)}", surface_ratio = {float(r)!r} }}'
+                    for a, r in self.foil.spheres
+                ]
+                if len(spheres) == 1:
+                    (radius, ratio), *_ = self.foil.spheres
+                    lines.append(f'radius = "{_exact_text(radius, LENGTH_UNITS)}"')
+                    lines.append(f"surface_ratio = {float(ratio)!r}")
+                else:
+                    lines.append("spheres = [" + ", ".join(spheres) + "]")
                 if self.foil.matte_ratio != 1.0:
                     lines.append(f"matte_ratio = {float(self.foil.matte_ratio)!r}")
             lines.append(f"note = {json.dumps(text_note)}")
@@ -352,6 +372,10 @@ def _exact_text(value: float, units) -> str:
         if number * factor == value:
             return f"{number!r} {name}"
     return f"{value!r} {units[-1][0]}"
+
+
+def _finite(v: float) -> float | None:
+    return float(v) if np.isfinite(v) else None
 
 
 def _toml_key(name: str) -> str:
@@ -407,21 +431,21 @@ def _measured(measured, band, mode):
     return f, alpha, eps, ua, ue, sel, ok, mode, (lo, hi), sources
 
 
+def _own_foil_values(foil: Roughness) -> dict:
+    model = _foil_model(foil)
+    if model in ("hammerstad", "groiss"):
+        return {"rq": float(foil.rq)}
+    if model == "huray" and len(foil.spheres) == 1:
+        return {"radius": float(foil.spheres[0][0]), "surface_ratio": float(foil.spheres[0][1])}
+    return {}
+
+
 def _start_values(section, at, foil_model, start):
     vals: dict[str, float] = {}
     dk, df = section.dielectric.dk_df(np.array([at]))
     vals["dk"], vals["df"] = float(dk[0]), float(df[0])
-    foil = section.metal.foil
-    current = _foil_model(foil)
-    if current == foil_model and foil_model in ("hammerstad", "groiss"):
-        vals["rq"] = float(foil.rq)
-    elif current == foil_model == "huray":
-        if len(foil.spheres) != 1:
-            raise LossLaneError(
-                "foil: the Huray fit takes one sphere size; the section's foil has "
-                f"{len(foil.spheres)}"
-            )
-        vals["radius"], vals["surface_ratio"] = (float(v) for v in foil.spheres[0])
+    if _foil_model(section.metal.foil) == foil_model:
+        vals.update(_own_foil_values(section.metal.foil))
     for k in FOIL_PARAMETERS.get(foil_model, ()):
         vals.setdefault(k, TYPICAL_START[k])
     vals["conductivity"] = float(section.metal.conductor.sigma)
@@ -479,6 +503,14 @@ def fit_materials(
             raise LossLaneError(
                 f"vary: {k!r} is not a parameter of the {foil_model!r} roughness model "
                 f"(its parameters: {valid}); choose foil_model or another parameter"
+            )
+    foil = section.metal.foil
+    if foil_model == "huray" and isinstance(foil, Huray) and len(foil.spheres) != 1:
+        if set(foil_keys) & set(vary):
+            raise LossLaneError(
+                f"vary: the Huray fit takes one sphere size; the section's foil has "
+                f"{len(foil.spheres)} (hold radius and surface_ratio fixed, or start from "
+                "a one-size foil)"
             )
     if at is None:
         diel = section.dielectric
@@ -555,11 +587,22 @@ def fit_materials(
         best_cost, x_best = ends[0]
         jac = _central_jacobian(residuals, x_best, lower, upper)
     final = decode(x_best)
+    if not vary_foil:  # report only the parameters the section's own foil has
+        for k in set(FOIL_PARAMETERS[foil_model]) - set(_own_foil_values(section.metal.foil)):
+            final.pop(k, None)
     fitted = build(final)
     a_mod, e_mod = line_constants(fitted, f, mode)  # warnings of the fitted model, once
 
     m = 2 * f.size
     s2 = best_cost / max(m - n_par, 1)
+    chi2 = s2
+    if weighting == "uncertainty" and chi2 > CHI2_LIMIT:
+        warn(
+            f"fit over {band_hz[0]:g}..{band_hz[1]:g} Hz: the model misses the data by more "
+            f"than their noise (chi-square per degree of freedom {chi2:.3g}); a parameter "
+            "held fixed, the foil model or the cross-section may be wrong, and the "
+            "uncertainties cover the noise only"
+        )
     if weighting == "uncertainty":
         s2 = max(s2, 1.0)  # never tighter than the data's own stated noise
     cov_int = _covariance(jac, s2)
@@ -646,6 +689,7 @@ def fit_materials(
         eps_model=e_mod,
         at_hz=at,
         weighting=weighting,
+        chi2_per_dof=float(chi2),
         sources=tuple(sources),
     )
 
