@@ -285,12 +285,12 @@ def _modal(c: _Coupon, mode: str, order: str) -> tuple[np.ndarray, np.ndarray]:
 # ---------------------------------------------------------------- core
 
 
-def _chain(s: np.ndarray, z: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Chain (ABCD) matrix (N, 2, 2) of a 2-port's S on real references z (N, 2), and a
-    zero log scale: A = ((1 + S11)(1 - S22) + S12 S21) sqrt(z1/z2) / (2 S21), B, C, D
-    likewise (D. M. Pozar, *Microwave Engineering*, the S -> ABCD table, with unequal
-    real references as in D. A. Frickey, IEEE Trans. MTT 42(2), 1994). A coupon's S21 is
-    never exactly 0 (it is measured through a line), so the division is safe."""
+def _chain(s: np.ndarray, z) -> np.ndarray:
+    """Chain (ABCD) matrix (N, 2, 2) of a 2-port's S on real references z (N, 2):
+    A = ((1 + S11)(1 - S22) + S12 S21) sqrt(z1/z2) / (2 S21), and B, C, D likewise
+    (D. M. Pozar, *Microwave Engineering*, the S -> ABCD table, with unequal real
+    references as in D. A. Frickey, IEEE Trans. MTT 42(2), 1994). A coupon's S21 is never
+    exactly 0 (it is measured through a line), so the division is safe."""
     s11, s12, s21, s22 = s[:, 0, 0], s[:, 0, 1], s[:, 1, 0], s[:, 1, 1]
     z = np.broadcast_to(np.asarray(z, float), (s.shape[0], 2))
     r1, r2 = np.sqrt(z[:, 0]), np.sqrt(z[:, 1])
@@ -303,20 +303,19 @@ def _chain(s: np.ndarray, z: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     m[:, 0, 1] = ((1 + s11) * (1 + s22) - t) * h * r1 * r2
     m[:, 1, 0] = ((1 - s11) * (1 - s22) - t) * h / (r1 * r2)
     m[:, 1, 1] = ((1 - s11) * (1 + s22) + t) * h * r2 / r1
-    return m, np.zeros(s.shape[0])
+    return m
 
 
-def _cosh_of_pair(ma, la, mb, lb) -> np.ndarray:
-    """z = tr(P) / (2 sqrt(det P)) with P = M_B M_A^-1 (scaled chain matrices)."""
+def _cosh_of_pair(ma: np.ndarray, mb: np.ndarray) -> np.ndarray:
+    """z = tr(P) / (2 sqrt(det P)) with P = M_B M_A^-1 = M_B adj(M_A) / det(M_A).
+
+    det P = det M_B / det M_A is ~1 (exactly 1 for reciprocal data), so its principal
+    square root has the right sign."""
     a, b, c, d = ma[:, 0, 0], ma[:, 0, 1], ma[:, 1, 0], ma[:, 1, 1]
     det_a = a * d - b * c
-    # P = e M_B adj(M_A) / det(M_A), e = exp(lb - la): tr P = e tr / det_a and
-    # det P = e^2 det_b / det_a, which is ~1 (exactly 1 for reciprocal data), so its
-    # principal square root has the right sign
     tr = mb[:, 0, 0] * d - mb[:, 0, 1] * c - mb[:, 1, 0] * b + mb[:, 1, 1] * a
     det_b = mb[:, 0, 0] * mb[:, 1, 1] - mb[:, 0, 1] * mb[:, 1, 0]
-    e = np.exp(lb - la)
-    return (e * tr / det_a) / (2.0 * np.sqrt(e * e * det_b / det_a))
+    return (tr / det_a) / (2.0 * np.sqrt(det_b / det_a))
 
 
 def propagation_constant_pair(
@@ -327,9 +326,9 @@ def propagation_constant_pair(
     continuation from the low end (f > 0 only). The plain two-line method, for checks;
     :func:`extract_line` adds the uncertainty, flags and the multiline combination."""
     f = np.asarray(f, float)
-    ma, la = _chain(np.asarray(s_a, complex), z_ref)
-    mb, lb = _chain(np.asarray(s_b, complex), z_ref)
-    w = np.arccosh(_cosh_of_pair(ma, la, mb, lb))
+    ma = _chain(np.asarray(s_a, complex), z_ref)
+    mb = _chain(np.asarray(s_b, complex), z_ref)
+    w = np.arccosh(_cosh_of_pair(ma, mb))
     return _anchor(_continuation(w, f), f) / delta_length
 
 
@@ -693,7 +692,7 @@ def _solve(f, s_list, z_list, lens, noise_rel, noise_floor):
         for j in range(i + 1, n_files)
     ]
     dl = np.array([lens[j] - lens[i] for i, j in pairs])
-    z = np.array([_cosh_of_pair(*chains[i], *chains[j]) for i, j in pairs])  # (P, N)
+    z = np.array([_cosh_of_pair(chains[i], chains[j]) for i, j in pairs])  # (P, N)
     w = np.arccosh(z)
 
     # branch resolution: continuation per pair; prediction from the shortest pair
@@ -734,9 +733,9 @@ def _solve(f, s_list, z_list, lens, noise_rel, noise_floor):
                 col = np.zeros((len(pairs), f.size), dtype=complex)
                 for p, (i, j) in enumerate(pairs):
                     if k == i:
-                        dz = _cosh_of_pair(*cp, *chains[j]) - _cosh_of_pair(*cm, *chains[j])
+                        dz = _cosh_of_pair(cp, chains[j]) - _cosh_of_pair(cm, chains[j])
                     elif k == j:
-                        dz = _cosh_of_pair(*chains[i], *cp) - _cosh_of_pair(*chains[i], *cm)
+                        dz = _cosh_of_pair(chains[i], cp) - _cosh_of_pair(chains[i], cm)
                     else:
                         continue
                     col[p] = dz / (2 * h) / sinh[p]
