@@ -296,5 +296,17 @@ def test_bad_input(clean_stripline):
         fit_materials(clean_stripline, s, ("dk",), mode="differential")
     with pytest.raises(LossLaneError, match="cannot be fitted"):
         fit_materials(clean_stripline, s, ("dk",), foil_model="graded")
+    with pytest.raises(LossLaneError, match="replaces the section's"):
+        fit_materials(clean_stripline, s, ("dk",), foil_model="huray")
     with pytest.raises(LossLaneError, match="needs a pair"):
         line_constants(s, np.array([1e9]), "differential")
+
+
+def test_foil_model_can_replace_the_sections_foil(clean_stripline):
+    # Hammerstad-made data fitted with Groiss from a smooth, lossless-laminate start
+    start = nominal_stripline(dk=3.7, df=0.0, foil=Smooth())
+    start = with_materials(start, ConstantDielectric(3.7, 0.0))
+    fit = quiet_fit(clean_stripline, start, ("df", "rq"), foil_model="groiss")
+    assert isinstance(fit.foil, Groiss) and isinstance(fit.dielectric, WidebandDebye)
+    assert fit.values["df"] == pytest.approx(0.01, rel=0.01)  # another foil law: close only
+    assert fit.chi2_per_dof > 4  # and the misfit of the other law is reported

@@ -512,6 +512,12 @@ def fit_materials(
                 f"{len(foil.spheres)} (hold radius and surface_ratio fixed, or start from "
                 "a one-size foil)"
             )
+    replaced = foil_model != _foil_model(foil)
+    if replaced and foil_keys and not (set(foil_keys) & (set(vary) | set(start or {}))):
+        raise LossLaneError(
+            f"foil_model = {foil_model!r} replaces the section's {_foil_model(foil)!r} foil: "
+            f"vary its parameters ({', '.join(foil_keys)}) or give them in start"
+        )
     if at is None:
         diel = section.dielectric
         at = float(diel.at) if isinstance(diel, WidebandDebye) else DEFAULT_AT
@@ -544,7 +550,7 @@ def fit_materials(
     values = _start_values(section, at, foil_model, start)
     matte = float(getattr(section.metal.foil, "matte_ratio", 1.0))
     vary_diel = bool({"dk", "df"} & set(vary))
-    vary_foil = bool(set(foil_keys) & set(vary)) or foil_model != _foil_model(section.metal.foil)
+    vary_foil = bool(set(foil_keys) & set(vary)) or replaced
     vary_cond = "conductivity" in vary
 
     def build(vals: Mapping[str, float]) -> CrossSection:
@@ -555,7 +561,7 @@ def fit_materials(
 
     lower = np.array([_encode(k, BOUNDS[k][0]) for k in vary])
     upper = np.array([_encode(k, BOUNDS[k][1]) for k in vary])
-    x0 = np.array([_encode(k, values[k]) for k in vary])
+    x0 = np.array([_encode(k, float(np.clip(values[k], *BOUNDS[k]))) for k in vary])
     x0 = np.clip(x0, lower + 1e-9 * (upper - lower), upper - 1e-9 * (upper - lower))
 
     def decode(x: np.ndarray) -> dict:
