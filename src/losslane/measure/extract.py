@@ -755,4 +755,11 @@ def _solve(f, s_list, z_list, lens, noise_rel, noise_floor):
         weights = np.conj(cinv_one) / denom[:, None]
         gamma = np.sum(weights * pair_gamma.T, axis=1)
         var = 1.0 / denom
+    bad = ~(np.isfinite(gamma) & np.isfinite(var) & (var > 0))
+    if np.any(bad):  # a singular covariance: the best single pair there
+        diag = np.real(np.diagonal(cov, axis1=1, axis2=2))  # (N, P)
+        best = np.argmin(np.where(np.isfinite(diag), diag, np.inf), axis=1)
+        idx = np.arange(f.size)
+        gamma = np.where(bad, pair_gamma[best, idx], gamma)
+        var = np.where(bad, diag[idx, best], var)
     return gamma, var, dl, pair_gamma, branch_bad
