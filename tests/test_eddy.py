@@ -68,7 +68,8 @@ def test_parallel_plate_slabs_between_magnetic_walls_exact():
     )
     f = np.array([0.0, 1e3, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10])
     cm = build_conductor_mesh(blocks, SIGMA, skin(f.max()), NORMAL, open_boundary=False)
-    r, l, _ = eddy.mesh_impedance(cm, f)
+    sol = eddy.mesh_impedance(cm, f)
+    r, l = sol.r, sol.l
     fa = f[1:]
     k = gamma(fa)
     z = 2 * k / (SIGMA * w) / np.tanh(k * t) + 2j * np.pi * fa * MU0 * d / w
@@ -76,6 +77,8 @@ def test_parallel_plate_slabs_between_magnetic_walls_exact():
     l_ex = np.concatenate([[MU0 * d / w + 2 * MU0 * t / (3 * w)], z.imag / (2 * np.pi * fa)])
     np.testing.assert_allclose(r[:, 0, 0], r_ex, rtol=2e-3)  # measured <= 7e-4 (10 GHz)
     np.testing.assert_allclose(l[:, 0, 0], l_ex, rtol=1e-5)  # measured <= 1e-6
+    # each slab dissipates half (same exact solution, one slab's internal impedance)
+    np.testing.assert_allclose(sol.losses[:, :, 0, 0], 0.5 * r_ex[:, None] * [1, 1], rtol=2e-3)
 
 
 # -- exact axisymmetric solution: coaxial line ----------------------------------------
@@ -127,6 +130,12 @@ def coax_exact(f: np.ndarray, a: float, b: float, c: float) -> np.ndarray:
                                      / [I1(gc) K1(gb) - I1(gb) K1(gc)];
     external    j omega mu0/(2 pi) ln(b/a).
     Written with the exponentially scaled Bessel functions (ive, kve) to avoid overflow."""
+    za, zb = coax_internal(f, a, b, c)
+    return za + zb + 2j * np.pi * f * MU0 / (2 * np.pi) * np.log(b / a)
+
+
+def coax_internal(f: np.ndarray, a: float, b: float, c: float) -> tuple[np.ndarray, np.ndarray]:
+    """The internal impedances (Z_a, Z_b) of the wire and the tube (see ``coax_exact``)."""
     g = gamma(f)
     za = g / (2 * np.pi * a * SIGMA) * ive(0, g * a) / ive(1, g * a)
     gr = g.real
@@ -149,13 +158,14 @@ def coax_exact(f: np.ndarray, a: float, b: float, c: float) -> np.ndarray:
     ref = terms[1][1]  # the largest exponent: K0(gb) I1(gc) ~ exp(g (c - b))
     v = [m * np.exp(e - ref) for m, e in terms]
     zb = g / (2 * np.pi * b * SIGMA) * (v[0] + v[1]) / (v[2] - v[3])
-    return za + zb + 2j * np.pi * f * MU0 / (2 * np.pi) * np.log(b / a)
+    return za, zb
 
 
 def test_coaxial_line_bessel_exact():
     a, b, c = 0.25e-3, 0.8e-3, 0.9e-3
     f = np.array([0.0, 1e3, 1e5, 1e6, 1e7, 1e8, 1e9])
-    r, l, _ = eddy.mesh_impedance(coax_mesh(a, b, c, skin(f.max())), f)
+    sol = eddy.mesh_impedance(coax_mesh(a, b, c, skin(f.max())), f)
+    r, l = sol.r, sol.l
     z = coax_exact(f[1:], a, b, c)
     # DC: 1/(sigma area) of each conductor, summed for the loop (exact)
     r_dc = 1 / (SIGMA * np.pi * a * a) + 1 / (SIGMA * np.pi * (c * c - b * b))
@@ -169,6 +179,10 @@ def test_coaxial_line_bessel_exact():
     np.testing.assert_allclose(l[0, 0, 0], l_dc, rtol=1e-4)
     np.testing.assert_allclose(r[1:, 0, 0], z.real, rtol=2e-3)  # measured <= 8e-4 (1 GHz)
     np.testing.assert_allclose(l[1:, 0, 0], z.imag / (2 * np.pi * f[1:]), rtol=1e-4)
+    # each conductor's loss is the real part of its own internal impedance
+    za, zb = coax_internal(f[1:], a, b, c)
+    np.testing.assert_allclose(sol.losses[1:, 0, 0, 0], za.real, rtol=2e-3)
+    np.testing.assert_allclose(sol.losses[1:, 1, 0, 0], zb.real, rtol=2e-3)
 
 
 # -- DC resistance: exact ----------------------------------------------------------
@@ -266,6 +280,19 @@ def test_pair_matrices_reciprocal_symmetric_and_passive():
         np.testing.assert_allclose(m[:, 0, 0], m[:, 1, 1], rtol=1e-9)  # mirror symmetry
         assert np.all(np.linalg.eigvalsh(m) > 0)  # loss and stored energy are positive
     assert np.all(res.r[:, 0, 1] > 0)  # the shared return's resistance couples them
+
+
+def test_losses_of_the_conductors_sum_to_the_resistance():
+    # Poynting's theorem: the real part of the complex power fed in, I^T R I, is the
+    # power dissipated in the conductors (exact also for the Galerkin solution)
+    f = np.array([0.0, 1e5, 1e7, 1e9])
+    res = eddy.eddy_impedance(pair(), f, estimate=False)
+    assert set(res.losses) == {"conductor 1", "conductor 2", "lower plane"}
+    total = sum(res.losses.values())
+    np.testing.assert_allclose(total, res.r, rtol=1e-9, atol=1e-12 * res.r.max())
+    # at high frequency the plane carries a real share, at DC (wide plane) almost none
+    plane = res.losses["lower plane"][:, 0, 0] / res.r[:, 0, 0]
+    assert plane[0] < 0.01 and 0.1 < plane[-1] < 0.5
 
 
 def test_resistance_rises_and_inductance_falls_with_frequency():

@@ -68,13 +68,16 @@ PLANE_WIDTH_SCALES = 100.0
 @dataclass(frozen=True)
 class EddyResult:
     """Series impedance per unit length of ``n`` signal conductors with a common return:
-    ``f`` (N,), ``r`` (N, n, n) ohm/m, ``l`` (N, n, n) H/m. ``error_r`` and ``error_l``
-    (N,) are the largest changes from the next coarser mesh setting, each entry scaled
-    by sqrt(X_ii X_jj) (None when not estimated)."""
+    ``f`` (N,), ``r`` (N, n, n) ohm/m, ``l`` (N, n, n) H/m. ``losses`` maps each
+    conductor (signals by name, "lower plane", "upper plane", grounds) to its share of
+    ``r`` (N, n, n), the power dissipated in it; the shares sum to ``r``. ``error_r`` and
+    ``error_l`` (N,) are the largest changes from the next coarser mesh setting, each
+    entry scaled by sqrt(X_ii X_jj) (None when not estimated)."""
 
     f: np.ndarray
     r: np.ndarray
     l: np.ndarray
+    losses: dict[str, np.ndarray]
     error_r: np.ndarray | None
     error_l: np.ndarray | None
     names: tuple[str, ...]
@@ -98,7 +101,19 @@ class _Assembled:
     g: np.ndarray  # (groups,) sigma area
     n: int  # signal groups; the last group is the return
     open_boundary: bool
-    elements: int
+    conductors: list  # per conductor: (its group, its mu0 sigma mass on the free dofs)
+
+
+@dataclass(frozen=True)
+class MeshImpedance:
+    """``r``, ``l`` (N, n, n) of a solve on a given mesh; ``losses`` (N, conductors, n, n)
+    the part of R dissipated in each conductor of the mesh (they sum to R); ``unknowns``
+    the size of the sparse system."""
+
+    r: np.ndarray
+    l: np.ndarray
+    losses: np.ndarray
+    unknowns: int
 
 
 def _assemble(cm: ConductorMesh) -> _Assembled:
@@ -124,6 +139,7 @@ def _assemble(cm: ConductorMesh) -> _Assembled:
         raise LossLaneError("eddy-current solver: the cross-section needs a return conductor")
     ndof = basis.N
     m_all = None
+    parts = []
     b = np.zeros((ndof, n + 1))
     g = np.zeros(n + 1)
     ones = np.ones(ndof)
@@ -136,6 +152,7 @@ def _assemble(cm: ConductorMesh) -> _Assembled:
         col = sig if sig >= 0 else n
         b[:, col] += mk @ ones  # P2 functions sum to one: the load of a uniform V
         g[col] += float(mk.sum()) / MU0  # sigma times the area
+        parts.append((col, mk))
     if cm.open_boundary:
         fixed = basis.get_dofs(mesh.boundary_facets()).all()
     else:
@@ -143,7 +160,8 @@ def _assemble(cm: ConductorMesh) -> _Assembled:
     free = np.setdiff1d(np.arange(ndof), fixed)
     kf = k_all[free][:, free].tocsc()
     mf = m_all[free][:, free].tocsc()
-    return _Assembled(kf, mf, b[free], g, n, cm.open_boundary, mesh.t.shape[1])
+    parts = [(col, mk[free][:, free].tocsr()) for col, mk in parts]
+    return _Assembled(kf, mf, b[free], g, n, cm.open_boundary, parts)
 
 
 def _factor(a):
@@ -171,8 +189,21 @@ def _one_blas_thread():
     return threadpool_limits(limits=1, user_api="blas")
 
 
-def _dc(asm_: _Assembled) -> tuple[np.ndarray, np.ndarray]:
-    """R and L (n, n) of uniform currents."""
+def _losses(asm_: _Assembled, v: np.ndarray, e_a: np.ndarray | None) -> np.ndarray:
+    """(conductors, n, n): Re of the integral of J_i^* J_j / sigma over each conductor,
+    for the voltage drops ``v`` (groups, n) and the induced field ``e_a`` = -j omega A
+    (free dofs, n; None at DC): the share of R dissipated there. With E = V - j omega A
+    in nodal form (P2 functions sum to one), it is E^H M_k E / mu0."""
+    out = np.zeros((len(asm_.conductors), asm_.n, asm_.n))
+    for k, (col, mk) in enumerate(asm_.conductors):
+        ones = np.ones(mk.shape[0])
+        e = np.outer(ones, v[col]) if e_a is None else np.outer(ones, v[col]) + e_a
+        out[k] = (e.conj().T @ (mk @ e)).real / MU0
+    return 0.5 * (out + np.swapaxes(out, 1, 2))
+
+
+def _dc(asm_: _Assembled) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """R, L (n, n) and the losses of uniform currents."""
     n = asm_.n
     p = np.vstack([np.eye(n), -np.ones((1, n))])  # unit signal currents, return -sum
     v = p / asm_.g[:, None]  # (groups, n) voltage drops of the uniform currents
@@ -189,12 +220,12 @@ def _dc(asm_: _Assembled) -> tuple[np.ndarray, np.ndarray]:
         rhs[0] = 0.0
     a = _factor(k).solve(np.ascontiguousarray(rhs))
     lmat = (v.T @ (asm_.b.T @ a)) / MU0
-    r = p.T @ (p / asm_.g[:, None])
-    return r, 0.5 * (lmat + lmat.T)
+    r = p.T @ v
+    return r, 0.5 * (lmat + lmat.T), _losses(asm_, v, None)
 
 
-def _ac(asm_: _Assembled, f: float) -> np.ndarray:
-    """Z (n, n) at frequency f > 0."""
+def _ac(asm_: _Assembled, f: float) -> tuple[np.ndarray, np.ndarray]:
+    """Z (n, n) and the losses at frequency f > 0."""
     omega = 2 * math.pi * f
     n = asm_.n
     lu = _factor((asm_.k + (1j * omega) * asm_.m).tocsc())
@@ -203,32 +234,34 @@ def _ac(asm_: _Assembled, f: float) -> np.ndarray:
     y = 0.5 * (y + y.T)
     if asm_.open_boundary:
         p = np.vstack([np.eye(n), -np.ones((1, n))])
-        z = p.T @ np.linalg.solve(y, p)
+        v = np.linalg.solve(y, p)  # voltage drops of unit signal currents
     else:
         # no flux leaves a magnetically walled domain: the currents always sum to zero
         # (Y has the null vector 1), so reference the return's voltage drop to 0
-        z = np.linalg.inv(y[:n, :n])
-    return 0.5 * (z + z.T)
+        v = np.vstack([np.linalg.inv(y[:n, :n]), np.zeros((1, n))])
+    z = v[:n] - v[n]
+    return 0.5 * (z + z.T), _losses(asm_, v, -1j * omega * (x @ v))
 
 
-def mesh_impedance(cm: ConductorMesh, f: ArrayLike) -> tuple[np.ndarray, np.ndarray, int]:
-    """R (N, n, n) ohm/m and L (N, n, n) H/m of the conductors of ``cm`` at frequencies
-    ``f`` (Hz, >= 0), and the number of unknowns. The mesh must resolve the skin depth at
-    the highest frequency (``build_conductor_mesh`` grades it so)."""
+def mesh_impedance(cm: ConductorMesh, f: ArrayLike) -> MeshImpedance:
+    """R and L (N, n, n) of the conductors of ``cm`` at frequencies ``f`` (Hz, >= 0),
+    with each conductor's share of R. The mesh must resolve the skin depth at the highest
+    frequency (``build_conductor_mesh`` grades it so)."""
     f = _frequencies(f)
     asm_ = _assemble(cm)
     n = asm_.n
     r = np.zeros(f.shape + (n, n))
     l = np.zeros(f.shape + (n, n))
+    losses = np.zeros(f.shape + (len(asm_.conductors), n, n))
     with _one_blas_thread():
         for i, fi in enumerate(f):
             if fi == 0:
-                r[i], l[i] = _dc(asm_)
+                r[i], l[i], losses[i] = _dc(asm_)
             else:
-                z = _ac(asm_, float(fi))
+                z, losses[i] = _ac(asm_, float(fi))
                 r[i] = z.real
                 l[i] = z.imag / (2 * math.pi * fi)
-    return r, l, asm_.k.shape[0] + n + 1
+    return MeshImpedance(r, l, losses, asm_.k.shape[0] + n + 1)
 
 
 def _frequencies(f: ArrayLike) -> np.ndarray:
@@ -306,15 +339,17 @@ def eddy_impedance(
     kw = dict(conductivity=conductivity, plane_thickness=plane_thickness, plane_width=width)
     fmax = float(f.max())
     cm = eddy_mesh(geometry, fmax, level=level, **kw)
-    r, l, unknowns = mesh_impedance(cm, f)
+    sol = mesh_impedance(cm, f)
+    r, l = sol.r, sol.l
     err_r = err_l = None
     if estimate:
-        rc, lc, _ = mesh_impedance(eddy_mesh(geometry, fmax, level=level - 1, **kw), f)
-        err_r, err_l = _change(r, rc), _change(l, lc)
+        coarse = mesh_impedance(eddy_mesh(geometry, fmax, level=level - 1, **kw), f)
+        err_r, err_l = _change(r, coarse.r), _change(l, coarse.l)
     return EddyResult(
         f,
         r,
         l,
+        {name: sol.losses[:, k] for k, name in enumerate(cm.names)},
         err_r,
         err_l,
         tuple(name for name, s in zip(cm.names, cm.signal, strict=True) if s >= 0),
@@ -322,7 +357,7 @@ def eddy_impedance(
         width,
         float(plane_thickness),
         int(cm.mesh.t.shape[1]),
-        unknowns,
+        sol.unknowns,
     )
 
 
@@ -337,6 +372,7 @@ __all__ = [
     "LEVELS",
     "PARAMS",
     "EddyResult",
+    "MeshImpedance",
     "eddy_impedance",
     "eddy_mesh",
     "mesh_impedance",
