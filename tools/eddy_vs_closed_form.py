@@ -9,7 +9,9 @@ quasi-static external inductance are compared, without the closed forms' dispers
 wide with no DC resistance); ``--plane-width`` sets another width.
 
 Run from the repository root: ``python tools/eddy_vs_closed_form.py`` (about a minute on
-two cores). Deviation = closed form / eddy current - 1.
+two cores). Deviation = closed form / eddy current - 1. Each table also splits R into
+the strip's and the planes' shares (the closed forms' conductor groups against the power
+dissipated in each conductor of the eddy-current solution).
 """
 
 from __future__ import annotations
@@ -19,6 +21,7 @@ import warnings
 
 import numpy as np
 
+from losslane.materials.conductor import internal_impedance
 from losslane.materials.dielectric import ConstantDielectric
 from losslane.units import MIL, OZ_COPPER
 from losslane.xsection.base import Metal
@@ -30,6 +33,21 @@ from losslane.xsection.stripline import Stripline
 AIR = ConstantDielectric(1.0, name="air")
 F = np.array([1e3, 1e4, 1e5, 3e5, 1e6, 3e6, 1e7, 3e7, 1e8, 3e8, 1e9, 3e9, 1e10])
 BANDS = (("1-100 kHz", 1e3, 1e5), ("0.3-100 MHz", 3e5, 1e8), ("0.3-10 GHz", 3e8, 1e10))
+
+
+def group_r(cf, f: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The closed form's R split into (strip, planes), from its conductor groups."""
+    dims = [np.asarray(getattr(cf, k), float) for k in cf.dimensions]
+    strip = np.zeros(f.shape)
+    planes = np.zeros(f.shape)
+    for grp in cf._groups(*dims):
+        k = grp.roughness.factor(f, grp.conductor)
+        r, _ = internal_impedance(f, grp.conductor, grp.geometry_factor, grp.depth, k, grp.wide)
+        if grp.wide:
+            planes = planes + r
+        else:
+            strip = strip + r
+    return strip, planes
 
 
 def cases() -> list[tuple[str, object, Geometry, float]]:
@@ -72,17 +90,26 @@ def main() -> None:
         )
         r_e, l_e = res.r[:, 0, 0], res.l[:, 0, 0]
         dr, dl = r_cf / r_e - 1, l_cf / l_e - 1
+        s_cf, p_cf = group_r(cf, F)
+        s_e = res.losses[res.names[0]][:, 0, 0]
+        p_e = sum(v[:, 0, 0] for k, v in res.losses.items() if k.endswith("plane"))
+        assert np.allclose(s_cf + p_cf, r_cf), "closed-form groups must sum to its R"
         print(f"\n### {label}\n")
         print(
             f"plane width {res.plane_width * 1e3:.2f} mm; eddy-current error estimate "
             f"R {100 * res.error_r.max():.2f} %, L {100 * res.error_l.max():.2f} %\n"
         )
-        print("| f | R eddy (ohm/m) | R closed/eddy - 1 | L eddy (nH/m) | L closed/eddy - 1 |")
-        print("|---|---|---|---|---|")
+        print(
+            "| f | R eddy (ohm/m) | R closed/eddy - 1 | strip R: closed/eddy - 1 | "
+            "planes' R, eddy (ohm/m) | planes' R closed (ohm/m) | L eddy (nH/m) | "
+            "L closed/eddy - 1 |"
+        )
+        print("|---|---|---|---|---|---|---|---|")
         for i, fi in enumerate(F):
             print(
-                f"| {fi:.0e} | {r_e[i]:.4g} | {100 * dr[i]:+.1f} % | {1e9 * l_e[i]:.1f} | "
-                f"{100 * dl[i]:+.2f} % |"
+                f"| {fi:.0e} | {r_e[i]:.4g} | {100 * dr[i]:+.1f} % | "
+                f"{100 * (s_cf[i] / s_e[i] - 1):+.1f} % | {p_e[i]:.3g} | {p_cf[i]:.3g} | "
+                f"{1e9 * l_e[i]:.1f} | {100 * dl[i]:+.2f} % |"
             )
         row = [label]
         for _, lo, hi in BANDS:
