@@ -32,6 +32,12 @@ Mesh: ``eddy_mesh`` grades the grid into every conductor face down to a fraction
 smallest skin depth of the requested frequencies; the mesh is built once per call and
 reused at every frequency. ``LEVELS`` name three settings; the result carries the
 change from the next coarser setting as its discretisation error estimate.
+
+Accuracy at the default setting (measured, see tests/test_eddy.py and
+docs/eddy-current.md): the exact two-slab and coaxial solutions within 7.5e-4 in R (the
+largest at the highest frequency) and 1e-5 in L from DC to 10 GHz; a 6 mil microstrip
+within 0.1 % (R) and 0.05 % (L) of a solve with 6.5 times the unknowns. The reported
+estimate (0.5 % and 0.1 % there) is conservative by about five times.
 """
 
 from __future__ import annotations
