@@ -10,9 +10,8 @@ from losslane.materials.dielectric import WidebandDebye
 from losslane.materials.roughness import Hammerstad, Huray
 from losslane.network import LineSegment, SeriesRL, ShuntCapacitor, build_network
 from losslane.units import INCH, MIL
-from losslane.xsection import Microstrip, Stripline
+from losslane.xsection import Microstrip, MicrostripPair, Stripline, StriplinePair
 from losslane.xsection.base import Metal
-from losslane.xsection.coupled import MicrostripPair, StriplinePair
 
 F = np.linspace(0.0, 40e9, 801)  # 50 MHz steps, with the DC point
 LAMINATE = WidebandDebye(3.7, 0.01, 10e9, name="test laminate")

@@ -34,9 +34,8 @@ from losslane.materials.library import load_library
 from losslane.materials.roughness import Groiss, Hammerstad, Huray, Smooth
 from losslane.measure import extract_line, fit_materials, line_constants, with_materials
 from losslane.units import INCH, MIL
-from losslane.xsection import Microstrip, Stripline
+from losslane.xsection import Microstrip, Stripline, StriplinePair
 from losslane.xsection.base import Metal
-from losslane.xsection.coupled import StriplinePair
 
 LENGTHS = (2 * INCH, 6 * INCH)
 TRUTH = {

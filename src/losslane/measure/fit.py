@@ -138,8 +138,8 @@ def with_materials(
     if changes:
         metal = replace(metal, **changes)
     if dielectric is not None:
-        return replace(section, dielectric=dielectric, metal=metal)
-    return replace(section, metal=metal)
+        return section.replace(dielectric=dielectric, metal=metal)
+    return section.replace(metal=metal)
 
 
 def line_constants(
