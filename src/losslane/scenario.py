@@ -181,6 +181,14 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
     except tomllib.TOMLDecodeError as exc:
         where = str(path) if path else "scenario"
         raise LossLaneError(f"{where}: not valid TOML: {exc}") from None
+    return scenario_from_data(data, base, path, source)
+
+
+def scenario_from_data(
+    data: Mapping, base: Path | str = ".", path: Path | None = None, source: str = ""
+) -> Scenario:
+    """A scenario from its parsed TOML tables (what a sweep varies); ``source`` is the text
+    echoed in the report."""
     base = Path(base)
     check_keys("scenario", data, TOP_KEYS)
     if "sweep" not in data:
@@ -499,4 +507,5 @@ __all__ = [
     "Sweep",
     "load_scenario",
     "parse_scenario",
+    "scenario_from_data",
 ]
