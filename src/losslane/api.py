@@ -40,6 +40,8 @@ __all__ = [
     "section",
     "size",
     "spread",
+    "run_sweep",
+    "sweep",
 ]
 
 if TYPE_CHECKING:
@@ -535,10 +537,9 @@ def build(
     """
     import warnings
 
-    from losslane.budget import evaluate_budget, fit_channel, validate
-    from losslane.channel import build_channel
+    from losslane.budget import validate
     from losslane.errors import LossLaneWarning
-    from losslane.report.channel import prepare_out_dir, slug, summary_rows, write_build
+    from losslane.report.channel import prepare_out_dir, slug, write_build
     from losslane.scenario import load_scenario
 
     caught: list = []
@@ -548,17 +549,31 @@ def build(
             sc = load_scenario(scenario)
             points = validate(sc)  # budget frequencies against the sweep, before any work
             out_dir = prepare_out_dir(out if out is not None else slug(sc.name))
-            channel = build_channel(sc)
-            budget = evaluate_budget(channel, points=points)
-            fit = fit_channel(channel)
+            result = build_result(sc, points)
     finally:
         # outside the recording block, so the caller's own filters see them again
         messages = _reissue(caught, LossLaneWarning)
-    channel.warnings = messages
-    summary = summary_rows(channel)
-    result = BuildResult(channel, budget, fit, summary)
-    result.files = write_build(channel, budget, fit, summary, out_dir, version, form, plots)
+    result.channel.warnings = messages
+    result.files = write_build(
+        result.channel, result.budget, result.fit, result.summary, out_dir, version, form, plots
+    )
     return result
+
+
+def build_result(scenario, points=None) -> BuildResult:
+    """The channel, budget, fit and summary of a loaded scenario
+    (``scenario.Scenario``), without writing files: what ``build`` writes out, and what a
+    sweep evaluates per case. ``points``: the budget's check points if already found."""
+    from losslane.budget import evaluate_budget, fit_channel, validate
+    from losslane.channel import build_channel
+    from losslane.report.channel import summary_rows
+
+    if points is None:
+        points = validate(scenario)
+    channel = build_channel(scenario)
+    budget = evaluate_budget(channel, points=points)
+    fit = fit_channel(channel)
+    return BuildResult(channel, budget, fit, summary_rows(channel))
 
 
 def demo(
@@ -583,3 +598,109 @@ def _reissue(caught: list, category: type) -> list[str]:
         else:
             warnings.warn_explicit(w.message, w.category, w.filename, w.lineno, source=w.source)
     return messages
+
+
+# --- sweeps -----------------------------------------------------------------------------
+
+
+@dataclass
+class SweepResult:
+    """A finished sweep: its plan, the table (pyarrow; one row per case, the varied
+    columns then the result columns and ``error``), where it was written, the charts and
+    the distinct warnings met."""
+
+    plan: Any
+    table: Any
+    out: Path | None
+    warnings: list[str] = field(default_factory=list)
+    charts: list[Path] = field(default_factory=list)
+
+    @property
+    def cases(self) -> int:
+        return self.table.num_rows
+
+    @property
+    def failed(self) -> int:
+        return self.cases - self.table.column("error").null_count
+
+    @property
+    def varied_columns(self) -> list[str]:
+        names = []
+        for p in self.plan.parameters:
+            names.append(p.key)
+            if f"{p.key}_m" in self.table.column_names:
+                names.append(f"{p.key}_m")
+        return names
+
+    def to_json(self) -> dict:
+        """The `losslane sweep --json` object: the counts, the output, the columns and
+        the summary (ranges, best and worst cases)."""
+        from losslane.report.sweep import summary
+
+        return {
+            "plan": self.plan.name,
+            "cases": self.cases,
+            "failed": self.failed,
+            "out": None if self.out is None else str(self.out),
+            "columns": list(self.table.column_names),
+            "summary": summary(self),
+            "charts": [str(p) for p in self.charts],
+            "warnings": list(self.warnings),
+        }
+
+    def to_pandas(self):
+        return self.table.to_pandas()
+
+
+def run_sweep(
+    plan: str | Path,
+    out: str | Path | None = None,
+    *,
+    workers: int | None = None,
+    scheduler: str | None = None,
+    charts: bool = True,
+    progress: Callable[[int, int], None] | None = None,
+) -> SweepResult:
+    """Run the sweep plan file ``plan`` on dask.distributed (a local cluster of
+    ``workers`` processes, default the machine's cores; ``workers=0`` in this process; or
+    the cluster at ``scheduler``) into ``out`` (.parquet or .csv; default
+    ``<plan name>.parquet`` beside nothing but the current directory). Finished chunks
+    are kept in ``<out>.parts/`` so that a re-run resumes. ``progress(done, total)``."""
+    from losslane.report.sweep import sweep_charts
+    from losslane.sweep.plan import load_plan
+    from losslane.sweep.run import run, write_table
+
+    p = load_plan(plan)
+    from losslane.report.channel import slug
+
+    target = Path(out) if out is not None else Path(f"{slug(p.name)}.parquet")
+    if target.suffix.lower() not in (".parquet", ".csv"):
+        raise LossLaneError(f"--out {str(target)!r}: the table is written as .parquet or .csv")
+    if not target.resolve().parent.is_dir():
+        raise LossLaneError(
+            f"--out {str(target)!r}: the folder {str(target.resolve().parent)!r} does not exist"
+        )
+    if workers is not None and (isinstance(workers, bool) or workers < 0):
+        raise LossLaneError(f"--workers = {workers!r}: expected a whole number >= 0")
+    table, warned = run(p, target, workers=workers, scheduler=scheduler, progress=progress)
+    write_table(table, target)
+    result = SweepResult(p, table, target, warned)
+    if charts:
+        result.charts = sweep_charts(result, target.with_suffix(""))
+    return result
+
+
+def sweep(plan: str | Path, out: str | Path | None = None, **options: Any):
+    """The table of a sweep plan: a pandas DataFrame if pandas is installed, else the
+    pyarrow table (see :func:`run_sweep` for the options)."""
+    if out is None:
+        import tempfile
+
+        with tempfile.TemporaryDirectory() as d:
+            result = run_sweep(plan, Path(d) / "sweep.parquet", charts=False, **options)
+    else:
+        result = run_sweep(plan, out, **options)
+    try:
+        return result.to_pandas()
+    except ImportError:
+        return result.table

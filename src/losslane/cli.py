@@ -575,6 +575,45 @@ def demo_command(out: str, single_ended: bool, no_plots: bool, as_json: bool) ->
         _echo(res.to_json(), as_json, lambda _: f"demo scenario: {path}\n{build_text(res)}")
 
 
+@cli.command("sweep")
+@click.argument("plan", type=click.Path(dir_okay=False))
+@click.option("--out", "out", metavar="FILE", help="the table: .parquet (default) or .csv")
+@click.option(
+    "--workers",
+    type=int,
+    help="worker processes of the local cluster (default: the machine's cores; 0: run here)",
+)
+@click.option("--scheduler", metavar="ADDRESS", help="run on the dask cluster at ADDRESS")
+@_NO_PLOTS_OPTION
+@_JSON_OPTION
+def sweep_command(
+    plan: str,
+    out: str | None,
+    workers: int | None,
+    scheduler: str | None,
+    no_plots: bool,
+    as_json: bool,
+) -> None:
+    """Run a sweep plan on dask.distributed: every combination of the varied keys of a
+    cross-section (a `line` evaluation per case) or a scenario (a build per case), into one
+    table. Exit code 1 when some cases failed (their errors are in the table)."""
+    from losslane.report.sweep import sweep_text
+
+    with _warnings_to_stderr(), _progress_bar("cases") as progress:
+        res = api.run_sweep(
+            plan,
+            out,
+            workers=workers,
+            scheduler=scheduler,
+            charts=not no_plots,
+            progress=progress,
+        )
+        _echo(res.to_json(), as_json, lambda _: sweep_text(res))
+    if res.failed:
+        click.echo(f"{res.failed} of {res.cases} cases failed (see the error column)", err=True)
+        raise SystemExit(1)
+
+
 def main(argv: list[str] | None = None) -> int:
     """Console entry point: bad input is one line on stderr and exit code 2."""
     try:

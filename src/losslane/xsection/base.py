@@ -178,14 +178,16 @@ class LineValues:
 
     kind: str
     f: np.ndarray
-    rlgc: RLGC
+    rlgc: RLGC | None
     main: ModeValues | None
     even: ModeValues | None = None
     eps_eff_modes: np.ndarray | None = None
 
     @property
     def n_conductors(self) -> int:
-        return self.rlgc.n
+        if self.rlgc is not None:
+            return self.rlgc.n
+        return 2 if self.even is not None else 1
 
     @property
     def impedance(self) -> np.ndarray:
