@@ -194,3 +194,17 @@ def test_bad_plans_exit_2_naming_the_key(tmp_path, capsys, vary, words) -> None:
     for w in words:
         assert w in err, err
     assert list(tmp_path.iterdir()) == [plan]
+
+
+def test_an_existing_cluster_is_used_by_its_address(tmp_path) -> None:
+    # a cluster started outside losslane (here: a one-worker local cluster), reached by
+    # its scheduler address as on a shared cluster
+    from distributed import LocalCluster
+
+    plan = write(tmp_path, "p.toml", LINE_PLAN.format(kind="microstrip", extra=""))
+    with LocalCluster(n_workers=1, threads_per_worker=1, dashboard_address=None) as cluster:
+        res = api.run_sweep(
+            plan, tmp_path / "t.parquet", scheduler=cluster.scheduler_address, charts=False
+        )
+    want = api.run_sweep(plan, tmp_path / "u.parquet", workers=0, charts=False)
+    assert res.table.equals(want.table)
