@@ -990,10 +990,11 @@ def fit(
     coupon_ports = 2 if ext.mode == "single-ended" else 4
     if ports != coupon_ports:
         what = {2: "a single line", 4: "a pair"}
+        named = f"{k('kind')} {kind}" if kind is not None else f"{k('line')} {line}"
         raise LossLaneError(
             f"the coupons are {coupon_ports}-port files ({what[coupon_ports]}) but the "
-            f"cross-section ({section.kind}) is {what.get(ports, f'{ports // 2} conductors')}; "
-            f"give the {what[coupon_ports]}'s kind"
+            f"cross-section ({named}) is {what.get(ports, f'{ports // 2} conductors')}; "
+            f"give the kind of {what[coupon_ports]}"
         )
     if band_hz is not None and (band_hz[1] < ext.f[0] or band_hz[0] > ext.f[-1]):
         raise LossLaneError(

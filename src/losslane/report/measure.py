@@ -217,7 +217,8 @@ def _shown(key: str, value: float, uncertainty: bool = False) -> str:
     _, fmt, scale, unit = _SHOWN[key]
     if not np.isfinite(value):
         return "undetermined"
-    text_ = f"{value / scale:.2g}" if uncertainty else fmt(value / scale)
+    value = value / scale + 0.0  # no "-0"
+    text_ = f"{value:.2g}" if uncertainty else fmt(value)
     return f"{text_} {unit}".rstrip()
 
 
