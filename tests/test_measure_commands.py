@@ -615,3 +615,19 @@ def test_api_names_keyword_arguments():
         api.extract(FILES[:2], "2in")
     with pytest.raises(LossLaneError, match="vary: unknown parameter 'x'"):
         api.fit(FILES[:2], "2,5in", "stripline", vary="x", width="5mil")
+
+
+def test_shipped_library_is_what_the_fit_writes(fitted):
+    # examples/coupons/coupon-materials.toml is the README's `losslane fit` output
+    _, d = fitted
+    shipped = tomllib.loads((COUPONS / "coupon-materials.toml").read_text(encoding="utf-8"))
+    made = tomllib.loads((d / "coupon-materials.toml").read_text(encoding="utf-8"))
+    a, b = shipped["dielectrics"]["coupon-laminate"], made["dielectrics"]["coupon-laminate"]
+    assert a["dk"] == pytest.approx(b["dk"], rel=1e-6)
+    assert a["df"] == pytest.approx(b["df"], rel=1e-6)
+    assert a["at"] == b["at"] and a["model"] == b["model"]
+    fa, fb = shipped["foils"]["coupon-foil"], made["foils"]["coupon-foil"]
+    assert fa["model"] == fb["model"] == "huray"
+    assert fa["surface_ratio"] == pytest.approx(fb["surface_ratio"], rel=1e-6)
+    ra, rb = (float(x["radius"].split()[0]) for x in (fa, fb))
+    assert ra == pytest.approx(rb, rel=1e-6)
