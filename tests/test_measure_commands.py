@@ -631,3 +631,11 @@ def test_shipped_library_is_what_the_fit_writes(fitted):
     assert fa["surface_ratio"] == pytest.approx(fb["surface_ratio"], rel=1e-6)
     ra, rb = (float(x["radius"].split()[0]) for x in (fa, fb))
     assert ra == pytest.approx(rb, rel=1e-6)
+
+
+def test_kind_may_also_come_before_the_files(capsys):
+    argv = ["--lengths", "5,9in", *GEOMETRY, "--dk", "3.6", "--df", "0.008", "--dk-at", "10GHz"]
+    tail = ["--foil", "reverse-treated", "--vary", "dk"]
+    last = strict_json(capsys, "fit", *FILES[1:], "stripline", *argv, *tail)
+    first = strict_json(capsys, "fit", "stripline", *FILES[1:], *argv, *tail)
+    assert first == last

@@ -24,6 +24,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 from cli_helpers import run
+from test_report_html import parse_page
 
 from losslane import LossLaneError, LossLaneWarning, api
 
@@ -140,7 +141,7 @@ def test_own_output_as_measurement_shows_zero_difference(capsys, single):
         d,
         "compared.toml",
         SINGLE.format(stop="20 GHz"),
-        f'measured = "first/{touch.name}"\nlabel = "itself"\n',
+        f'measured = "first/{touch.name}"\nlabel = "itself <as> & measured"\n',
     )
     out = d / "second"
     rc, text, err = run(capsys, "build", str(sc), "--out", str(out), "--json")
@@ -151,7 +152,9 @@ def test_own_output_as_measurement_shows_zero_difference(capsys, single):
     assert m["difference"]["insertion_loss_max_abs_db"] == 0.0
     assert m["difference"]["return_loss_in_max_abs_db"] == 0.0
     assert m["difference"]["return_loss_out_max_abs_db"] == 0.0
-    assert m["label"] == "itself" and m["ports"] == 2 and m["mode"] == "single-ended"
+    assert (
+        m["label"] == "itself <as> & measured" and m["ports"] == 2 and m["mode"] == "single-ended"
+    )
     assert m["common_band_hz"] == [0.0, 20e9] and m["points"] == 401
     assert m["quality"]["passivity_level"] == "good"
     # numbers at the check points (Nyquist 8 GHz, the 12 GHz check)
@@ -162,9 +165,13 @@ def test_own_output_as_measurement_shows_zero_difference(capsys, single):
     names = {Path(p).name for p in data["files"]}
     assert {"overlay-lane-measured.csv", "overlay-lane-measured-difference.png"} <= names
     page = (out / "overlay-lane-report.html").read_text(encoding="utf-8")
+    parsed = parse_page(page)  # valid, balanced HTML (the report page's own check)
     assert "Model against measurement" in page and touch.name in page
-    assert "Model minus measurement" in page  # the difference chart, embedded
-    assert page.count("data:image/png;base64,") >= 5
+    assert "itself &lt;as&gt; &amp; measured" in page  # the label, escaped
+    imgs = [v for t, k, v in parsed.attrs if t == "img" and k == "src"]
+    pngs = [p for p in data["files"] if p.endswith(".png")]
+    assert len(imgs) == len(pngs) == 5  # IL, RL, budget, ILD and the difference chart
+    assert "Model minus measurement: insertion and return loss" in page
     # the api result is what the command printed
     again = quiet_build(sc, d / "third").to_json()["measured"]
     assert again == {**m, "file": again["file"]} and again["file"] == m["file"]

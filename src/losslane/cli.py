@@ -9,6 +9,7 @@ imports no numerics. Heavy modules are imported inside the commands.
 from __future__ import annotations
 
 import contextlib
+import os
 import sys
 import warnings
 from collections.abc import Callable, Iterator
@@ -715,8 +716,11 @@ def fit_command(
     from losslane.report.measure import fit_text
 
     files, kind = list(args), None
-    if len(files) > 1 and files[-1] in api.kinds():
+    kinds = api.kinds()
+    if len(files) > 1 and files[-1] in kinds:
         kind = files.pop()
+    elif len(files) > 1 and files[0] in kinds and not os.path.exists(files[0]):
+        kind = files.pop(0)  # KIND written first: accepted too
     with _warnings_to_stderr():
         res = api.fit(
             files,
