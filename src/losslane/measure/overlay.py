@@ -29,11 +29,15 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from losslane.errors import LossLaneError, warn
 from losslane.network.quality import QualityReport
+
+if TYPE_CHECKING:
+    from losslane.channel import ChannelResult
 
 __all__ = ["MeasuredOverlay", "measured_overlay"]
 
@@ -161,7 +165,7 @@ def _diff(a: float | None, b: float | None) -> float | None:
     return None if a is None or b is None else a - b
 
 
-def measured_overlay(result, at_hz: Sequence[float] = ()) -> MeasuredOverlay | None:
+def measured_overlay(result: ChannelResult, at_hz: Sequence[float] = ()) -> MeasuredOverlay | None:
     """The measurement named by ``result.scenario.compare`` (None without one) beside the
     built channel ``result`` (a :class:`losslane.channel.ChannelResult`), with the values
     at the check points ``at_hz`` (Hz)."""

@@ -15,11 +15,17 @@ import shutil
 import tempfile
 from collections.abc import Callable
 from pathlib import Path
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from losslane.report.charts import pyplot, save_figure
 from losslane.report.text import table
+
+if TYPE_CHECKING:
+    from losslane.api import ExtractResult, FitResult
+    from losslane.measure.extract import LineExtraction
+    from losslane.measure.fit import MaterialFit
 
 __all__ = [
     "EXTRACT_FILES",
@@ -40,7 +46,7 @@ BAND_COLOUR = "#2b9a73"
 LINE_COLOUR = "#3b75af"
 
 
-def finite_json(value):
+def finite_json(value: Any) -> Any:
     """``value`` (dicts, lists, numbers) with every non-finite float replaced by None, so
     ``json.dumps(..., allow_nan=False)`` accepts it."""
     if isinstance(value, dict):
@@ -79,7 +85,9 @@ def write_staged(out: Path | str, write: Callable[[Path], list[Path]]) -> list[P
         shutil.rmtree(stage, ignore_errors=True)
 
 
-def write_extract_files(extraction, out: Path | str, plots: bool = True) -> list[Path]:
+def write_extract_files(
+    extraction: LineExtraction, out: Path | str, plots: bool = True
+) -> list[Path]:
     """The extraction's curves (CSV) and, with ``plots``, its two charts, into ``out``."""
 
     def write(stage: Path) -> list[Path]:
@@ -94,7 +102,7 @@ def write_extract_files(extraction, out: Path | str, plots: bool = True) -> list
     return write_staged(out, write)
 
 
-def write_fit_files(fit, out: Path | str, plots: bool = True) -> list[Path]:
+def write_fit_files(fit: MaterialFit, out: Path | str, plots: bool = True) -> list[Path]:
     """The fit's measured and model curves (CSV) and, with ``plots``, its charts."""
 
     def write(stage: Path) -> list[Path]:
@@ -109,7 +117,7 @@ def write_fit_files(fit, out: Path | str, plots: bool = True) -> list[Path]:
     return write_staged(out, write)
 
 
-def fit_curves_csv(fit) -> str:
+def fit_curves_csv(fit: MaterialFit) -> str:
     """The fit's points: measured and model loss (dB/in) and eps_eff, one row each."""
     from losslane.units import INCH
     from losslane.xsection.rlgc import NP_TO_DB
@@ -156,7 +164,7 @@ def _files_lines(files: list) -> list[str]:
     return ["", "files written:"] + [f"  {p}" for p in files] if files else []
 
 
-def extract_text(result) -> str:
+def extract_text(result: ExtractResult) -> str:
     """The terminal output of `losslane extract` (``result``: an ``api.ExtractResult``)."""
     ext = result.extraction
     data = result.to_json()
@@ -222,7 +230,7 @@ def _shown(key: str, value: float, uncertainty: bool = False) -> str:
     return f"{text_} {unit}".rstrip()
 
 
-def fit_text(result) -> str:
+def fit_text(result: FitResult) -> str:
     """The terminal output of `losslane fit` (``result``: an ``api.FitResult``)."""
     fit = result.fit
     data = result.to_json()
@@ -346,7 +354,7 @@ def _extract_chart(ext, path: Path, y, u, ylabel: str, title: str, at_key: str) 
         plt.close(fig)
 
 
-def extract_charts(ext, directory: Path) -> list[Path]:
+def extract_charts(ext: LineExtraction, directory: Path) -> list[Path]:
     """Loss per inch and eps_eff of an extraction against frequency (two PNG files)."""
     what = f"{ext.mode} mode, {len(ext.sources)} coupons"
     return [
@@ -398,7 +406,7 @@ def _fit_chart(
         plt.close(fig)
 
 
-def fit_charts(fit, directory: Path) -> list[Path]:
+def fit_charts(fit: MaterialFit, directory: Path) -> list[Path]:
     """Measured against fitted loss per inch and eps_eff (two PNG files)."""
     from losslane.units import INCH
     from losslane.xsection.rlgc import NP_TO_DB

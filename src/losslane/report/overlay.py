@@ -11,9 +11,13 @@ from __future__ import annotations
 from collections.abc import Sequence
 from html import escape
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from losslane.report.charts import Curve, Marker, label_vline, pyplot, save_figure
 from losslane.report.text import table
+
+if TYPE_CHECKING:
+    from losslane.measure.overlay import MeasuredOverlay
 
 __all__ = [
     "difference_chart",
@@ -28,7 +32,7 @@ MEASURED_COLOUR = "#c0392b"
 DIFFERENCE_SUFFIX = "measured-difference"
 
 
-def measured_il_curves(overlay) -> list[Curve]:
+def measured_il_curves(overlay: MeasuredOverlay | None) -> list[Curve]:
     """The measured insertion loss as a curve for the build's insertion-loss chart."""
     if overlay is None:
         return []
@@ -44,7 +48,7 @@ def measured_il_curves(overlay) -> list[Curve]:
     ]
 
 
-def measured_rl_curves(overlay) -> list[Curve]:
+def measured_rl_curves(overlay: MeasuredOverlay | None) -> list[Curve]:
     """The measured return loss at both ends, for the build's return-loss chart."""
     if overlay is None:
         return []
@@ -68,7 +72,9 @@ def measured_rl_curves(overlay) -> list[Curve]:
     ]
 
 
-def difference_chart(overlay, path: Path, title: str, markers: Sequence[Marker] = ()) -> Path:
+def difference_chart(
+    overlay: MeasuredOverlay, path: Path, title: str, markers: Sequence[Marker] = ()
+) -> Path:
     """Two panels over the common band: the insertion-loss difference model - measured,
     and the return-loss differences at both ends; check points marked with their values."""
     plt = pyplot()
@@ -119,7 +125,12 @@ def difference_chart(overlay, path: Path, title: str, markers: Sequence[Marker] 
 
 
 def write_overlay_files(
-    overlay, name: str, stage: Path, stem: str, plots: bool, markers: Sequence[Marker] = ()
+    overlay: MeasuredOverlay | None,
+    name: str,
+    stage: Path,
+    stem: str,
+    plots: bool,
+    markers: Sequence[Marker] = (),
 ) -> list[Path]:
     """The difference CSV and, with ``plots``, the difference chart, into ``stage``."""
     if overlay is None:
@@ -180,7 +191,7 @@ _HEADS = [
 ]
 
 
-def overlay_text(overlay) -> str:
+def overlay_text(overlay: MeasuredOverlay | None) -> str:
     """The terminal lines of a build's measurement comparison ('' without one)."""
     if overlay is None:
         return ""
@@ -201,7 +212,7 @@ def overlay_text(overlay) -> str:
     return "\n".join(out)
 
 
-def overlay_html(overlay) -> str:
+def overlay_html(overlay: MeasuredOverlay | None) -> str:
     """The report page's section on the measurement ('' without one)."""
     if overlay is None:
         return ""
