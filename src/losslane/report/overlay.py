@@ -29,6 +29,8 @@ __all__ = [
 ]
 
 MEASURED_COLOUR = "#c0392b"
+MEASURED_OUT_COLOUR = "#6a3d9a"
+MEASURED_STYLE = ":"  # dotted over the model's solid lines, so both stay visible
 DIFFERENCE_SUFFIX = "measured-difference"
 
 
@@ -40,8 +42,8 @@ def measured_il_curves(overlay: MeasuredOverlay | None) -> list[Curve]:
         Curve(
             f"measured: {overlay.label}",
             -overlay.insertion_loss_db,
-            "-",
-            1.3,
+            MEASURED_STYLE,
+            1.8,
             MEASURED_COLOUR,
             f=overlay.f,
         )
@@ -56,17 +58,17 @@ def measured_rl_curves(overlay: MeasuredOverlay | None) -> list[Curve]:
         Curve(
             f"measured input: {overlay.label}",
             -overlay.return_loss_in_db,
-            "-",
-            1.0,
+            MEASURED_STYLE,
+            1.6,
             MEASURED_COLOUR,
             f=overlay.f,
         ),
         Curve(
             f"measured output: {overlay.label}",
             -overlay.return_loss_out_db,
-            "--",
-            1.0,
-            "#e08a2c",
+            MEASURED_STYLE,
+            1.6,
+            MEASURED_OUT_COLOUR,
             f=overlay.f,
         ),
     ]
@@ -82,7 +84,9 @@ def difference_chart(
     ghz = overlay.f_common / 1e9
     a1.plot(ghz, overlay.difference_il_db, "-", color=MEASURED_COLOUR, lw=1.3)
     a2.plot(ghz, overlay.difference_rl_in_db, "-", color=MEASURED_COLOUR, lw=1.1, label="input")
-    a2.plot(ghz, overlay.difference_rl_out_db, "--", color="#e08a2c", lw=1.1, label="output")
+    a2.plot(
+        ghz, overlay.difference_rl_out_db, "--", color=MEASURED_OUT_COLOUR, lw=1.1, label="output"
+    )
     for row in overlay.rows:
         d = row["insertion_loss_difference_db"]
         if d is not None:
