@@ -32,8 +32,12 @@ __all__ = [
     "__version__",
     "build",
     "cli_where",
+    "ExtractResult",
+    "FitResult",
     "compare",
     "demo",
+    "extract",
+    "fit",
     "demo_scenario_path",
     "line",
     "materials",
@@ -51,6 +55,9 @@ if TYPE_CHECKING:
     from losslane.design.sizing import SizeResult
     from losslane.design.spread import SpreadResult
     from losslane.materials.library import Library
+    from losslane.measure.extract import LineExtraction
+    from losslane.measure.fit import MaterialFit
+    from losslane.measure.overlay import MeasuredOverlay
     from losslane.xsection.base import CrossSection, LineValues
 
 
@@ -491,6 +498,7 @@ class BuildResult:
     fit: LossFit | None
     summary: list[dict]
     files: list[Path] = field(default_factory=list)
+    overlay: MeasuredOverlay | None = None
 
     @property
     def warnings(self) -> list[str]:
@@ -511,6 +519,7 @@ class BuildResult:
         data["budget"] = None if budget is None else budget.to_json()
         data["fit"] = None if self.fit is None else self.fit.to_json(nyq)
         data["warnings"] = list(self.warnings)
+        data["measured"] = None if self.overlay is None else self.overlay.to_json()
         return data
 
 
@@ -555,7 +564,15 @@ def build(
         messages = _reissue(caught, LossLaneWarning)
     result.channel.warnings = messages
     result.files = write_build(
-        result.channel, result.budget, result.fit, result.summary, out_dir, version, form, plots
+        result.channel,
+        result.budget,
+        result.fit,
+        result.summary,
+        out_dir,
+        version,
+        form,
+        plots,
+        overlay=result.overlay,
     )
     return result
 
@@ -566,14 +583,16 @@ def build_result(scenario, points=None) -> BuildResult:
     sweep evaluates per case. ``points``: the budget's check points if already found."""
     from losslane.budget import evaluate_budget, fit_channel, validate
     from losslane.channel import build_channel
-    from losslane.report.channel import summary_rows
+    from losslane.measure.overlay import measured_overlay
+    from losslane.report.channel import summary_frequencies, summary_rows
 
     if points is None:
         points = validate(scenario)
     channel = build_channel(scenario)
     budget = evaluate_budget(channel, points=points)
     fit = fit_channel(channel)
-    return BuildResult(channel, budget, fit, summary_rows(channel))
+    overlay = measured_overlay(channel, summary_frequencies(channel))
+    return BuildResult(channel, budget, fit, summary_rows(channel), overlay=overlay)
 
 
 def demo(
@@ -704,3 +723,413 @@ def sweep(plan: str | Path, out: str | Path | None = None, **options: Any):
         return result.to_pandas()
     except ImportError:
         return result.table
+
+
+# --- measured coupons -----------------------------------------------------------------
+
+#: the headline frequencies of ``extract`` when none are given (those inside the band)
+EXTRACT_AT = (1e9, 10e9, 28e9)
+
+
+def _length_list(value: str | Iterable[str], key: str) -> list[float]:
+    """Lengths with units from ``"2in,5in,9in"`` (a unit on the last item applies to bare
+    numbers before it: ``"2,5,9 in"``) or a list of texts."""
+    import re
+
+    from losslane.units import parse_length
+
+    if not isinstance(value, str):
+        items = [str(v) for v in value] if isinstance(value, Iterable) else [value]
+        return [parse_length(v, key) for v in items]
+    items = [s.strip() for s in value.split(",")]
+    if not value.strip() or any(not s for s in items):
+        raise LossLaneError(f"{key} = {value!r}: expected comma-separated lengths, e.g. 2in,6in")
+    unit = re.match(r"^[-+0-9.eE\s]*?([A-Za-z].*)$", items[-1])
+    bare = re.compile(r"^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$")
+    out = []
+    for item in items:
+        if bare.match(item) and unit is not None:
+            item = f"{item} {unit.group(1)}"
+        out.append(parse_length(item, key))
+    return out
+
+
+def _coupons(files: Iterable[str | Path], where: Where) -> list:
+    """The coupon files read as networks named by their file names."""
+    from losslane.network.touchstone import read_touchstone
+
+    what = "FILE" if where.cli else "files"
+    paths = [Path(files)] if isinstance(files, str | Path) else [Path(p) for p in files]
+    if len(paths) < 2:
+        raise LossLaneError(
+            f"{what}: {len(paths)} coupon file(s) given; the extraction needs at least two "
+            "Touchstone files of the same line at different lengths"
+        )
+    nets = []
+    for p in paths:
+        if not p.is_file():
+            raise LossLaneError(f"{what} {str(p)!r} does not exist (or is not a file)")
+        net = read_touchstone(p)
+        net.name = p.name
+        nets.append(net)
+    return nets
+
+
+def _extraction(
+    files, lengths, order: str, mode: str | None, at, noise, noise_floor, where: Where
+) -> LineExtraction:
+    import dataclasses
+
+    import numpy as np
+
+    from losslane.measure.extract import MODES, NOISE_FLOOR, NOISE_RELATIVE, extract_line
+    from losslane.network.ports import check_order
+    from losslane.units import parse_frequency_list
+
+    k = where.key
+    check_order(order, k("order"))
+    if mode is not None and mode not in MODES:
+        raise LossLaneError(
+            f"{where.setting('mode', mode)} is not valid; valid: {', '.join(MODES)}"
+        )
+    lens = _length_list(lengths, k("lengths"))
+    freqs = parse_frequency_list(at, k("at")) if at is not None else None
+    noise_values = {}
+    for key, value, default in (
+        ("noise", noise, NOISE_RELATIVE),
+        ("noise_floor", noise_floor, NOISE_FLOOR),
+    ):
+        value = default if value is None else value
+        try:
+            value = float(value)
+        except (TypeError, ValueError):
+            raise LossLaneError(f"{k(key)} = {value!r}: expected a number >= 0") from None
+        if not value >= 0 or not np.isfinite(value):
+            raise LossLaneError(f"{k(key)} = {value!r}: expected a finite number >= 0")
+        noise_values[key] = value
+    if noise_values["noise"] == 0 and noise_values["noise_floor"] == 0:
+        raise LossLaneError(f"{k('noise')} and {k('noise_floor')} are both 0; give one > 0")
+    nets = _coupons(files, where)
+    if len(lens) != len(nets):
+        raise LossLaneError(
+            f"{k('lengths')} = {lengths!r}: {len(lens)} length(s) for {len(nets)} files; give "
+            "one length per file, in the same order"
+        )
+    for name, ln in zip((n.name for n in nets), lens, strict=True):
+        if ln < 0:
+            raise LossLaneError(f"{k('lengths')}: {ln:g} m for {name!r} is not a length >= 0")
+    for i in range(len(lens)):
+        for j in range(i + 1, len(lens)):
+            if abs(lens[i] - lens[j]) <= 1e-6 * max(lens[i], lens[j], 1e-3):
+                raise LossLaneError(
+                    f"{k('lengths')}: {nets[i].name!r} and {nets[j].name!r} both have length "
+                    f"{lens[i]:g} m; the coupons' lengths must differ"
+                )
+    ports = nets[0].nports
+    if mode is not None and (ports == 2) != (mode == "single-ended"):
+        valid = "single-ended" if ports == 2 else "differential or common"
+        raise LossLaneError(
+            f"{where.setting('mode', mode)} does not fit {ports}-port coupons; use {valid}"
+        )
+    ext = extract_line(
+        nets,
+        lens,
+        mode=mode,
+        order=order,
+        noise_relative=noise_values["noise"],
+        noise_floor=noise_values["noise_floor"],
+    )
+    lo, hi = float(ext.f[0]), float(ext.f[-1])
+    if freqs is None:
+        freqs = [x for x in EXTRACT_AT if lo <= x <= hi]
+    for x in freqs:
+        if not lo * (1 - 1e-12) <= x <= hi * (1 + 1e-12):
+            raise LossLaneError(
+                f"{k('at')}: {x:g} Hz is outside the extracted band {lo:g}..{hi:g} Hz; "
+                "choose frequencies inside the measured band"
+            )
+    return dataclasses.replace(ext, at_hz=tuple(float(x) for x in freqs))
+
+
+@dataclass
+class ExtractResult:
+    """The line extracted from coupons (``measure.extract.LineExtraction``) and the files
+    written."""
+
+    extraction: LineExtraction
+    files: list[Path] = field(default_factory=list)
+
+    def to_json(self) -> dict:
+        """The `losslane extract --json` object."""
+        from losslane.report.measure import finite_json
+
+        data = self.extraction.to_json()
+        data["files"] = [str(p) for p in self.files]
+        return finite_json(data)
+
+
+def extract(
+    files: Iterable[str | Path],
+    lengths: str | Iterable[str],
+    *,
+    order: str = "in-in-out-out",
+    mode: str | None = None,
+    at: str | Iterable[str] | None = None,
+    noise: float | None = None,
+    noise_floor: float | None = None,
+    out: str | Path | None = None,
+    plots: bool = True,
+    where: Where | None = None,
+) -> ExtractResult:
+    """Loss per inch, eps_eff and delay of the line common to coupon ``files`` (Touchstone,
+    2-port lines or 4-port pairs) of ``lengths`` (``"2in,6in"``), the launches removed
+    (two-line / multiline eigenvalue method, :mod:`losslane.measure.extract`).
+
+    ``order``: a 4-port's numbering; ``mode``: "single-ended" (2-ports), "differential"
+    (default for 4-ports) or "common"; ``at``: frequencies of the headline values (default
+    1, 10 and 28 GHz, those inside the band); ``noise`` (relative) and ``noise_floor``:
+    the measurement noise that sets the weights, uncertainties and flags. With ``out``,
+    the curves (CSV) and, with ``plots``, two charts are written into that directory.
+    """
+    from losslane.report.measure import write_extract_files
+
+    where = _where(where, "extract")
+    if out is not None:
+        from losslane.report.channel import prepare_out_dir
+
+        prepare_out_dir(out)
+    ext = _extraction(files, lengths, order, mode, at, noise, noise_floor, where)
+    written = write_extract_files(ext, out, plots) if out is not None else []
+    return ExtractResult(ext, written)
+
+
+@dataclass
+class FitResult:
+    """Materials fitted to coupons: the extraction, the fit (``measure.fit.MaterialFit``),
+    the library file written (or None) with its entry names, and the chart files."""
+
+    extraction: LineExtraction
+    fit: MaterialFit
+    library_file: Path | None = None
+    library_names: tuple[str, str] = ("fitted", "fitted-foil")
+    files: list[Path] = field(default_factory=list)
+
+    def to_json(self) -> dict:
+        """The `losslane fit --json` object."""
+        from losslane.report.measure import finite_json
+
+        data = self.fit.to_json()
+        ext = self.extraction
+        data["extraction"] = {
+            "mode": ext.mode,
+            "usable_band_hz": list(ext.usable_band_hz) if ext.usable_band_hz else None,
+            "coupons": [
+                {"name": n, "length_m": ln}
+                for n, ln in zip(ext.sources, ext.lengths_m, strict=True)
+            ],
+            "checks": [c.to_json() for c in ext.checks],
+        }
+        data["library_file"] = None if self.library_file is None else str(self.library_file)
+        data["library_names"] = {
+            "dielectric": self.library_names[0],
+            "foil": self.library_names[1],
+        }
+        data["files"] = [str(p) for p in self.files]
+        return finite_json(data)
+
+
+#: option values the command line passes by default; they do not count as given options
+_DEFAULT_OPTIONS = {"dielectric_model": "wideband-debye", "solver": "closed-form"}
+
+
+def _fit_section(
+    kind: str | None,
+    scenario: str | Path | None,
+    line_name: str | None,
+    options: Mapping[str, Any],
+    library_files,
+    where: Where,
+) -> CrossSection:
+    """The cross-section the coupons were built on: KIND and its options, or a
+    [lines.NAME] of a scenario file with the scenario's own materials."""
+    from losslane.spec import suggest
+
+    k = where.key
+    given = [key for key, v in options.items() if v is not None and _DEFAULT_OPTIONS.get(key) != v]
+    if scenario is not None or line_name is not None:
+        if scenario is None or line_name is None:
+            raise LossLaneError(f"give {k('scenario')} FILE together with {k('line')} NAME")
+        if kind is not None or given or tuple(library_files):
+            extra = ", ".join(
+                ([k("kind")] if kind is not None else [])
+                + [k(x) for x in given]
+                + ([k("library")] if tuple(library_files) else [])
+            )
+            raise LossLaneError(
+                f"{k('scenario')} {scenario} {k('line')} {line_name} takes the cross-section "
+                f"and its materials from the scenario; leave out {extra}"
+            )
+        from losslane.scenario import load_scenario
+
+        sc = load_scenario(scenario)
+        if line_name not in sc.lines:
+            raise LossLaneError(
+                f"{where.setting('line', line_name)}: no [lines.{line_name}] in {scenario}; "
+                f"{suggest(str(line_name), sc.lines)}"
+            )
+        return sc.lines[line_name]
+    if kind is None:
+        raise LossLaneError(
+            f"give the cross-section the coupons were built on: {k('kind')} with its geometry "
+            f"and material options (as for `line`), or {k('scenario')} FILE {k('line')} NAME"
+        )
+    return _make_section(kind, options, where, _library(library_files))
+
+
+def _fit_foil_model(section, vary: tuple[str, ...], foil_model: str | None, where: Where):
+    """The roughness model to fit: ``foil_model``, else the section's, else what ``vary``
+    names (radius, surface_ratio: Huray; rq: Hammerstad)."""
+    from losslane.measure.fit import FOIL_PARAMETERS
+
+    k = where.key
+    own = getattr(section.metal.foil, "model", "none")
+    if foil_model is not None and foil_model not in FOIL_PARAMETERS:
+        raise LossLaneError(
+            f"{where.setting('foil_model', foil_model)} is not valid; valid: "
+            f"{', '.join(FOIL_PARAMETERS)}"
+        )
+    model = foil_model
+    if model is None:
+        if {"radius", "surface_ratio"} & set(vary):
+            model = own if own == "huray" else "huray"
+        elif "rq" in vary:
+            model = own if own in ("hammerstad", "groiss") else "hammerstad"
+        else:
+            model = own
+    if model not in FOIL_PARAMETERS:
+        raise LossLaneError(
+            f"the section's foil (model {model!r}) cannot be held in a fit; start from a foil "
+            f"of model {', '.join(FOIL_PARAMETERS)} ({k('foil')} NAME or "
+            f"{k('roughness_model')}) or name one with {k('foil_model')}"
+        )
+    for p in vary:
+        if p in ("rq", "radius", "surface_ratio") and p not in FOIL_PARAMETERS[model]:
+            theirs = ", ".join(FOIL_PARAMETERS[model]) or "none"
+            raise LossLaneError(
+                f"{k('vary')}: {p!r} is not a parameter of the {model!r} roughness model (its "
+                f"parameters: {theirs}); choose {k('foil_model')} or another parameter"
+            )
+    return model
+
+
+def fit(
+    files: Iterable[str | Path],
+    lengths: str | Iterable[str],
+    kind: str | None = None,
+    *,
+    vary: str | Iterable[str] = "dk,df,rq",
+    band: str | Iterable[str] | None = None,
+    scenario: str | Path | None = None,
+    line: str | None = None,
+    foil_model: str | None = None,
+    order: str = "in-in-out-out",
+    mode: str | None = None,
+    noise: float | None = None,
+    noise_floor: float | None = None,
+    write_library: str | Path | None = None,
+    names: str | Iterable[str] = "fitted,fitted-foil",
+    out: str | Path | None = None,
+    plots: bool = True,
+    library_files: Iterable[Path | str] = (),
+    where: Where | None = None,
+    **options: Any,
+) -> FitResult:
+    """Fit the materials of the line on coupon ``files`` of ``lengths``: Dk and Df (wideband
+    Debye, at the starting dielectric's frequency), the foil's roughness and/or the
+    conductivity named in ``vary`` (:mod:`losslane.measure.fit`), the rest held as given.
+
+    The cross-section: ``kind`` with the options of :func:`line` (its materials are the
+    starting values), or ``scenario`` and ``line`` (a [lines.*] of that file). ``band``:
+    ``"START,STOP"`` (default the extraction's usable band); ``foil_model``: the roughness
+    model to fit (default the section's; ``radius``/``surface_ratio`` imply Huray, ``rq``
+    Hammerstad). ``write_library``: a library TOML file with the fitted dielectric and
+    foil under ``names`` ("DIELECTRIC,FOIL"), for a scenario's ``library = [...]``.
+    ``out``: a directory for the charts and the curves (CSV).
+    """
+    import tomllib
+
+    from losslane.atomic import write_atomic
+    from losslane.materials.library import load_library
+    from losslane.measure.fit import PARAMETERS, fit_materials
+    from losslane.report.measure import write_fit_files
+    from losslane.units import parse_frequency_list
+
+    where = _where(where, "fit")
+    k = where.key
+    raw = [vary] if isinstance(vary, str) else list(vary)
+    wanted = [v.strip().replace("-", "_") for item in raw for v in str(item).split(",")]
+    if not wanted or any(not v for v in wanted):
+        raise LossLaneError(f"{k('vary')} = {vary!r}: expected names such as dk,df,rq")
+    for v in wanted:
+        if v not in PARAMETERS:
+            raise LossLaneError(
+                f"{k('vary')}: unknown parameter {v!r}; valid: {', '.join(PARAMETERS)}"
+            )
+    vary_t = tuple(dict.fromkeys(wanted))
+    band_hz = None
+    if band is not None:
+        b = parse_frequency_list(band, k("band"))
+        if len(b) != 2 or not 0 < b[0] < b[1]:
+            raise LossLaneError(
+                f"{k('band')} = {band!r}: expected START,STOP with 0 < START < STOP "
+                "(e.g. 1GHz,30GHz)"
+            )
+        band_hz = (b[0], b[1])
+    entry = _names(names, k("names"))
+    if len(entry) == 1:
+        entry.append(f"{entry[0]}-foil")
+    if len(entry) != 2:
+        raise LossLaneError(
+            f"{k('names')} = {names!r}: give DIELECTRIC,FOIL (two names for the library entries)"
+        )
+    lib_path = None
+    if write_library is not None:
+        lib_path = Path(write_library)
+        parent = lib_path.parent if str(lib_path.parent) else Path(".")
+        if lib_path.is_dir() or not parent.is_dir():
+            raise LossLaneError(
+                f"{k('write_library')} {str(lib_path)!r}: give a file name in an existing directory"
+            )
+    if out is not None:
+        from losslane.report.channel import prepare_out_dir
+
+        prepare_out_dir(out)
+    section = _fit_section(kind, scenario, line, options, library_files, where)
+    model = _fit_foil_model(section, vary_t, foil_model, where)
+    ext = _extraction(files, lengths, order, mode, (), noise, noise_floor, where)
+    ports = 2 * section.n_conductors
+    coupon_ports = 2 if ext.mode == "single-ended" else 4
+    if ports != coupon_ports:
+        what = {2: "a single line", 4: "a pair"}
+        named = f"{k('kind')} {kind}" if kind is not None else f"{k('line')} {line}"
+        raise LossLaneError(
+            f"the coupons are {coupon_ports}-port files ({what[coupon_ports]}) but the "
+            f"cross-section ({named}) is {what.get(ports, f'{ports // 2} conductors')}; "
+            f"give the kind of {what[coupon_ports]}"
+        )
+    if band_hz is not None and (band_hz[1] < ext.f[0] or band_hz[0] > ext.f[-1]):
+        raise LossLaneError(
+            f"{k('band')} = {band!r} lies outside the measured band {ext.f[0]:g}..{ext.f[-1]:g} Hz"
+        )
+    result = fit_materials(ext, section, vary_t, band=band_hz, foil_model=model)
+    written = write_fit_files(result, out, plots) if out is not None else []
+    if lib_path is not None:
+        text_ = result.library_toml(entry[0], entry[1])
+
+        def write(tmp: Path) -> None:
+            tmp.write_text(text_, encoding="utf-8")
+            tomllib.loads(text_)
+            load_library([tmp])  # it loads back as a library, or nothing is written
+
+        write_atomic(lib_path, write)
+    return FitResult(ext, result, lib_path, (entry[0], entry[1]), written)

@@ -38,6 +38,7 @@ TOP_KEYS = (
     "lines",
     "channel",
     "budget",
+    "compare",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 MAX_POINTS = 200_001
@@ -109,6 +110,16 @@ class Budget:
         return nyquist_frequency(self.data_rate, self.modulation)
 
 
+@dataclass(frozen=True)
+class Comparison:
+    """The [compare] section: a measured Touchstone file of the same channel (``path``,
+    resolved), its 4-port numbering (``order``; None: the scenario's) and a ``label``."""
+
+    path: Path
+    order: str | None = None
+    label: str | None = None
+
+
 @dataclass
 class Scenario:
     name: str
@@ -122,6 +133,7 @@ class Scenario:
     dielectrics: dict[str, Dielectric]
     foils: dict[str, Roughness]
     source_text: str = ""
+    compare: Comparison | None = None
 
     @property
     def conductors(self) -> int:
@@ -232,6 +244,7 @@ def scenario_from_data(
     ports = _ports(data.get("ports", {}))
     channel = _channel(data["channel"], lines, base, resolve_dielectric)
     budget = _budget(data["budget"]) if "budget" in data else None
+    compare = _compare(data["compare"], base) if "compare" in data else None
     sc = Scenario(
         name=name.strip(),
         path=path,
@@ -244,6 +257,7 @@ def scenario_from_data(
         dielectrics=dielectrics,
         foils=foils,
         source_text=source,
+        compare=compare,
     )
     _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
     return sc
@@ -498,9 +512,44 @@ def _budget(spec: object) -> Budget:
     return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop)
 
 
+def _compare(spec: object, base: Path) -> Comparison:
+    """[compare]: ``measured`` (a Touchstone file, relative to the scenario file), ``order``
+    (its 4-port numbering) and ``label``. Only the file's existence and name are checked
+    here; its contents are measurement data, read and reported at build time."""
+    where = "[compare]"
+    if not isinstance(spec, Mapping):
+        raise LossLaneError(f'{where}: expected a table, e.g. [compare] measured = "coupon.s4p"')
+    check_keys(where, spec, ("measured", "order", "label"), required=("measured",))
+    fname = spec["measured"]
+    if not isinstance(fname, str) or not fname.strip():
+        raise LossLaneError(
+            f'{where}.measured = {fname!r}: expected a file name, e.g. "coupon.s4p"'
+        )
+    p = (base / fname).resolve()
+    if not p.is_file():
+        raise LossLaneError(
+            f"{where}.measured = {fname!r}: file {str(p)!r} does not exist (paths are "
+            "relative to the scenario file)"
+        )
+    if not re.search(r"\.s\d+p$", p.name, re.IGNORECASE):
+        raise LossLaneError(
+            f"{where}.measured = {fname!r}: expected a Touchstone file (.s2p, .s4p)"
+        )
+    order = spec.get("order")
+    if order is not None and order not in ORDERS:
+        raise LossLaneError(
+            f"{where}.order = {order!r}: valid values are {', '.join(repr(o) for o in ORDERS)}"
+        )
+    label = spec.get("label")
+    if label is not None and (not isinstance(label, str) or not label.strip()):
+        raise LossLaneError(f"{where}.label = {label!r}: expected a non-empty text")
+    return Comparison(p, order, label.strip() if label else None)
+
+
 __all__ = [
     "Budget",
     "Check",
+    "Comparison",
     "Ports",
     "Scenario",
     "Segment",

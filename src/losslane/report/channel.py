@@ -81,16 +81,27 @@ def summary_rows(result: ChannelResult) -> list[dict]:
     return rows
 
 
-def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
+def check_markers(result: ChannelResult) -> list[Marker]:
+    """The budget's Nyquist and check points as chart markers (with their loss limits)."""
     sc = result.scenario
-    f = result.f
-    mode = "" if result.nports == 2 else " (differential mode)"
     markers = []
     if sc.budget is not None:
         if sc.budget.nyquist is not None:
             markers.append(Marker(sc.budget.nyquist, "Nyquist", sc.budget.max_loss))
         for c in sc.budget.checks:
             markers.append(Marker(c.at, f"check {c.at / 1e9:g} GHz", c.max_loss))
+    return markers
+
+
+def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> list[Path]:
+    """The channel's charts; ``overlay`` (a measure.overlay.MeasuredOverlay or None) adds
+    the measured curves to the insertion- and return-loss charts."""
+    from losslane.report.overlay import measured_il_curves, measured_rl_curves
+
+    sc = result.scenario
+    f = result.f
+    mode = "" if result.nports == 2 else " (differential mode)"
+    markers = check_markers(result)
     import matplotlib
 
     cmap = matplotlib.colormaps["viridis"]
@@ -105,6 +116,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
             )
         )
     curves.append(Curve("whole channel", -result.insertion_loss_db, "-", 2.2, "black"))
+    curves += measured_il_curves(overlay)
     il = db_plot(
         stage / f"{stem}-insertion-loss.png",
         f,
@@ -125,6 +137,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         [
             Curve("input (port 1)" if not mode else "input", -rl_in, "-", 1.4),
             Curve("output (port 2)" if not mode else "output", -rl_out, "--", 1.4),
+            *measured_rl_curves(overlay),
         ],
         f"{sc.name}: return loss{mode}",
         "20 log10 |S11|, |S22| (dB)",
@@ -175,12 +188,15 @@ def write_build(
     version: int = 1,
     form: str = "ri",
     plots: bool = True,
+    overlay=None,
 ) -> list[Path]:
     """Write the build's files into ``out_dir`` (checked with ``prepare_out_dir``): the
     Touchstone file, the channel charts, the budget's files and the report page; returns
     their final paths. ``budget``/``fit``: a ChannelBudget/LossFit or None; ``summary``:
-    the rows of ``summary_rows``."""
+    the rows of ``summary_rows``; ``overlay``: a measurement to show beside the model
+    (``measure.overlay.MeasuredOverlay``) or None."""
     from losslane.network.touchstone import write_touchstone
+    from losslane.report.overlay import write_overlay_files
 
     out = Path(out_dir)
     stem = slug(result.scenario.name)
@@ -204,13 +220,16 @@ def write_build(
             )
         ]
         if plots:
-            files += plot_files(result, stage, stem)
+            files += plot_files(result, stage, stem, overlay)
         budget_files, charts = write_budget_files(result, budget, fit, stage, stem, plots)
         files += budget_files
+        files += write_overlay_files(
+            overlay, result.scenario.name, stage, stem, plots, check_markers(result)
+        )
         page = stage / f"{stem}-report.html"
         names = sorted({p.name for p in files} | {page.name})
         page.write_text(
-            report_html(result, budget, fit, stage, stem, charts, names, summary),
+            report_html(result, budget, fit, stage, stem, charts, names, summary, overlay),
             encoding="utf-8",
         )
         files.append(page)
@@ -289,6 +308,7 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
 def build_text(build) -> str:
     """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
     budget and the fit, the files written."""
-    return summary_text(
-        build.channel, build.summary, build.files, sections=[budget_text(build.budget, build.fit)]
-    )
+    from losslane.report.overlay import overlay_text
+
+    sections = [budget_text(build.budget, build.fit), overlay_text(getattr(build, "overlay", None))]
+    return summary_text(build.channel, build.summary, build.files, sections=sections)

@@ -159,6 +159,7 @@ def render_report(
     scenario_text: str,
     files: Sequence[str],
     mode: str = "",
+    sections: Sequence[str] = (),
 ) -> str:
     """The page as text. ``budget`` a ChannelBudget or None, ``fit`` a LossFit or None,
     ``summary`` the rows of the terminal summary (at_hz, insertion_loss_db,
@@ -217,6 +218,7 @@ def render_report(
         "<table><tr><th>frequency (GHz)</th><th>insertion loss (dB)</th>"
         "<th>return loss in (dB)</th><th>return loss out (dB)</th></tr>" + srows + "</table>"
     )
+    parts += [sec for sec in sections if sec]  # e.g. the measurement beside the model
     parts.append('<h2 id="charts">Charts</h2>')
     if figures:
         for fig in figures:
@@ -265,14 +267,19 @@ def report_html(
     charts: Sequence[tuple[Path, str]],
     names: Sequence[str],
     summary: Sequence[dict],
+    overlay=None,
 ) -> str:
     """The self-contained page: the channel plots already staged (insertion and return
-    loss) and the budget charts, embedded."""
+    loss, with a measurement and its difference chart when ``overlay`` is given) and the
+    budget charts, embedded."""
+    from losslane.report.overlay import overlay_html
+
     sc = result.scenario
     figures = []
     for suffix, caption in (
         ("insertion-loss", "Insertion loss, cumulative through each segment"),
         ("return-loss", "Return loss at both ends"),
+        ("measured-difference", "Model minus measurement: insertion and return loss"),
     ):
         p = Path(stage) / f"{stem}-{suffix}.png"
         if p.is_file():
@@ -303,4 +310,5 @@ def report_html(
         scenario_text=sc.source_text,
         files=names,
         mode="" if result.nports == 2 else " (differential mode)",
+        sections=[overlay_html(overlay)],
     )
