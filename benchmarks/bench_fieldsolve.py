@@ -18,8 +18,8 @@ MIL = 25.4e-6
 
 def _sections():
     from losslane.materials.dielectric import WidebandDebye
-    from losslane.xsection.base import Metal
     from losslane.xsection import registry
+    from losslane.xsection.base import Metal
     from losslane.xsection.fieldsolve.options import field_section
 
     lam = WidebandDebye(3.7, 0.009, 10e9, name="laminate (typical)")
