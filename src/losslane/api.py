@@ -484,13 +484,15 @@ def materials(
 @dataclass
 class BuildResult:
     """A built scenario: the channel, its budget and fit, the summary rows at the quoted
-    frequencies, and the files written."""
+    frequencies, the files written, and the crosstalk of a channel on group lines
+    (``crosstalk.evaluate.CrosstalkResult``, else None)."""
 
     channel: ChannelResult
     budget: ChannelBudget | None
     fit: LossFit | None
     summary: list[dict]
     files: list[Path] = field(default_factory=list)
+    crosstalk: Any = None
 
     @property
     def warnings(self) -> list[str]:
@@ -498,8 +500,15 @@ class BuildResult:
 
     @property
     def passed(self) -> bool | None:
-        """The budget's verdict (None without a [budget])."""
-        return None if self.budget is None else self.budget.passed
+        """The budget's verdict with the crosstalk noise limit's (None without a [budget])."""
+        if self.budget is None:
+            return None
+        return self.budget.passed and self.crosstalk_passed is not False
+
+    @property
+    def crosstalk_passed(self) -> bool | None:
+        """The integrated crosstalk noise within [budget] max_icn (None: not judged)."""
+        return None if self.crosstalk is None else self.crosstalk.passed
 
     def to_json(self) -> dict:
         """The `losslane build --json` object."""
@@ -510,6 +519,7 @@ class BuildResult:
         nyq = budget.nyquist.at if budget is not None and budget.nyquist is not None else None
         data["budget"] = None if budget is None else budget.to_json()
         data["fit"] = None if self.fit is None else self.fit.to_json(nyq)
+        data["crosstalk"] = None if self.crosstalk is None else self.crosstalk.to_json()
         data["warnings"] = list(self.warnings)
         return data
 
@@ -555,7 +565,15 @@ def build(
         messages = _reissue(caught, LossLaneWarning)
     result.channel.warnings = messages
     result.files = write_build(
-        result.channel, result.budget, result.fit, result.summary, out_dir, version, form, plots
+        result.channel,
+        result.budget,
+        result.fit,
+        result.summary,
+        out_dir,
+        version,
+        form,
+        plots,
+        result.crosstalk,
     )
     return result
 
@@ -566,6 +584,7 @@ def build_result(scenario, points=None) -> BuildResult:
     sweep evaluates per case. ``points``: the budget's check points if already found."""
     from losslane.budget import evaluate_budget, fit_channel, validate
     from losslane.channel import build_channel
+    from losslane.crosstalk.evaluate import evaluate_crosstalk
     from losslane.report.channel import summary_rows
 
     if points is None:
@@ -573,7 +592,8 @@ def build_result(scenario, points=None) -> BuildResult:
     channel = build_channel(scenario)
     budget = evaluate_budget(channel, points=points)
     fit = fit_channel(channel)
-    return BuildResult(channel, budget, fit, summary_rows(channel))
+    crosstalk = evaluate_crosstalk(channel)
+    return BuildResult(channel, budget, fit, summary_rows(channel), crosstalk=crosstalk)
 
 
 def demo(

@@ -65,7 +65,7 @@ def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
 
 def summary_rows(result: ChannelResult) -> list[dict]:
     rl_in, rl_out = result.return_loss
-    mm = result.mixed_mode
+    mm = result.main_mixed_mode
     rows = []
     for x in summary_frequencies(result):
         row = {
@@ -84,7 +84,7 @@ def summary_rows(result: ChannelResult) -> list[dict]:
 def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
     sc = result.scenario
     f = result.f
-    mode = "" if result.nports == 2 else " (differential mode)"
+    mode = " (differential mode)" if result.differential else ""
     markers = []
     if sc.budget is not None:
         if sc.budget.nyquist is not None:
@@ -110,7 +110,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         f,
         curves,
         f"{sc.name}: insertion loss{mode}, cumulative through each segment",
-        ("Sdd21" if result.nports == 4 else "S21") + " (dB), insertion loss below 0",
+        ("Sdd21" if result.differential else "S21") + " (dB), insertion loss below 0",
         markers,
         floor_db=-200,
     )
@@ -132,7 +132,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         floor_db=-80,
     )
     files = [il, rl]
-    mm = result.mixed_mode
+    mm = result.main_mixed_mode
     if mm is not None:
         files.append(
             db_plot(
@@ -175,12 +175,15 @@ def write_build(
     version: int = 1,
     form: str = "ri",
     plots: bool = True,
+    crosstalk=None,
 ) -> list[Path]:
     """Write the build's files into ``out_dir`` (checked with ``prepare_out_dir``): the
     Touchstone file, the channel charts, the budget's files and the report page; returns
     their final paths. ``budget``/``fit``: a ChannelBudget/LossFit or None; ``summary``:
-    the rows of ``summary_rows``."""
+    the rows of ``summary_rows``; ``crosstalk``: a CrosstalkResult of a channel on group
+    lines (its victim's own file and charts are written too)."""
     from losslane.network.touchstone import write_touchstone
+    from losslane.report.crosstalk import port_lines, write_crosstalk_files
 
     out = Path(out_dir)
     stem = slug(result.scenario.name)
@@ -200,17 +203,23 @@ def write_build(
                     f"{result.scenario.path.name if result.scenario.path else 'a scenario'}",
                     "estimate: confirm against the fabricator's stackup and measured test coupons",
                     *guarantee_lines(result),
+                    *port_lines(result),
                 ],
             )
         ]
+        xt_files, xt_charts = write_crosstalk_files(
+            result, crosstalk, stage, stem, version, form, plots
+        )
+        files += xt_files
         if plots:
             files += plot_files(result, stage, stem)
         budget_files, charts = write_budget_files(result, budget, fit, stage, stem, plots)
         files += budget_files
+        charts = charts + xt_charts
         page = stage / f"{stem}-report.html"
         names = sorted({p.name for p in files} | {page.name})
         page.write_text(
-            report_html(result, budget, fit, stage, stem, charts, names, summary),
+            report_html(result, budget, fit, stage, stem, charts, names, summary, crosstalk),
             encoding="utf-8",
         )
         files.append(page)
@@ -234,7 +243,7 @@ def summary_text(
     """The terminal summary (``summary``: the rows of ``summary_rows``); ``sections``
     (e.g. the loss budget) go before the file list."""
     sc = result.scenario
-    four = result.nports == 4
+    four = result.differential
     mode = " (differential mode)" if four else ""
     heads = ["frequency", "insertion loss", "return loss in", "return loss out"]
     units = ["GHz", "dB", "dB", "dB"]
@@ -255,7 +264,9 @@ def summary_text(
     head = (
         f"{sc.name}: {len(result.blocks)} segments, {result.nports}-port, "
         f"{result.f.size} points {result.f[0] / 1e9:g}..{result.f[-1] / 1e9:g} GHz, "
-        f"reference {sc.ports.reference:g} ohm" + (f", port order {sc.ports.order}" if four else "")
+        f"reference {sc.ports.reference:g} ohm"
+        + (f", port order {sc.ports.order}" if result.nports >= 4 else "")
+        + (f", victim {result.victim}" if result.victim else "")
     )
     out = [head, "", f"insertion and return loss{mode}", table(heads, units, rows)]
     if result.imports:
@@ -278,7 +289,7 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
         "ports": result.nports,
         "points": int(result.f.size),
         "files": [str(p) for p in files],
-        "port_order": result.scenario.ports.order if result.nports == 4 else None,
+        "port_order": result.scenario.ports.order if result.nports >= 4 else None,
         "reference_ohm": result.scenario.ports.reference,
         "summary": summary,
         "imports": [c.to_json() for c in result.imports],
@@ -288,7 +299,8 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
 
 def build_text(build) -> str:
     """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
-    budget and the fit, the files written."""
-    return summary_text(
-        build.channel, build.summary, build.files, sections=[budget_text(build.budget, build.fit)]
-    )
+    budget and the fit, the crosstalk, the files written."""
+    from losslane.report.crosstalk import crosstalk_text
+
+    sections = [budget_text(build.budget, build.fit), crosstalk_text(build.crosstalk)]
+    return summary_text(build.channel, build.summary, build.files, sections=sections)
