@@ -283,7 +283,7 @@ def summary_text(
 
 
 def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) -> dict:
-    touch = next((str(p) for p in files if re.search(r"\.s\dp$", p.name)), None)
+    touch = next((str(p) for p in files if re.search(r"\.s\d+p$", p.name)), None)
     return {
         "touchstone": touch,
         "ports": result.nports,

@@ -53,6 +53,11 @@ def section_from_spec(
     cls = registry.model(kind, key_name(where, "kind"))
     solver = text(where, spec, "solver", SOLVERS, getattr(cls, "default_solver", "closed-form"))
     cli = isinstance(where, Where) and where.cli
+    if cli and not getattr(cls, "command_line", True):
+        raise LossLaneError(
+            f"{where}: kind {kind!r} is described in a scenario file ([lines.NAME]); its "
+            "keys have no command-line options"
+        )
     allowed = spec_keys(cls, solver) + (() if cli else (NOTE_KEY,))
     check_keys(where, spec, allowed, required=cls.spec_keys() + ("dielectric",))
     geometry = cls.dimensions_from_spec(spec, where)

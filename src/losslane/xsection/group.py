@@ -193,6 +193,8 @@ class _Group(CrossSection):
 
     default_solver: ClassVar[str] = "field"
     closed_form: ClassVar[bool] = False
+    #: the traces list has no command-line form: the kinds live in scenario files
+    command_line: ClassVar[bool] = False
 
     def __post_init__(self) -> None:
         super().__post_init__()
@@ -206,13 +208,6 @@ class _Group(CrossSection):
 
     @classmethod
     def dimensions_from_spec(cls, spec: Mapping, where) -> dict:
-        from losslane.spec import Where
-
-        if isinstance(where, Where) and where.cli:
-            raise LossLaneError(
-                f"{where}: kind {cls.kind!r} is a group of traces, described in a scenario "
-                "file ([lines.NAME] with traces = [...]); the command line has no traces option"
-            )
         dims = super().dimensions_from_spec(spec, where)
         dims["traces"] = parse_traces(spec, where)
         return dims
