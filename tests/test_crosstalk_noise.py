@@ -151,9 +151,11 @@ def test_single_trace_into_pair_is_single_ended_to_differential():
     s = 0.5 * (s + np.swapaxes(s, 1, 2))
     (c,) = couplings(s, 50.0, members_of(traces), "v", ["a"])
     assert c.mode == "single-ended to differential"
-    assert c.next == pytest.approx((s[:, 1, 0] - s[:, 2, 0]) / np.sqrt(2), abs=1e-15)
+    # the victim's receiver is at the far end (ports 3..5): NEXT from the aggressor's far
+    # end (port 3), FEXT from its near end (port 0)
+    assert c.next == pytest.approx((s[:, 4, 3] - s[:, 5, 3]) / np.sqrt(2), abs=1e-15)
     assert c.fext == pytest.approx((s[:, 4, 0] - s[:, 5, 0]) / np.sqrt(2), abs=1e-15)
-    assert c.next_far == pytest.approx((s[:, 4, 3] - s[:, 5, 3]) / np.sqrt(2), abs=1e-15)
+    assert c.next_tx == pytest.approx((s[:, 1, 0] - s[:, 2, 0]) / np.sqrt(2), abs=1e-15)
 
 
 def test_pair_to_pair_coupling_agrees_with_scikit_rf_mixed_mode():
@@ -171,8 +173,9 @@ def test_pair_to_pair_coupling_agrees_with_scikit_rf_mixed_mode():
     net = skrf.Network(frequency=skrf.Frequency.from_f(f, unit="Hz"), s=s, z0=50)
     net.se2gmm(p=4)
     mm = net.s
-    assert c.next == pytest.approx(mm[:, 1, 0], abs=1e-12)
+    assert c.next == pytest.approx(mm[:, 3, 2], abs=1e-12)
     assert c.fext == pytest.approx(mm[:, 3, 0], abs=1e-12)
+    assert c.next_tx == pytest.approx(mm[:, 1, 0], abs=1e-12)
 
 
 def test_noise_sum_needs_a_uniform_sweep():

@@ -3,17 +3,19 @@
 Each trace of the group is one mode port at each end: a pair its differential port
 (d = (P - N) / sqrt 2), a single-ended trace its own port; the mixed-mode matrix
 M S M^T of ``network.mixedmode`` (D. E. Bockelman, W. R. Eisenstadt, IEEE Trans. MTT
-43(7), 1995) holds every coupling between them. With an aggressor driven at its near end
-(the transmitting end of the channel, ports 1..n):
+43(7), 1995) holds every coupling between them. The channel runs from the victim's
+transmitter (near ends, ports 1..n) to its receiver (far ends, ports n+1..2n); both
+couplings are taken where they hurt, at the victim's receiver:
 
-* NEXT = b(victim, near end) / a(aggressor, near end),
-* FEXT = b(victim, far end) / a(aggressor, near end),
+* NEXT = b(victim, far end) / a(aggressor, far end): an aggressor transmitting from the
+  victim's receiving end (the near end seen from that aggressor);
+* FEXT = b(victim, far end) / a(aggressor, near end): an aggressor transmitting from the
+  victim's transmitting end, its coupling carried along the whole channel;
 
 differential to differential for a pair into a pair, single-ended to differential for a
 single trace into a pair (and the reverse, or single-ended to single-ended, for a single
-victim). ``next_far`` is the NEXT at the other end (aggressor and victim both at the far
-end, where the victim's receiver sits); for a channel that is the same seen from both
-ends it equals NEXT.
+victim). ``next_tx`` is the NEXT at the other end, b(victim, near end) / a(aggressor,
+near end); a channel that is the same seen from both ends has next_tx = NEXT.
 """
 
 from __future__ import annotations
@@ -64,7 +66,7 @@ class Coupling:
     mode: str
     next: np.ndarray
     fext: np.ndarray
-    next_far: np.ndarray
+    next_tx: np.ndarray
 
 
 def _modal(s: np.ndarray, z_ref: float, members: Sequence[Member]) -> np.ndarray:
@@ -80,7 +82,7 @@ def couplings(
     aggressors: Sequence[str],
     modal: np.ndarray | None = None,
 ) -> list[Coupling]:
-    """NEXT, FEXT and far-end NEXT from each of ``aggressors`` into ``victim``, from the
+    """NEXT, FEXT and next_tx from each of ``aggressors`` into ``victim``, from the
     (N, 2n, 2n) S in the internal port order with every port referred to ``z_ref``
     (``modal``: its mixed-mode matrix if already formed)."""
     mm = _modal(s, z_ref, members) if modal is None else modal
@@ -91,7 +93,7 @@ def couplings(
     for name in aggressors:
         a = member(tuple(members), name, "aggressor")
         an, af = ports[name]
-        out.append(Coupling(name, mode_name(v, a), mm[:, vn, an], mm[:, vf, an], mm[:, vf, af]))
+        out.append(Coupling(name, mode_name(v, a), mm[:, vf, af], mm[:, vf, an], mm[:, vn, an]))
     return out
 
 

@@ -106,11 +106,13 @@ class CrosstalkResult:
         return bool(self.noise.total <= self.max_icn)
 
     def step_waveforms(self, rise_time: float | None = None):
-        """The victim's near- and far-end response to a unit step driven into each
-        aggressor at the near end (fractions of the step): ``network.timedomain``
-        Waveforms with values (T, aggressors, 2) -- [..., 0] near end, [..., 1] far end.
-        ``rise_time`` (10-90 %) defaults to the near-end aggressor's transition time as a
-        Gaussian edge, at least 0.75 / f_max (the helper's default)."""
+        """The victim's response at its receiver to a unit step on each aggressor
+        (fractions of the step): ``network.timedomain`` Waveforms with values
+        (T, aggressors, 2) -- [..., 0] NEXT, the aggressor stepped at the same end (the
+        victim's near end as the aggressor sees it: the saturated plateau), [..., 1]
+        FEXT, the aggressor stepped at the other end (the far-end pulse). ``rise_time``
+        (10-90 %) defaults to the NEXT aggressor's transition time as a Gaussian edge, at
+        least 0.75 / f_max (the helper's default)."""
         from losslane.network.timedomain import default_rise_time, step_response
 
         f_max = float(self.f[-1])
@@ -141,7 +143,7 @@ class CrosstalkResult:
                     "mode": c.mode,
                     "next_db": _at(self.f, to_isolation_db(c.next), pts),
                     "fext_db": _at(self.f, to_isolation_db(c.fext), pts),
-                    "next_far_end_db": _at(self.f, to_isolation_db(c.next_far), pts),
+                    "next_transmitter_end_db": _at(self.f, to_isolation_db(c.next_tx), pts),
                 }
             )
         n = self.noise

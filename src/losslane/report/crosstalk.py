@@ -70,15 +70,15 @@ def crosstalk_text(xt) -> str:
             row += [f"{nx:.1f}", f"{fx:.1f}"]
         rows.append(row)
     out = [
-        f"crosstalk into {xt.victim} ({data['victim_mode']}), isolation in dB "
-        "(aggressor driven at the near end)",
+        f"crosstalk into {xt.victim} ({data['victim_mode']}) at its receiver, isolation in dB "
+        "(NEXT: aggressor transmitting at the receiving end; FEXT: at the transmitting end)",
         table(heads, units, rows, left=2),
     ]
     if xt.noise is not None:
         lim = "" if xt.max_icn is None else f", limit {1e3 * xt.max_icn:.3g} mV"
         out.append(
             f"integrated crosstalk noise {1e3 * xt.noise.total:.3f} mV rms "
-            f"(near end {1e3 * xt.noise.near:.3f}, far end {1e3 * xt.noise.far:.3f}){lim}: "
+            f"(from NEXT {1e3 * xt.noise.near:.3f}, from FEXT {1e3 * xt.noise.far:.3f}){lim}: "
             f"{verdict(xt.passed)}"
         )
     if xt.icr_at_nyquist_db is not None:
@@ -114,8 +114,8 @@ def xtalk_chart(path: Path, xt, title: str) -> Path:
 
 
 def step_chart(path: Path, xt, title: str) -> Path:
-    """The victim's near- and far-end waveforms (% of the aggressor's step) for a step on
-    each aggressor at the near end."""
+    """The victim's waveforms at its receiver (% of the aggressor's step): NEXT for a step
+    on each aggressor at the same end, FEXT for a step at the other end."""
     import matplotlib
 
     w = xt.step_waveforms()
@@ -131,11 +131,14 @@ def step_chart(path: Path, xt, title: str) -> Path:
     delay = xt.victim_delay(w.rise_time_s)
     start = -3 * w.rise_time_s * 1e9
     stop = (2.5 * delay + 10 * w.rise_time_s) * 1e9 if delay else t_ns[-1]
-    for ax, what in ((a1, "near end (NEXT)"), (a2, "far end (FEXT)")):
+    for ax, what in (
+        (a1, "NEXT: aggressor stepped at the receiving end"),
+        (a2, "FEXT: aggressor stepped at the transmitting end"),
+    ):
         ax.grid(True, alpha=0.3)
         ax.set_xlim(max(start, t_ns[0]), min(stop, t_ns[-1]))
         ax.set_xlabel("time (ns)")
-        ax.set_ylabel("victim voltage (% of the aggressor's step)")
+        ax.set_ylabel("victim at its receiver (% of the aggressor's step)")
         ax.set_title(f"{xt.victim}: {what}", fontsize=10)
         ax.legend(fontsize=8)
         ax.axvline(0.0, color="0.35", lw=0.9, ls=":")
@@ -188,17 +191,19 @@ def write_crosstalk_files(
         p = xtalk_chart(
             stage / f"{stem}-crosstalk.png",
             xt,
-            f"{name}: crosstalk into {xt.victim} (aggressors driven at the near end)",
+            f"{name}: crosstalk into {xt.victim} at its receiver",
         )
         files.append(p)
         charts.append((p, f"NEXT and FEXT into {xt.victim}, and its insertion loss"))
         p = step_chart(
             stage / f"{stem}-crosstalk-step.png",
             xt,
-            f"{name}: {xt.victim}'s near- and far-end waveforms for an aggressor step",
+            f"{name}: {xt.victim}'s near- and far-end crosstalk waveforms for an aggressor step",
         )
         files.append(p)
-        charts.append((p, f"{xt.victim}'s near- and far-end waveforms for an aggressor step"))
+        charts.append(
+            (p, f"{xt.victim}'s near- and far-end crosstalk waveforms for an aggressor step")
+        )
     return files, charts
 
 
@@ -222,9 +227,9 @@ def crosstalk_html(xt) -> str:
         parts.append(f'<p class="verdict {"pass" if ok else "fail"}">{escape(text)}</p>')
     parts.append(
         f"<p>Victim <strong>{escape(xt.victim)}</strong> ({escape(data['victim_mode'])}); "
-        "each aggressor driven at the near end (the transmitter side), every other port "
-        "terminated in the reference. Isolation in dB (positive): NEXT at the victim's near "
-        "end, FEXT at its far end.</p>"
+        "every port not driven terminated in the reference. Isolation in dB (positive), both "
+        "at the victim's receiver (its far end): NEXT from an aggressor transmitting at that "
+        "end, FEXT from an aggressor transmitting at the victim's transmitting end.</p>"
     )
     head = "<tr><th>aggressor</th><th>mode</th>" + "".join(
         f"<th>NEXT {_ghz(p)} GHz (dB)</th><th>FEXT {_ghz(p)} GHz (dB)</th>" for p in pts
@@ -249,11 +254,11 @@ def crosstalk_html(xt) -> str:
             ),
             ("baud rate", f"{n.baud / 1e9:.6g} GBd"),
             (
-                "aggressor amplitude near / far end",
+                "NEXT / FEXT aggressor amplitude",
                 f"{1e3 * n.near_amplitude:.4g} / {1e3 * n.far_amplitude:.4g} mV (peak)",
             ),
             (
-                "aggressor transition near / far end (20-80 %)",
+                "NEXT / FEXT aggressor transition (20-80 %)",
                 f"{n.near_transition * 1e12:.4g} / {n.far_transition * 1e12:.4g} ps",
             ),
             ("receiver reference bandwidth", f"{n.bandwidth / 1e9:.6g} GHz"),
