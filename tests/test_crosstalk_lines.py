@@ -291,6 +291,11 @@ def test_mirror_symmetric_group_has_mirror_symmetric_matrices():
         scale = np.abs(np.diagonal(m, axis1=1, axis2=2)).max()
         assert np.abs(m - m[:, ::-1, ::-1]).max() < 1e-9 * scale  # mirror
         assert np.abs(m - np.swapaxes(m, 1, 2)).max() < 1e-12 * scale  # reciprocal
+    # and in the 12-port of a length of it: mirroring the conductors maps S onto itself,
+    # so both aggressors couple alike into the victim (a P-N swap of every pair)
+    s = UniformLine.from_rlgc(rl).s(0.05)
+    mirror = np.r_[5:-1:-1, 11:5:-1]
+    assert np.abs(s - s[:, mirror][:, :, mirror]).max() < 1e-9
 
 
 def test_group_input_errors():
