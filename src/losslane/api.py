@@ -491,7 +491,8 @@ def materials(
 @dataclass
 class BuildResult:
     """A built scenario: the channel, its budget and fit, the summary rows at the quoted
-    frequencies, and the files written."""
+    frequencies, the files written, and the crosstalk of a channel on group lines
+    (``crosstalk.evaluate.CrosstalkResult``, else None)."""
 
     channel: ChannelResult
     budget: ChannelBudget | None
@@ -499,6 +500,7 @@ class BuildResult:
     summary: list[dict]
     files: list[Path] = field(default_factory=list)
     overlay: MeasuredOverlay | None = None
+    crosstalk: Any = None
 
     @property
     def warnings(self) -> list[str]:
@@ -506,8 +508,15 @@ class BuildResult:
 
     @property
     def passed(self) -> bool | None:
-        """The budget's verdict (None without a [budget])."""
-        return None if self.budget is None else self.budget.passed
+        """The budget's verdict with the crosstalk noise limit's (None without a [budget])."""
+        if self.budget is None:
+            return None
+        return self.budget.passed and self.crosstalk_passed is not False
+
+    @property
+    def crosstalk_passed(self) -> bool | None:
+        """The integrated crosstalk noise within [budget] max_icn (None: not judged)."""
+        return None if self.crosstalk is None else self.crosstalk.passed
 
     def to_json(self) -> dict:
         """The `losslane build --json` object."""
@@ -518,6 +527,7 @@ class BuildResult:
         nyq = budget.nyquist.at if budget is not None and budget.nyquist is not None else None
         data["budget"] = None if budget is None else budget.to_json()
         data["fit"] = None if self.fit is None else self.fit.to_json(nyq)
+        data["crosstalk"] = None if self.crosstalk is None else self.crosstalk.to_json()
         data["warnings"] = list(self.warnings)
         data["measured"] = None if self.overlay is None else self.overlay.to_json()
         return data
@@ -573,6 +583,7 @@ def build(
         form,
         plots,
         overlay=result.overlay,
+        crosstalk=result.crosstalk,
     )
     return result
 
@@ -583,6 +594,7 @@ def build_result(scenario, points=None) -> BuildResult:
     sweep evaluates per case. ``points``: the budget's check points if already found."""
     from losslane.budget import evaluate_budget, fit_channel, validate
     from losslane.channel import build_channel
+    from losslane.crosstalk.evaluate import evaluate_crosstalk
     from losslane.measure.overlay import measured_overlay
     from losslane.report.channel import summary_frequencies, summary_rows
 
@@ -592,7 +604,10 @@ def build_result(scenario, points=None) -> BuildResult:
     budget = evaluate_budget(channel, points=points)
     fit = fit_channel(channel)
     overlay = measured_overlay(channel, summary_frequencies(channel))
-    return BuildResult(channel, budget, fit, summary_rows(channel), overlay=overlay)
+    crosstalk = evaluate_crosstalk(channel)
+    return BuildResult(
+        channel, budget, fit, summary_rows(channel), overlay=overlay, crosstalk=crosstalk
+    )
 
 
 def demo(

@@ -17,6 +17,7 @@ from typing import Any
 
 import numpy as np
 
+from losslane.crosstalk.settings import CrosstalkSettings, channel_members, parse_crosstalk
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.library import Library, dielectric_from_spec, foil_from_spec, load_library
@@ -39,6 +40,7 @@ TOP_KEYS = (
     "channel",
     "budget",
     "compare",
+    "crosstalk",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 MAX_POINTS = 200_001
@@ -97,6 +99,8 @@ class Budget:
     checks: tuple[Check, ...]
     fit_start: float | None = None
     fit_stop: float | None = None
+    #: limit on the integrated crosstalk noise (V), for channels on group lines
+    max_icn: float | None = None
 
     @property
     def baud(self) -> float | None:
@@ -134,17 +138,27 @@ class Scenario:
     foils: dict[str, Roughness]
     source_text: str = ""
     compare: Comparison | None = None
+    crosstalk: CrosstalkSettings | None = None
 
     @property
     def conductors(self) -> int:
-        """1 for a single-ended (2-port) channel, 2 for a differential (4-port) one."""
+        """1 for a single-ended (2-port) channel, 2 for a differential (4-port) one, n for a
+        channel on group lines (a 2n-port)."""
         return _conductors(self.channel)
+
+    @property
+    def members(self) -> tuple:
+        """The traces of a channel on group lines (``xsection.group.Member``), else ()."""
+        return channel_members(self.channel)
 
     def frequencies(self) -> np.ndarray:
         return self.sweep.frequencies()
 
 
 def _conductors(channel: list[Segment]) -> int:
+    members = channel_members(channel)
+    if members:
+        return sum(len(m.conductors) for m in members)
     n = None
     first = None
     for seg in channel:
@@ -245,6 +259,7 @@ def scenario_from_data(
     channel = _channel(data["channel"], lines, base, resolve_dielectric)
     budget = _budget(data["budget"]) if "budget" in data else None
     compare = _compare(data["compare"], base) if "compare" in data else None
+    crosstalk = _crosstalk(data, channel, budget)
     sc = Scenario(
         name=name.strip(),
         path=path,
@@ -258,6 +273,7 @@ def scenario_from_data(
         foils=foils,
         source_text=source,
         compare=compare,
+        crosstalk=crosstalk,
     )
     _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
     return sc
@@ -474,12 +490,41 @@ def _segment(
     return Segment(i, "shunt", name or "shunt capacitance", vals)
 
 
+def _crosstalk(data: Mapping, channel: list[Segment], budget: Budget | None):
+    """The [crosstalk] table of a channel on group lines (required there, refused
+    elsewhere); such a channel numbers its ports in-in-out-out only."""
+    members = channel_members(channel)
+    if budget is not None and budget.max_icn is not None and not members:
+        raise LossLaneError(
+            "[budget].max_icn: the integrated crosstalk noise needs a channel on group lines "
+            '(kind "stripline-group" or "microstrip-group") and a [crosstalk] victim'
+        )
+    if "crosstalk" not in data:
+        if members:
+            raise LossLaneError(
+                "[crosstalk]: the channel runs on group lines; name the trace judged, e.g. "
+                f"[crosstalk] victim = {members[0].name!r} "
+                f"(traces: {', '.join(m.name for m in members)})"
+            )
+        return None
+    settings = parse_crosstalk(data["crosstalk"], members)
+    order = data.get("ports", {}).get("order") if isinstance(data.get("ports"), Mapping) else None
+    if order is not None and order != DEFAULT_ORDER:
+        raise LossLaneError(
+            f"[ports].order = {order!r}: a channel on group lines numbers its ports "
+            f"{DEFAULT_ORDER!r} only (1..n near ends in the traces' order, n+1..2n far ends)"
+        )
+    return settings
+
+
 def _budget(spec: object) -> Budget:
     where = "[budget]"
     if not isinstance(spec, Mapping):
         raise LossLaneError(f"{where}: expected a table")
     check_keys(
-        where, spec, ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop")
+        where,
+        spec,
+        ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop", "max_icn"),
     )
     rate = quantity(where, spec, "data_rate", "data rate")
     if rate is not None and rate <= 0:
@@ -509,7 +554,13 @@ def _budget(spec: object) -> Budget:
         checks.append(chk)
     fit_start = quantity(where, spec, "fit_start", "frequency")
     fit_stop = quantity(where, spec, "fit_stop", "frequency")
-    return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop)
+    max_icn = quantity(where, spec, "max_icn", "voltage")
+    if max_icn is not None and (max_icn <= 0 or rate is None):
+        raise LossLaneError(
+            f"{where}.max_icn = {spec['max_icn']!r}: the limit on the integrated crosstalk "
+            'noise is > 0 V (e.g. "5 mV") and needs data_rate'
+        )
+    return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop, max_icn)
 
 
 def _compare(spec: object, base: Path) -> Comparison:

@@ -65,7 +65,7 @@ def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
 
 def summary_rows(result: ChannelResult) -> list[dict]:
     rl_in, rl_out = result.return_loss
-    mm = result.mixed_mode
+    mm = result.main_mixed_mode
     rows = []
     for x in summary_frequencies(result):
         row = {
@@ -100,7 +100,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> l
 
     sc = result.scenario
     f = result.f
-    mode = "" if result.nports == 2 else " (differential mode)"
+    mode = " (differential mode)" if result.differential else ""
     markers = check_markers(result)
     import matplotlib
 
@@ -122,7 +122,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> l
         f,
         curves,
         f"{sc.name}: insertion loss{mode}, cumulative through each segment",
-        ("Sdd21" if result.nports == 4 else "S21") + " (dB), insertion loss below 0",
+        ("Sdd21" if result.differential else "S21") + " (dB), insertion loss below 0",
         markers,
         floor_db=-200,
     )
@@ -145,7 +145,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> l
         floor_db=-80,
     )
     files = [il, rl]
-    mm = result.mixed_mode
+    mm = result.main_mixed_mode
     if mm is not None:
         files.append(
             db_plot(
@@ -189,13 +189,16 @@ def write_build(
     form: str = "ri",
     plots: bool = True,
     overlay=None,
+    crosstalk=None,
 ) -> list[Path]:
     """Write the build's files into ``out_dir`` (checked with ``prepare_out_dir``): the
     Touchstone file, the channel charts, the budget's files and the report page; returns
     their final paths. ``budget``/``fit``: a ChannelBudget/LossFit or None; ``summary``:
     the rows of ``summary_rows``; ``overlay``: a measurement to show beside the model
-    (``measure.overlay.MeasuredOverlay``) or None."""
+    (``measure.overlay.MeasuredOverlay``) or None; ``crosstalk``: a CrosstalkResult of a
+    channel on group lines (its victim's own file and charts are written too)."""
     from losslane.network.touchstone import write_touchstone
+    from losslane.report.crosstalk import port_lines, write_crosstalk_files
     from losslane.report.overlay import write_overlay_files
 
     out = Path(out_dir)
@@ -216,9 +219,14 @@ def write_build(
                     f"{result.scenario.path.name if result.scenario.path else 'a scenario'}",
                     "estimate: confirm against the fabricator's stackup and measured test coupons",
                     *guarantee_lines(result),
+                    *port_lines(result),
                 ],
             )
         ]
+        xt_files, xt_charts = write_crosstalk_files(
+            result, crosstalk, stage, stem, version, form, plots
+        )
+        files += xt_files
         if plots:
             files += plot_files(result, stage, stem, overlay)
         budget_files, charts = write_budget_files(result, budget, fit, stage, stem, plots)
@@ -226,10 +234,13 @@ def write_build(
         files += write_overlay_files(
             overlay, result.scenario.name, stage, stem, plots, check_markers(result)
         )
+        charts = charts + xt_charts
         page = stage / f"{stem}-report.html"
         names = sorted({p.name for p in files} | {page.name})
         page.write_text(
-            report_html(result, budget, fit, stage, stem, charts, names, summary, overlay),
+            report_html(
+                result, budget, fit, stage, stem, charts, names, summary, overlay, crosstalk
+            ),
             encoding="utf-8",
         )
         files.append(page)
@@ -253,7 +264,7 @@ def summary_text(
     """The terminal summary (``summary``: the rows of ``summary_rows``); ``sections``
     (e.g. the loss budget) go before the file list."""
     sc = result.scenario
-    four = result.nports == 4
+    four = result.differential
     mode = " (differential mode)" if four else ""
     heads = ["frequency", "insertion loss", "return loss in", "return loss out"]
     units = ["GHz", "dB", "dB", "dB"]
@@ -274,7 +285,9 @@ def summary_text(
     head = (
         f"{sc.name}: {len(result.blocks)} segments, {result.nports}-port, "
         f"{result.f.size} points {result.f[0] / 1e9:g}..{result.f[-1] / 1e9:g} GHz, "
-        f"reference {sc.ports.reference:g} ohm" + (f", port order {sc.ports.order}" if four else "")
+        f"reference {sc.ports.reference:g} ohm"
+        + (f", port order {sc.ports.order}" if result.nports >= 4 else "")
+        + (f", victim {result.victim}" if result.victim else "")
     )
     out = [head, "", f"insertion and return loss{mode}", table(heads, units, rows)]
     if result.imports:
@@ -291,13 +304,13 @@ def summary_text(
 
 
 def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) -> dict:
-    touch = next((str(p) for p in files if re.search(r"\.s\dp$", p.name)), None)
+    touch = next((str(p) for p in files if re.search(r"\.s\d+p$", p.name)), None)
     return {
         "touchstone": touch,
         "ports": result.nports,
         "points": int(result.f.size),
         "files": [str(p) for p in files],
-        "port_order": result.scenario.ports.order if result.nports == 4 else None,
+        "port_order": result.scenario.ports.order if result.nports >= 4 else None,
         "reference_ohm": result.scenario.ports.reference,
         "summary": summary,
         "imports": [c.to_json() for c in result.imports],
@@ -307,8 +320,13 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
 
 def build_text(build) -> str:
     """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
-    budget and the fit, the files written."""
+    budget and the fit, the measurement beside the model, the crosstalk, the files written."""
+    from losslane.report.crosstalk import crosstalk_text
     from losslane.report.overlay import overlay_text
 
-    sections = [budget_text(build.budget, build.fit), overlay_text(getattr(build, "overlay", None))]
+    sections = [
+        budget_text(build.budget, build.fit),
+        overlay_text(getattr(build, "overlay", None)),
+        crosstalk_text(getattr(build, "crosstalk", None)),
+    ]
     return summary_text(build.channel, build.summary, build.files, sections=sections)

@@ -163,7 +163,8 @@ def render_report(
 ) -> str:
     """The page as text. ``budget`` a ChannelBudget or None, ``fit`` a LossFit or None,
     ``summary`` the rows of the terminal summary (at_hz, insertion_loss_db,
-    return_loss_in_db, return_loss_out_db)."""
+    return_loss_in_db, return_loss_out_db); ``sections``: more HTML sections (crosstalk),
+    placed before the charts."""
     parts = [
         "<!DOCTYPE html>",
         '<html lang="en">',
@@ -268,10 +269,12 @@ def report_html(
     names: Sequence[str],
     summary: Sequence[dict],
     overlay=None,
+    crosstalk=None,
 ) -> str:
     """The self-contained page: the channel plots already staged (insertion and return
     loss, with a measurement and its difference chart when ``overlay`` is given) and the
-    budget charts, embedded."""
+    budget charts, embedded; ``crosstalk`` a CrosstalkResult or None."""
+    from losslane.report.crosstalk import crosstalk_html
     from losslane.report.overlay import overlay_html
 
     sc = result.scenario
@@ -288,9 +291,10 @@ def report_html(
     f = result.f
     meta = [
         f"{len(result.blocks)} segments, {result.nports}-port"
-        + (" (differential pair)" if result.nports == 4 else "")
+        + (" (differential pair)" if result.nports == 4 and not result.victim else "")
+        + (f" (group of traces, victim {result.victim})" if result.victim else "")
         + f", reference {sc.ports.reference:g} ohm per port"
-        + (f", port order {sc.ports.order}" if result.nports == 4 else ""),
+        + (f", port order {sc.ports.order}" if result.nports >= 4 else ""),
         f"sweep {f[0] / 1e9:g}..{f[-1] / 1e9:g} GHz, {f.size} points",
         f"built by losslane {__version__} from "
         + (sc.path.name if sc.path is not None else "a scenario"),
@@ -309,6 +313,6 @@ def report_html(
         scenario_name=sc.path.name if sc.path is not None else "scenario",
         scenario_text=sc.source_text,
         files=names,
-        mode="" if result.nports == 2 else " (differential mode)",
-        sections=[overlay_html(overlay)],
+        mode=" (differential mode)" if result.differential else "",
+        sections=[overlay_html(overlay), crosstalk_html(crosstalk)],
     )
