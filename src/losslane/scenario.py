@@ -24,6 +24,7 @@ from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
 from losslane.spec import check_keys, quantity, suggest, text
+from losslane.timesettings import TimeSettings, parse_time
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
 
@@ -38,6 +39,7 @@ TOP_KEYS = (
     "lines",
     "channel",
     "budget",
+    "time",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 MAX_POINTS = 200_001
@@ -122,6 +124,7 @@ class Scenario:
     dielectrics: dict[str, Dielectric]
     foils: dict[str, Roughness]
     source_text: str = ""
+    time: TimeSettings = field(default_factory=TimeSettings)  # the [time] section
 
     @property
     def conductors(self) -> int:
@@ -236,6 +239,7 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
         dielectrics=dielectrics,
         foils=foils,
         source_text=source,
+        time=parse_time(data.get("time", {}), sweep.stop),
     )
     _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
     return sc

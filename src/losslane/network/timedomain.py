@@ -883,8 +883,9 @@ def _port_refs(z_ref, nports: int) -> np.ndarray:
     return z
 
 
-def _network_columns(s: np.ndarray, z: np.ndarray, order: str):
-    """The reflections and through paths of a 2- or 4-port as columns, with labels."""
+def _network_columns(s: np.ndarray, z: np.ndarray, order: str, mixed=None):
+    """The reflections and through paths of a 2- or 4-port as columns, with labels
+    (``mixed``: the 4-port's mixed-mode S if already known, else converted here)."""
     p = s.shape[1]
     cols, refl, thru = [], [], []
     for k in range(p):
@@ -901,7 +902,7 @@ def _network_columns(s: np.ndarray, z: np.ndarray, order: str):
             f"z_ref = {z.tolist()} ohm: the differential views need one reference impedance "
             "for all four ports"
         )
-    mm = mixed_mode(s, float(z[0]), order)
+    mm = mixed if mixed is not None else mixed_mode(s, float(z[0]), order)
     for k in range(2):
         cols.append(mm.dd[:, k, k])
         refl.append((k + 1, "differential", 2.0 * float(z[0])))
@@ -928,6 +929,7 @@ def time_domain(
     amplitude: float = 1.0,
     duration: float | None = None,
     samples_per_rise: int = SAMPLES_PER_RISE,
+    mixed=None,
 ) -> TimeDomainReport:
     """Every time-domain view of a 2-port or differential 4-port S (N, P, P) on ``f`` (Hz),
     ports numbered as in the data (4-ports in ``order``), from one inverse transform:
@@ -941,7 +943,8 @@ def time_domain(
 
     The profiles run to 1.25 round trips of the longest through delay plus 10 rise times
     (every feature of the channel and its far end lie within), or to ``duration`` (s,
-    round-trip time).
+    round-trip time). ``mixed``: the 4-port's ``MixedMode`` (pair 1 = the near ends,
+    differential reference 2 z_ref) when the caller has it already.
     """
     check_order(order)
     s = np.asarray(s)
@@ -952,7 +955,7 @@ def time_domain(
     z = _port_refs(z_ref, s.shape[1])
     dpm = None if delay_per_m is None else _positive("delay_per_m", delay_per_m, "s/m")
     ui = None if data_rate is None else _unit_interval(data_rate, modulation)
-    cols, refl, thru, legs = _network_columns(np.asarray(s, complex), z, order)
+    cols, refl, thru, legs = _network_columns(np.asarray(s, complex), z, order, mixed)
     n_refl = len(refl)
     spec = uniform_spectrum(f, np.stack(cols, axis=1), "frequencies")
     values = spec.values

@@ -22,6 +22,7 @@ from losslane.report.budget import budget_text, write_budget_files
 from losslane.report.charts import Curve, Marker, db_plot, to_db
 from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
+from losslane.report.timeviews import build_summary_lines, build_view_files
 
 
 def slug(name: str) -> str:
@@ -175,11 +176,13 @@ def write_build(
     version: int = 1,
     form: str = "ri",
     plots: bool = True,
+    views=None,
 ) -> list[Path]:
     """Write the build's files into ``out_dir`` (checked with ``prepare_out_dir``): the
     Touchstone file, the channel charts, the budget's files and the report page; returns
     their final paths. ``budget``/``fit``: a ChannelBudget/LossFit or None; ``summary``:
-    the rows of ``summary_rows``."""
+    the rows of ``summary_rows``; ``views`` the quality and time-domain views of the
+    written S-parameters (an Inspection, charted and on the page; None: left out)."""
     from losslane.network.touchstone import write_touchstone
 
     out = Path(out_dir)
@@ -207,10 +210,14 @@ def write_build(
             files += plot_files(result, stage, stem)
         budget_files, charts = write_budget_files(result, budget, fit, stage, stem, plots)
         files += budget_files
+        view_files, view_charts = build_view_files(views, stage, stem, result.scenario.name, plots)
+        files += view_files
         page = stage / f"{stem}-report.html"
         names = sorted({p.name for p in files} | {page.name})
         page.write_text(
-            report_html(result, budget, fit, stage, stem, charts, names, summary),
+            report_html(
+                result, budget, fit, stage, stem, charts + view_charts, names, summary, views
+            ),
             encoding="utf-8",
         )
         files.append(page)
@@ -289,6 +296,10 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
 def build_text(build) -> str:
     """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
     budget and the fit, the files written."""
+    views = "\n".join(build_summary_lines(build.views))
     return summary_text(
-        build.channel, build.summary, build.files, sections=[budget_text(build.budget, build.fit)]
+        build.channel,
+        build.summary,
+        build.files,
+        sections=[views, budget_text(build.budget, build.fit)],
     )

@@ -18,6 +18,7 @@ from pathlib import Path
 from losslane import __version__
 from losslane.report.budget import budget_rows, point_title
 from losslane.report.text import CAUTION, verdict
+from losslane.report.timeviews import build_section_html
 
 STYLE = """
 body { font-family: sans-serif; margin: 1.5em auto; max-width: 70em; color: #222;
@@ -159,6 +160,7 @@ def render_report(
     scenario_text: str,
     files: Sequence[str],
     mode: str = "",
+    sections: Sequence[str] = (),
 ) -> str:
     """The page as text. ``budget`` a ChannelBudget or None, ``fit`` a LossFit or None,
     ``summary`` the rows of the terminal summary (at_hz, insertion_loss_db,
@@ -217,6 +219,7 @@ def render_report(
         "<table><tr><th>frequency (GHz)</th><th>insertion loss (dB)</th>"
         "<th>return loss in (dB)</th><th>return loss out (dB)</th></tr>" + srows + "</table>"
     )
+    parts.extend(sections)  # extra sections (HTML), e.g. the time-domain views
     parts.append('<h2 id="charts">Charts</h2>')
     if figures:
         for fig in figures:
@@ -265,9 +268,10 @@ def report_html(
     charts: Sequence[tuple[Path, str]],
     names: Sequence[str],
     summary: Sequence[dict],
+    views=None,
 ) -> str:
     """The self-contained page: the channel plots already staged (insertion and return
-    loss) and the budget charts, embedded."""
+    loss) and the budget charts, embedded; with ``views`` (an Inspection) its section."""
     sc = result.scenario
     figures = []
     for suffix, caption in (
@@ -303,4 +307,5 @@ def report_html(
         scenario_text=sc.source_text,
         files=names,
         mode="" if result.nports == 2 else " (differential mode)",
+        sections=[build_section_html(views)],
     )
