@@ -494,6 +494,8 @@ def build_summary_lines(insp) -> list[str]:
         out.append(line)
     if td.pulse is not None:
         out.append(pulse_text(insp))
+    elif td.step:
+        out.append("pulse response: none (no data_rate in [time] or [budget])")
     return out
 
 
