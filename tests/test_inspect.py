@@ -390,3 +390,15 @@ def test_a_three_port_file_is_refused_with_the_port_count(tmp_path, capsys):
     )
     code, _, err = run(capsys, "inspect", str(tmp_path / "tee.s3p"))
     assert code == 2 and "3 ports" in err and ".s4p" in err
+
+
+def test_transform_lengths_are_scipys_fast_real_lengths():
+    # the time-domain transform sizes itself like scipy.fft.next_fast_len(n, real=True)
+    # (5-smooth numbers) without importing scipy.fft
+    from scipy.fft import next_fast_len
+
+    from losslane.network.timedomain import fast_length
+
+    rng = np.random.default_rng(14)
+    for n in [*range(1, 2000), *rng.integers(2000, 10**8, 500).tolist()]:
+        assert fast_length(n) == next_fast_len(n, real=True), n
