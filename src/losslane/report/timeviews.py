@@ -279,15 +279,11 @@ def profile_chart(path: Path | str, insp, title: str) -> Path:
     for ax, (mode, items) in zip(axes, groups.items(), strict=True):
         for k, (p, feats) in enumerate(items):
             line = ax.plot(p.time_s * 1e9, p.impedance_ohm, lw=1.4, label=_profile_title(p))[0]
-            for x in feats:
-                ax.plot(
-                    x.time_s * 1e9,
-                    x.impedance_ohm,
-                    marker="^" if x.kind == "peak" else "v",
-                    ms=5,
-                    color=line.get_color(),
-                    ls="none",
-                )
+            for kind, marker in (("peak", "^"), ("dip", "v")):
+                pts = [(x.time_s * 1e9, x.impedance_ohm) for x in feats if x.kind == kind]
+                if pts:
+                    tx, zx = zip(*pts, strict=True)
+                    ax.plot(tx, zx, marker=marker, ms=5, color=line.get_color(), ls="none")
             if k == 0:
                 ax.axhline(p.reference_ohm, color="0.4", lw=0.9, ls="--")
         ax.set_ylim(*_z_limits([p for p, _ in items]))
