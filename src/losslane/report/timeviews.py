@@ -268,13 +268,14 @@ def _scale(k: float):
     return (lambda x: x * k), (lambda y: y / k)
 
 
-def profile_chart(path: Path | str, insp, title: str) -> Path:
+def profile_chart(path: Path | str, insp, title: str, modes: tuple[str, ...] | None = None) -> Path:
     """The impedance profiles against the round-trip time (ns), single-ended ports and the
-    differential pairs in separate panels, features marked; a top axis in one-way inches
-    when distances are known."""
+    differential pairs in separate panels (only ``modes``, if given), features marked; a
+    top axis in one-way inches when distances are known."""
     groups = {}
     for p, feats in zip(insp.time.tdr, insp.features, strict=True):
-        groups.setdefault(p.mode, []).append((p, feats))
+        if modes is None or p.mode in modes:
+            groups.setdefault(p.mode, []).append((p, feats))
     plt, fig, axes = _figure(len(groups))
     for ax, (mode, items) in zip(axes, groups.items(), strict=True):
         for k, (p, feats) in enumerate(items):
@@ -455,8 +456,19 @@ def build_view_files(
     if insp is None or not plots:
         return [], []
     stage = Path(stage)
-    p = profile_chart(stage / f"{stem}-impedance-profile.png", insp, f"{name}: impedance profile")
-    charts = [(p, "Impedance profile at each port (round-trip time)")]
+    if insp.ports == 4:  # the channel's own mode; inspect the file for the legs
+        p = profile_chart(
+            stage / f"{stem}-impedance-profile.png",
+            insp,
+            f"{name}: differential impedance profile",
+            ("differential",),
+        )
+        charts = [(p, "Differential impedance profile at each end (round-trip time)")]
+    else:
+        p = profile_chart(
+            stage / f"{stem}-impedance-profile.png", insp, f"{name}: impedance profile"
+        )
+        charts = [(p, "Impedance profile at each port (round-trip time)")]
     if insp.time.pulse is not None:
         q = pulse_chart(
             stage / f"{stem}-pulse.png",
