@@ -20,6 +20,7 @@ from losslane.report.page import STYLE, data_uri
 from losslane.report.timeviews import (
     profile_chart,
     pulse_chart,
+    rate_text,
     step_chart,
     views_html,
     views_text,
@@ -108,7 +109,10 @@ def write_inspect(insp, source: str | None, out_dir: Path | str, stem: str) -> l
             charts.append(
                 (
                     pulse_chart(
-                        stage / f"{stem}-inspect-pulse.png", insp, f"{name}: pulse response"
+                        stage / f"{stem}-inspect-pulse.png",
+                        insp,
+                        f"{name}: pulse response, {rate_text(insp.time.pulse.data_rate_bps)} "
+                        f"{insp.time.pulse.modulation.upper()}",
                     ),
                     "Pulse response of one symbol, with its cursors",
                 )

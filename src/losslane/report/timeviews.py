@@ -47,7 +47,7 @@ def _ghz(x: float) -> str:
     return f"{x / 1e9:.6g}"
 
 
-def _rate(bps: float) -> str:
+def rate_text(bps: float) -> str:
     return f"{bps / 1e9:g} Gb/s" if bps >= 1e9 else f"{bps / 1e6:g} Mb/s"
 
 
@@ -205,7 +205,7 @@ def pulse_text(insp) -> str:
         return "pulse response: none (give a data rate)"
     posts = ", ".join(f"{v:.4g}" for v in p.post_cursors)
     return (
-        f"pulse response of {p.path} ({_rate(p.data_rate_bps)} {p.modulation.upper()}, one "
+        f"pulse response of {p.path} ({rate_text(p.data_rate_bps)} {p.modulation.upper()}, one "
         f"unit interval {_ps(p.ui_s)} ps wide, {p.amplitude:g} V): main cursor "
         f"{p.main_cursor:.4g} V at {_ps(p.main_cursor_time_s)} ps, pre-cursor "
         f"{p.pre_cursor:.4g} V, post-cursors {posts} V"
@@ -473,7 +473,7 @@ def build_view_files(
         q = pulse_chart(
             stage / f"{stem}-pulse.png",
             insp,
-            f"{name}: pulse response, {_rate(insp.time.pulse.data_rate_bps)} "
+            f"{name}: pulse response, {rate_text(insp.time.pulse.data_rate_bps)} "
             f"{insp.time.pulse.modulation.upper()}",
         )
         charts.append((q, "Pulse response of one symbol, with its cursors"))
