@@ -170,7 +170,9 @@ def test_own_output_as_measurement_shows_zero_difference(capsys, single):
     assert "itself &lt;as&gt; &amp; measured" in page  # the label, escaped
     imgs = [v for t, k, v in parsed.attrs if t == "img" and k == "src"]
     pngs = [p for p in data["files"] if p.endswith(".png")]
-    assert len(imgs) == len(pngs) == 5  # IL, RL, budget, ILD and the difference chart
+    # IL, RL, budget, ILD, the difference chart, the impedance profile and the step response
+    assert len(imgs) == len(pngs) == 7
+    assert any(p.endswith("-measured-difference.png") for p in pngs)
     assert "Model minus measurement: insertion and return loss" in page
     # the api result is what the command printed
     again = quiet_build(sc, d / "third").to_json()["measured"]

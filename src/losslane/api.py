@@ -26,6 +26,7 @@ from losslane.spec import Where, cli_where, python_where
 
 __all__ = [
     "BuildResult",
+    "InspectResult",
     "LineResult",
     "MaterialsResult",
     "Where",
@@ -39,6 +40,7 @@ __all__ = [
     "extract",
     "fit",
     "demo_scenario_path",
+    "inspect",
     "line",
     "materials",
     "section",
@@ -58,6 +60,7 @@ if TYPE_CHECKING:
     from losslane.measure.extract import LineExtraction
     from losslane.measure.fit import MaterialFit
     from losslane.measure.overlay import MeasuredOverlay
+    from losslane.network.inspection import Inspection
     from losslane.xsection.base import CrossSection, LineValues
 
 
@@ -501,6 +504,7 @@ class BuildResult:
     files: list[Path] = field(default_factory=list)
     overlay: MeasuredOverlay | None = None
     crosstalk: Any = None
+    views: Inspection | None = None  # quality and time-domain views of the written S
 
     @property
     def warnings(self) -> list[str]:
@@ -530,6 +534,9 @@ class BuildResult:
         data["crosstalk"] = None if self.crosstalk is None else self.crosstalk.to_json()
         data["warnings"] = list(self.warnings)
         data["measured"] = None if self.overlay is None else self.overlay.to_json()
+        from losslane.report.timeviews import build_json
+
+        data.update(build_json(self.views))
         return data
 
 
@@ -584,6 +591,7 @@ def build(
         plots,
         overlay=result.overlay,
         crosstalk=result.crosstalk,
+        views=result.views,
     )
     return result
 
@@ -594,6 +602,7 @@ def build_result(scenario, points=None) -> BuildResult:
     sweep evaluates per case. ``points``: the budget's check points if already found."""
     from losslane.budget import evaluate_budget, fit_channel, validate
     from losslane.channel import build_channel
+    from losslane.channel_views import channel_inspection
     from losslane.crosstalk.evaluate import evaluate_crosstalk
     from losslane.measure.overlay import measured_overlay
     from losslane.report.channel import summary_frequencies, summary_rows
@@ -605,8 +614,15 @@ def build_result(scenario, points=None) -> BuildResult:
     fit = fit_channel(channel)
     overlay = measured_overlay(channel, summary_frequencies(channel))
     crosstalk = evaluate_crosstalk(channel)
+    views = channel_inspection(channel)
     return BuildResult(
-        channel, budget, fit, summary_rows(channel), overlay=overlay, crosstalk=crosstalk
+        channel,
+        budget,
+        fit,
+        summary_rows(channel),
+        overlay=overlay,
+        crosstalk=crosstalk,
+        views=views,
     )
 
 
@@ -1148,3 +1164,138 @@ def fit(
 
         write_atomic(lib_path, write)
     return FitResult(ext, result, lib_path, (entry[0], entry[1]), written)
+
+
+# --- inspecting S-parameters -----------------------------------------------------------
+
+
+@dataclass
+class InspectResult:
+    """An inspected S-parameter set: ``inspection`` (its IEEE 370 quality and time-domain
+    views), ``source`` (the file, or the network's name) and the ``files`` written."""
+
+    inspection: Inspection
+    source: str | None
+    files: list[Path] = field(default_factory=list)
+
+    def to_json(self) -> dict:
+        """The `losslane inspect --json` object."""
+        return {
+            "file": self.source,
+            **self.inspection.to_json(),
+            "files": [str(p) for p in self.files],
+        }
+
+
+def _quantity_arg(value, kind: str, key: str) -> float | None:
+    """A keyword given as text with a unit, or as a number in SI units."""
+    import math
+
+    from losslane.units import parse_quantity
+
+    if value is None:
+        return None
+    if isinstance(value, (int, float)) and not isinstance(value, bool):
+        v = float(value)
+        if not math.isfinite(v):
+            raise LossLaneError(f"{key} = {value!r}: not a finite {kind}")
+        return v
+    return parse_quantity(value, kind, key)
+
+
+def _file_references(net, where: Where) -> tuple[float, ...]:
+    """The per-port reference impedances a network carries (real, positive, the same at
+    every frequency), or an error asking for ``z_ref``."""
+    import numpy as np
+
+    z0 = np.asarray(net.z0)
+    if np.any(z0.imag != 0) or np.any(z0.real <= 0) or np.any(z0 != z0[:1]):
+        raise LossLaneError(
+            "the data's reference impedance is not one real, positive value per port at "
+            f"every frequency; give {where.key('z_ref')} (ohm)"
+        )
+    return tuple(float(z) for z in z0[0].real)
+
+
+def inspect(
+    path_or_network,
+    *,
+    order: str = "in-in-out-out",
+    rise_time: str | float | None = None,
+    data_rate: str | float | None = None,
+    modulation: str = "nrz",
+    delay_per_in: str | float | None = None,
+    z_ref: str | float | None = None,
+    out: str | Path | None = None,
+    where: Where | None = None,
+) -> InspectResult:
+    """The IEEE 370 quality and the time-domain views of a Touchstone file (1-, 2- or
+    differential 4-port) or a ``skrf.Network``, judged as it is (nothing repaired):
+
+    ``order`` the 4-port numbering; ``rise_time`` the stimulus' 10-90 % rise time
+    ("30ps" or seconds; default 0.75 / the top frequency); ``data_rate`` ("32Gb/s" or
+    b/s) and ``modulation`` ("nrz", "pam4") for the pulse response (none without a data
+    rate); ``delay_per_in`` ("170ps" or seconds per inch) adds one-way distances to the
+    impedance profiles; ``z_ref`` overrides the file's reference impedance ("50ohm" or
+    ohm); ``out``: a directory for the charts and the report page (none written without).
+    """
+    from losslane.network.inspection import inspect_network
+    from losslane.network.ports import check_order
+    from losslane.network.touchstone import read_touchstone
+    from losslane.signalling import MODULATIONS
+    from losslane.units import INCH
+
+    where = _where(where, "inspect")
+    k = where.key
+    check_order(order, k("order"))
+    if modulation not in MODULATIONS:
+        raise LossLaneError(
+            f"{where.setting('modulation', modulation)} is not known; valid values are "
+            + ", ".join(repr(m) for m in MODULATIONS)
+        )
+    rise = _quantity_arg(rise_time, "time", k("rise_time"))
+    rate = _quantity_arg(data_rate, "data rate", k("data_rate"))
+    per_in = _quantity_arg(delay_per_in, "time", k("delay_per_in"))
+    zr = _quantity_arg(z_ref, "resistance", k("z_ref"))
+    for key, v in (("rise_time", rise), ("data_rate", rate), ("delay_per_in", per_in)):
+        if v is not None and not v > 0:
+            raise LossLaneError(f"{k(key)} = {v!r}: must be > 0")
+    if zr is not None and not zr > 0:
+        raise LossLaneError(f"{k('z_ref')} = {zr!r} ohm: must be > 0 ohm")
+    if isinstance(path_or_network, (str, Path)):
+        net = read_touchstone(path_or_network)
+        source = str(path_or_network)
+        stem_from = Path(path_or_network).stem
+    else:
+        net = path_or_network
+        if not hasattr(net, "s") or not hasattr(net, "f"):
+            raise LossLaneError(
+                f"inspect: {type(net).__name__} is neither a Touchstone file's path nor a "
+                "skrf.Network"
+            )
+        source = getattr(net, "name", None) or None
+        stem_from = source or "network"
+    refs = (zr,) if zr is not None else _file_references(net, where)
+    if rise is not None and rise < 0.5 / float(net.f[-1]) * (1 - 1e-9):
+        raise LossLaneError(
+            f"{k('rise_time')} = {rise_time!r}: the data end at {float(net.f[-1]) / 1e9:g} GHz, "
+            f"so the rise time must be >= {0.5 / float(net.f[-1]) * 1e12:.4g} ps (0.5 / f_max); "
+            f"the default is {0.75 / float(net.f[-1]) * 1e12:.4g} ps"
+        )
+    insp = inspect_network(
+        net.f,
+        net.s,
+        refs[0] if len(refs) == 1 else refs,
+        order,
+        rise_time=rise,
+        data_rate=rate,
+        modulation=modulation,
+        delay_per_m=None if per_in is None else per_in / INCH,
+    )
+    result = InspectResult(insp, source)
+    if out is not None:
+        from losslane.report.channel import prepare_out_dir, slug
+        from losslane.report.inspect import write_inspect
+
+        result.files = write_inspect(insp, source, prepare_out_dir(out), slug(stem_from))
+    return result

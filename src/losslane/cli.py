@@ -811,6 +811,72 @@ def sweep_command(
         raise SystemExit(1)
 
 
+@cli.command("inspect")
+@click.argument("file", type=click.Path(dir_okay=False))
+@click.option(
+    "--order",
+    type=click.Choice(["in-in-out-out", "in-out-in-out"]),
+    default="in-in-out-out",
+    show_default=True,
+    help="4-port numbering: legs run 1->3 and 2->4, or 1->2 and 3->4",
+)
+@click.option(
+    "--rise-time",
+    metavar="TIME",
+    help="10-90 % rise time of the stimulus edge, e.g. 30ps (default 0.75 / top frequency)",
+)
+@click.option("--data-rate", metavar="RATE", help="bit rate of the pulse response, e.g. 32Gb/s")
+@click.option(
+    "--modulation",
+    type=click.Choice(["nrz", "pam4"]),
+    default="nrz",
+    show_default=True,
+    help="symbols of the pulse response (pam4: one symbol carries 2 bits)",
+)
+@click.option(
+    "--delay-per-in",
+    metavar="TIME",
+    help="one-way delay per inch, e.g. 170ps: adds distances to the impedance profiles",
+)
+@click.option("--z-ref", metavar="OHMS", help="reference impedance (default: the file's)")
+@click.option("--out", "out", metavar="DIR", help="write the charts and a report page into DIR")
+@_JSON_OPTION
+def inspect_command(
+    file: str,
+    order: str,
+    rise_time: str | None,
+    data_rate: str | None,
+    modulation: str,
+    delay_per_in: str | None,
+    z_ref: str | None,
+    out: str | None,
+    as_json: bool,
+) -> None:
+    """Judge a Touchstone file and show it in time.
+
+    Prints the IEEE 370 quality metrics (passivity, reciprocity, causality, with levels
+    and where passivity fails), the impedance profile at each port (and of the pair, for
+    a 4-port) with its peaks and dips, the step responses with delay, rise time and
+    intra-pair skew, and with --data-rate the pulse response and its cursors. The data
+    are judged as they are: nothing is repaired.
+    """
+    from losslane.report.inspect import inspect_text
+
+    with _warnings_to_stderr():
+        res = api.inspect(
+            file,
+            order=order,
+            rise_time=rise_time,
+            data_rate=data_rate,
+            modulation=modulation,
+            delay_per_in=delay_per_in,
+            z_ref=z_ref,
+            out=out,
+            where=api.cli_where("losslane inspect"),
+        )
+        _echo(res.to_json(), as_json, lambda _: inspect_text(res))
+
+
 def main(argv: list[str] | None = None) -> int:
     """Console entry point: bad input is one line on stderr and exit code 2."""
     try:

@@ -25,6 +25,7 @@ from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
 from losslane.spec import check_keys, quantity, suggest, text
+from losslane.timesettings import TimeSettings, parse_time
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
 
@@ -41,6 +42,7 @@ TOP_KEYS = (
     "budget",
     "compare",
     "crosstalk",
+    "time",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 MAX_POINTS = 200_001
@@ -139,6 +141,7 @@ class Scenario:
     source_text: str = ""
     compare: Comparison | None = None
     crosstalk: CrosstalkSettings | None = None
+    time: TimeSettings = field(default_factory=TimeSettings)  # the [time] section
 
     @property
     def conductors(self) -> int:
@@ -274,6 +277,7 @@ def scenario_from_data(
         source_text=source,
         compare=compare,
         crosstalk=crosstalk,
+        time=parse_time(data.get("time", {}), sweep.stop),
     )
     _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
     return sc

@@ -22,6 +22,7 @@ from losslane.report.budget import budget_text, write_budget_files
 from losslane.report.charts import Curve, Marker, db_plot, to_db
 from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
+from losslane.report.timeviews import build_summary_lines, build_view_files
 
 
 def slug(name: str) -> str:
@@ -190,13 +191,16 @@ def write_build(
     plots: bool = True,
     overlay=None,
     crosstalk=None,
+    views=None,
 ) -> list[Path]:
     """Write the build's files into ``out_dir`` (checked with ``prepare_out_dir``): the
     Touchstone file, the channel charts, the budget's files and the report page; returns
     their final paths. ``budget``/``fit``: a ChannelBudget/LossFit or None; ``summary``:
     the rows of ``summary_rows``; ``overlay``: a measurement to show beside the model
     (``measure.overlay.MeasuredOverlay``) or None; ``crosstalk``: a CrosstalkResult of a
-    channel on group lines (its victim's own file and charts are written too)."""
+    channel on group lines (its victim's own file and charts are written too); ``views``
+    the quality and time-domain views of the written S-parameters (an Inspection, charted
+    and on the page; None: left out)."""
     from losslane.network.touchstone import write_touchstone
     from losslane.report.crosstalk import port_lines, write_crosstalk_files
     from losslane.report.overlay import write_overlay_files
@@ -234,12 +238,24 @@ def write_build(
         files += write_overlay_files(
             overlay, result.scenario.name, stage, stem, plots, check_markers(result)
         )
-        charts = charts + xt_charts
+        view_files, view_charts = build_view_files(views, stage, stem, result.scenario.name, plots)
+        files += view_files
+        charts = charts + xt_charts + view_charts
         page = stage / f"{stem}-report.html"
         names = sorted({p.name for p in files} | {page.name})
         page.write_text(
             report_html(
-                result, budget, fit, stage, stem, charts, names, summary, overlay, crosstalk
+                result,
+                budget,
+                fit,
+                stage,
+                stem,
+                charts,
+                names,
+                summary,
+                overlay,
+                crosstalk,
+                views,
             ),
             encoding="utf-8",
         )
@@ -320,11 +336,13 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
 
 def build_text(build) -> str:
     """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
-    budget and the fit, the measurement beside the model, the crosstalk, the files written."""
+    budget and the fit, the time-domain views and quality, the measurement beside the
+    model, the crosstalk, the files written."""
     from losslane.report.crosstalk import crosstalk_text
     from losslane.report.overlay import overlay_text
 
     sections = [
+        "\n".join(build_summary_lines(getattr(build, "views", None))),
         budget_text(build.budget, build.fit),
         overlay_text(getattr(build, "overlay", None)),
         crosstalk_text(getattr(build, "crosstalk", None)),

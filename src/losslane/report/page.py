@@ -18,6 +18,7 @@ from pathlib import Path
 from losslane import __version__
 from losslane.report.budget import budget_rows, point_title
 from losslane.report.text import CAUTION, verdict
+from losslane.report.timeviews import build_section_html
 
 STYLE = """
 body { font-family: sans-serif; margin: 1.5em auto; max-width: 70em; color: #222;
@@ -219,7 +220,7 @@ def render_report(
         "<table><tr><th>frequency (GHz)</th><th>insertion loss (dB)</th>"
         "<th>return loss in (dB)</th><th>return loss out (dB)</th></tr>" + srows + "</table>"
     )
-    parts += [sec for sec in sections if sec]  # e.g. the measurement beside the model
+    parts += [sec for sec in sections if sec]  # e.g. the time-domain views, the measurement
     parts.append('<h2 id="charts">Charts</h2>')
     if figures:
         for fig in figures:
@@ -270,10 +271,12 @@ def report_html(
     summary: Sequence[dict],
     overlay=None,
     crosstalk=None,
+    views=None,
 ) -> str:
     """The self-contained page: the channel plots already staged (insertion and return
     loss, with a measurement and its difference chart when ``overlay`` is given) and the
-    budget charts, embedded; ``crosstalk`` a CrosstalkResult or None."""
+    budget charts, embedded; ``crosstalk`` a CrosstalkResult or None; with ``views`` (an
+    Inspection) its section."""
     from losslane.report.crosstalk import crosstalk_html
     from losslane.report.overlay import overlay_html
 
@@ -314,5 +317,5 @@ def report_html(
         scenario_text=sc.source_text,
         files=names,
         mode=" (differential mode)" if result.differential else "",
-        sections=[overlay_html(overlay), crosstalk_html(crosstalk)],
+        sections=[build_section_html(views), overlay_html(overlay), crosstalk_html(crosstalk)],
     )
