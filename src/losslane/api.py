@@ -502,6 +502,7 @@ class BuildResult:
     def to_json(self) -> dict:
         """The `losslane build --json` object."""
         from losslane.report.channel import summary_json
+        from losslane.report.models import lines_json, skews_json, vias_json
 
         data = summary_json(self.channel, self.summary, self.files)
         budget = self.budget
@@ -509,6 +510,9 @@ class BuildResult:
         data["budget"] = None if budget is None else budget.to_json()
         data["fit"] = None if self.fit is None else self.fit.to_json(nyq)
         data["warnings"] = list(self.warnings)
+        data["lines"] = lines_json(self.channel)
+        data["vias"] = vias_json(self.channel)
+        data["skews"] = skews_json(self.channel)
         return data
 
 

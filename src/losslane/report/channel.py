@@ -20,6 +20,7 @@ from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
 from losslane.report.budget import budget_text, write_budget_files
 from losslane.report.charts import Curve, Marker, db_plot, to_db
+from losslane.report.models import models_text
 from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
 
@@ -290,5 +291,8 @@ def build_text(build) -> str:
     """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
     budget and the fit, the files written."""
     return summary_text(
-        build.channel, build.summary, build.files, sections=[budget_text(build.budget, build.fit)]
+        build.channel,
+        build.summary,
+        build.files,
+        sections=[models_text(build.channel), budget_text(build.budget, build.fit)],
     )
