@@ -25,9 +25,8 @@ from __future__ import annotations
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.xsection.rlgc import C0, ETA0
+from losslane.xsection.rlgc import C0, EPS0, ETA0
 
-EPS0 = 1.0 / (4e-7 * np.pi * C0**2)
 #: the antipad shapes of a pair
 SHAPES = ("oblong", "round")
 

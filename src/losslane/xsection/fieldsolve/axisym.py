@@ -28,9 +28,8 @@ import numpy as np
 
 from losslane.errors import LossLaneError
 from losslane.xsection.fieldsolve.mesh import grade
-from losslane.xsection.rlgc import C0
+from losslane.xsection.rlgc import EPS0
 
-EPS0 = 1.0 / (4e-7 * np.pi * C0**2)
 #: mesh settings: (first element size as a share of the local feature, growth per unit
 #: distance)
 GRADING = {"coarse": (0.2, 0.35), "normal": (0.08, 0.2), "fine": (0.03, 0.1)}
