@@ -204,6 +204,15 @@ def test_an_oblong_pair_is_passive_and_reciprocal():
     np.testing.assert_allclose(abcd_to_s(via.scaled_abcd(f), 50.0), s, atol=1e-10)
 
 
+def test_an_upward_via_is_the_same_via_turned_around():
+    body = '{ from = "L1", to = "L3", drill = "8 mil", antipad = "26 mil", pad = "18 mil"'
+    down = build_channel(_scenario(body + " }")).blocks[1]
+    up = build_channel(_scenario(body + ", upward = true }")).blocks[1]
+    f = np.linspace(0, 40e9, 81)
+    # reciprocity: turning a 2-port around swaps its ports (Pozar)
+    np.testing.assert_allclose(up.s(f), down.s(f)[:, ::-1, ::-1], rtol=0, atol=1e-13)
+
+
 # ---------------------------------------------------------------------- bad vias
 
 BAD = {

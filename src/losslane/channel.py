@@ -29,17 +29,22 @@ from losslane.scenario import Scenario, Segment
 
 
 def make_block(
-    seg: Segment, n: int, default_order: str, lines: dict[str, UniformLine] | None = None
+    seg: Segment,
+    n: int,
+    default_order: str,
+    lines: dict[str, UniformLine] | None = None,
+    memo: dict | None = None,
 ) -> Block:
     """The network block of one scenario segment, for an n-conductor channel; a line
-    segment takes its section's constants from ``lines`` (by [lines.*] name) when given."""
+    segment takes its section's constants from ``lines`` (by [lines.*] name) when given;
+    ``memo`` (a dict kept for one build) lets identical vias share their field solutions."""
     v = seg.values
     if seg.type == "line":
         line = lines[seg.line] if lines is not None else seg.section
         return LineSegment(line, v["length"], name=seg.name, section=seg.section)
     if seg.type == "via":
         if seg.drill is not None:
-            return DrilledVia(seg.drill, n=n, name=seg.name)
+            return DrilledVia(seg.drill, n=n, name=seg.name, memo=memo)
         return Via(v["barrel"], v["stub"], v["impedance"], seg.dielectric, n=n, name=seg.name)
     if seg.type == "capacitor":
         return SeriesCapacitor(v["value"], v["esl"], v["esr"], n=n, name=seg.name)
@@ -146,7 +151,10 @@ def build_channel(scenario: Scenario) -> ChannelResult:
     used = dict.fromkeys(seg.line for seg in scenario.channel if seg.type == "line")
     lines = {name: UniformLine.from_rlgc(scenario.lines[name].rlgc(f)) for name in used}
     f_skew = skew_frequency(scenario)
-    blocks = [skewed(make_block(seg, n, order, lines), seg, f_skew) for seg in scenario.channel]
+    memo: dict = {}  # this build's via field solutions, shared by identical vias
+    blocks = [
+        skewed(make_block(seg, n, order, lines, memo), seg, f_skew) for seg in scenario.channel
+    ]
     seg_loss = np.empty((len(blocks), f.size))
     cum_loss = np.empty((len(blocks), f.size))
     seg_conv = np.empty((len(blocks), f.size)) if n == 2 else None

@@ -5,7 +5,8 @@ Keys of ``via = { ... }`` (the drill form; the explicit form ``barrel``, ``stub`
 ``impedance``, ``dielectric`` is read by the scenario as before):
 
 * ``from``, ``to``: the signal layers where the traces join the via (``from`` above
-  ``to``: the stackup lists layers top to bottom);
+  ``to``: the stackup lists layers top to bottom); a signal that travels up the via
+  (entering at ``to``, leaving at ``from``) adds ``upward = true``;
 * ``drill``: the finished hole's diameter (the barrel's outer copper surface);
   ``antipad``: the diameter of the clearance opening in every plane; ``pad``: the
   diameter of the functional pads on ``from`` and ``to`` (optional: without it, no pad
@@ -55,6 +56,7 @@ DRILL_KEYS = (
     "antipad_shape",
     "skew",
     "stackup",
+    "upward",
 )
 SHAPES = ("oblong", "round")
 
@@ -91,6 +93,7 @@ class DrillVia:
     barrel: tuple[Piece, ...]
     stub_above: tuple[Piece, ...]
     stub_below: tuple[Piece, ...]
+    upward: bool = False
 
     @property
     def barrel_length(self) -> float:
@@ -142,8 +145,9 @@ def drill_via(
         raise LossLaneError(
             f"{where}: from = {entry.name!r} "
             + ("is the same layer as" if same else "lies below")
-            + f" to = {exit_.name!r} in {st.label}; a via runs from the upper layer down to "
-            "the lower one (the stackup lists layers top to bottom)"
+            + f" to = {exit_.name!r} in {st.label}; a via is written from the upper layer to "
+            "the lower one (the stackup lists layers top to bottom); for a signal that travels "
+            "up, add upward = true"
         )
     drill = _length(where, body, "drill")
     antipad = _length(where, body, "antipad")
@@ -176,6 +180,12 @@ def drill_via(
             )
     elif "antipad_shape" in body:
         raise LossLaneError(f"{where}.antipad_shape: only a via pair (with pitch) has a shape")
+    upward = body.get("upward", False)
+    if not isinstance(upward, bool):
+        raise LossLaneError(
+            f"{where}.upward = {upward!r}: expected true or false (true: the signal enters at "
+            "'to' and leaves at 'from')"
+        )
     blind = body.get("blind", False)
     if not isinstance(blind, bool):
         raise LossLaneError(
@@ -203,6 +213,7 @@ def drill_via(
         pieces(st, c_in, c_out),
         pieces(st, hole_top, c_in)[::-1] if hole_top < c_in else (),
         pieces(st, c_out, hole_bottom) if hole_bottom > c_out else (),
+        upward,
     )
 
 

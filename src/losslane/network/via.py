@@ -159,7 +159,8 @@ def _open_stub(f: np.ndarray, c_air: float, pieces) -> ScaledABCD:
 class DrilledVia(Block):
     """A via from its drill geometry on a stackup (``via_geometry.DrillVia``).
 
-    Each leg's modes travel, in order: the stub above the entry (an open-ended stub in
+    Each leg's modes travel, in order (reversed for an ``upward`` via, whose signal enters
+    at the lower layer): the stub above the entry (an open-ended stub in
     shunt, if the hole continues above the entry layer), the entry pad's excess
     capacitance (shunt), the barrel pieces from the entry centre to the exit centre (TEM
     lines, each in its own dielectric), the exit pad's capacitance, the stub below the
@@ -173,6 +174,8 @@ class DrilledVia(Block):
     tens of GHz at board scale, common practice). The pad capacitance is the excess
     capacitance of an axisymmetric electrostatic solution around the pad between the
     nearest planes (``xsection.fieldsolve.axisym``; pads of a pair taken one at a time,
+    ``memo``: a dict shared by the vias of one build, so identical openings and pads are
+    solved once;
     their mutual capacitance neglected; ``accuracy`` "coarse" by default, within 0.6 % of
     the "fine" solution on the example boards, a fraction of a femtofarad). Copper loss in
     the barrel is neglected.
@@ -186,6 +189,7 @@ class DrilledVia(Block):
         n: int = 1,
         name: str = "via",
         accuracy: str = "coarse",
+        memo: dict | None = None,
     ) -> None:
         from losslane.xsection.round import mode_capacitances, opening_capacitance
 
@@ -195,19 +199,25 @@ class DrilledVia(Block):
         if (self.n == 2) != (g.pitch is not None):
             need = "a pair needs pitch (centre to centre)" if self.n == 2 else "pitch is for pairs"
             raise LossLaneError(f"via {self.name!r}: {need}")
-        c0 = opening_capacitance(g.drill, g.antipad, g.pitch, g.shape)
-        self.modes = mode_capacitances(c0)
+        memo = {} if memo is None else memo
+        key = ("opening", g.drill, g.antipad, g.pitch, g.shape)
+        if key not in memo:
+            memo[key] = mode_capacitances(opening_capacitance(g.drill, g.antipad, g.pitch, g.shape))
+        self.modes = memo[key]
         self.length = g.barrel_length
-        self.pad_capacitance = self._pads(accuracy) if g.pad is not None else (0.0, 0.0)
+        self.pad_capacitance = self._pads(accuracy, memo) if g.pad is not None else (0.0, 0.0)
 
-    def _pads(self, accuracy: str) -> tuple[float, float]:
+    def _pads(self, accuracy: str, memo: dict) -> tuple[float, float]:
         from losslane.via_geometry import pad_window
         from losslane.xsection.fieldsolve.axisym import pad_capacitance
 
         out = []
         for layer in (self.geometry.entry, self.geometry.exit):
             window, band = pad_window(self.geometry, layer)
-            out.append(pad_capacitance(window, band, accuracy))
+            key = ("pad", window, band, accuracy)
+            if key not in memo:
+                memo[key] = pad_capacitance(window, band, accuracy)
+            out.append(memo[key])
         return out[0], out[1]
 
     def impedances(self, f_ref: float = 1e9) -> dict[str, float]:
@@ -233,6 +243,9 @@ class DrilledVia(Block):
         out = parts[0]
         for p in parts[1:]:
             out = out @ p
+        if g.upward:
+            rev = out.reverse  # the flip of a reciprocal chain: exact, no arithmetic
+            return ScaledABCD.reciprocal_stack(rev.stack, rev.log_scale)
         return out
 
     def stub_notch(self) -> float:

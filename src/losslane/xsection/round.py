@@ -128,7 +128,7 @@ def opening_capacitance(
     pitch: float | None = None,
     shape: str = "oblong",
     offset: float = 0.0,
-    panels: int = 160,
+    panels: int = 64,
 ) -> np.ndarray:
     """C_0 (n, n) per metre in vacuum of one barrel (``pitch`` None; off centre by
     ``offset``) or a pair of barrels ``pitch`` apart in their antipad: ``shape`` "oblong"
