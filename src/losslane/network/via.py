@@ -248,10 +248,10 @@ class DrilledVia(Block):
             return ScaledABCD.reciprocal_stack(rev.stack, rev.log_scale)
         return out
 
-    def stub_notch(self) -> float:
-        """The lower stub's quarter-wave frequency c / (4 L sqrt(Dk)) with the stub's
-        length-weighted Dk (inf: no stub)."""
-        stub = self.geometry.stub_below
+    def stub_notch(self, which: str = "below") -> float:
+        """The quarter-wave frequency c / (4 L sqrt(Dk)) of the stub ``which`` ("below" the
+        exit or "above" the entry), with its length-weighted Dk (inf: no such stub)."""
+        stub = self.geometry.stub_below if which == "below" else self.geometry.stub_above
         if not stub:
             return np.inf
         length = sum(p.length for p in stub)

@@ -27,7 +27,8 @@ def _finite(x: float) -> float | None:
 
 def vias_json(result) -> list[dict]:
     """One object per via drawn from its drill geometry (lengths in m, impedances in ohm
-    at 1 GHz, capacitances in F, the lower stub's quarter-wave frequency in Hz)."""
+    at 1 GHz, capacitances in F, each stub's quarter-wave frequency in Hz, None without
+    that stub)."""
     out = []
     for blk in _unwrapped(result.blocks):
         g = getattr(blk, "geometry", None)
@@ -49,7 +50,8 @@ def vias_json(result) -> list[dict]:
             "pitch_m": g.pitch,
             "impedance_ohm": z.get("single"),
             "pad_capacitance_f": list(blk.pad_capacitance) if g.pad is not None else None,
-            "stub_notch_hz": _finite(blk.stub_notch()),
+            "stub_notch_hz": _finite(blk.stub_notch("below")),
+            "stub_above_notch_hz": _finite(blk.stub_notch("above")),
         }
         if "odd" in z:
             item.update(
@@ -112,8 +114,13 @@ def models_text(result) -> str:
         if v["pad_capacitance_f"] is not None:
             a, b = v["pad_capacitance_f"]
             parts.append(f"pads {a * 1e15:.1f} / {b * 1e15:.1f} fF")
-        if v["stub_notch_hz"] is not None:
-            parts.append(f"stub notch {v['stub_notch_hz'] / 1e9:.3g} GHz")
+        notches = [
+            f"{v[k] / 1e9:.3g} GHz ({side})"
+            for k, side in (("stub_above_notch_hz", "above"), ("stub_notch_hz", "below"))
+            if v[k] is not None
+        ]
+        if notches:
+            parts.append("stub notch " + ", ".join(notches))
         out.append(", ".join(parts))
     for s in skews:
         t = "" if s["skew_s"] is None else f" ({s['skew_s'] * 1e12:.4g} ps)"
