@@ -33,7 +33,7 @@ def test_barrel_in_a_closed_coaxial_cylinder(accuracy, tol):
     a, b, h, er = 4 * MIL, 13 * MIL, 20 * MIL, 3.5
     via = AxiVia((AxiBand(h, er, ground_from=b),), a, 0.0, h, 2 * b)
     exact = 2 * np.pi * EPS0 * er * h / np.log(b / a)
-    assert capacitance(via, accuracy) == pytest.approx(exact, rel=tol)
+    assert capacitance(via, accuracy) == pytest.approx(exact, rel=tol, abs=0)
 
 
 def _overlap(h: float, accuracy: str = "normal") -> tuple[float, float]:
@@ -65,9 +65,15 @@ def test_a_pad_over_the_planes_tends_to_the_parallel_plate_capacitance():
 
 
 def test_pad_capacitance_settles_with_the_mesh():
+    # measured on this geometry: coarse 1.7 %, normal 0.26 % above the fine solution
     coarse, _ = _overlap(2 * MIL, "coarse")
+    normal, _ = _overlap(2 * MIL, "normal")
     fine, _ = _overlap(2 * MIL, "fine")
-    assert coarse == pytest.approx(fine, rel=6e-3)
+    assert coarse == pytest.approx(fine, rel=2.5e-2, abs=0)
+    assert normal == pytest.approx(fine, rel=5e-3, abs=0)
+    # each capacitance is an upper bound (the energy minimum over a subspace); the excess
+    # converges from above here too
+    assert coarse > normal > fine
 
 
 def test_inputs_are_checked():

@@ -40,10 +40,10 @@ K = ETA0 / (2 * np.pi)  # 59.96 ohm
 def test_coax_formula_and_its_rounded_textbook_form():
     d, big, dk = 8 * MIL, 26 * MIL, 3.6
     z = coax_impedance(d, big, dk)
-    assert z == pytest.approx(K / np.sqrt(dk) * np.log(big / d), rel=1e-15)
+    assert z == pytest.approx(K / np.sqrt(dk) * np.log(big / d), rel=1e-15, abs=0)
     # the textbook's 60 ohm is eta0 / 2 pi rounded up by 0.07 %
-    assert z == pytest.approx(60 / np.sqrt(dk) * np.log(big / d), rel=8e-4)
-    assert mode_impedance(coax_capacitance(d, big), dk) == pytest.approx(z, rel=1e-13)
+    assert z == pytest.approx(60 / np.sqrt(dk) * np.log(big / d), rel=8e-4, abs=0)
+    assert mode_impedance(coax_capacitance(d, big), dk) == pytest.approx(z, rel=1e-13, abs=0)
 
 
 @pytest.mark.parametrize("panels", [80, 160])
@@ -53,7 +53,7 @@ def test_boundary_elements_reproduce_the_coaxial_line(panels):
         [circle(0, 0, d / 2, panels), circle(0, 0, big / 2, 2 * panels)], [False, True]
     )
     # within 0.5 % of the exact coaxial capacitance (measured: 8e-5 at 80, 2e-5 at 160)
-    assert c[0, 0] == pytest.approx(coax_capacitance(d, big), rel=1e-4)
+    assert c[0, 0] == pytest.approx(coax_capacitance(d, big), rel=1e-4, abs=0)
 
 
 @pytest.mark.parametrize("offset_mil", [0.5, 2.0, 5.0])
@@ -63,7 +63,7 @@ def test_an_eccentric_barrel_matches_the_exact_solution(offset_mil, panels, tol)
     d, big, c = 8 * MIL, 26 * MIL, offset_mil * MIL
     z = mode_impedance(opening_capacitance(d, big, offset=c, panels=panels)[0, 0], 1.0)
     exact = K * np.arccosh((big**2 + d**2 - 4 * c**2) / (2 * big * d))
-    assert z == pytest.approx(exact, rel=tol)
+    assert z == pytest.approx(exact, rel=tol, abs=0)
 
 
 def test_a_thin_wire_pair_in_a_round_shield_matches_the_image_solution():
@@ -79,15 +79,15 @@ def test_a_thin_wire_pair_in_a_round_shield_matches_the_image_solution():
     odd = K * np.log((2 * p / d) * (big**2 - p**2) / (big**2 + p**2))
     even = K * np.log((r**4 - s**4) / (r**2 * (d / 2) * p))
     # exact for d/p -> 0; at d/p = 0.01 the wires' own proximity is below 1e-4
-    assert z_odd == pytest.approx(odd, rel=5e-4)
-    assert z_even == pytest.approx(even, rel=5e-4)
+    assert z_odd == pytest.approx(odd, rel=5e-4, abs=0)
+    assert z_even == pytest.approx(even, rel=5e-4, abs=0)
 
 
 def test_pair_layouts():
     d, big, p = 8 * MIL, 26 * MIL, 30 * MIL
     # round antipads one per barrel: two coaxial lines, no coupling
     m = mode_capacitances(opening_capacitance(d, big, p, "round"))
-    assert m["odd"] == m["even"] == pytest.approx(coax_capacitance(d, big), rel=1e-15)
+    assert m["odd"] == m["even"] == pytest.approx(coax_capacitance(d, big), rel=1e-15, abs=0)
     # one oblong opening (wider than each barrel's round antipad): each barrel sees its
     # ground farther away than in a coaxial line, and the odd mode, which also couples
     # barrel to barrel, has more capacitance than the even mode

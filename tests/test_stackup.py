@@ -78,30 +78,32 @@ def _s(lines: str, channel: str) -> np.ndarray:
 def test_positions_are_the_sum_of_the_layers_above():
     st = _stackup()
     # face-to-face arithmetic: L3's top face lies under L1, pp1, L2 and core1
-    assert st.depth_top("L3") == pytest.approx((1.6 + 3.5 + 1.2 + 5) * MIL, rel=1e-15)
-    assert st.depth_centre("L3") == pytest.approx((1.6 + 3.5 + 1.2 + 5 + 0.3) * MIL, rel=1e-15)
+    assert st.depth_top("L3") == pytest.approx((1.6 + 3.5 + 1.2 + 5) * MIL, rel=1e-15, abs=0)
+    assert st.depth_centre("L3") == pytest.approx(
+        (1.6 + 3.5 + 1.2 + 5 + 0.3) * MIL, rel=1e-15, abs=0
+    )
     # 1 oz copper = 34.8 um (common practice)
-    assert st.layer("L4", "layer").thickness == pytest.approx(34.8e-6, rel=1e-15)
+    assert st.layer("L4", "layer").thickness == pytest.approx(34.8e-6, rel=1e-15, abs=0)
     total = (2 * 1.6 + 3 * 1.2 + 4 * 0.6 + 2 * 3.5 + 6 + 8 + 5 * 5) * MIL + 34.8e-6
-    assert st.thickness == pytest.approx(total, rel=1e-14)
+    assert st.thickness == pytest.approx(total, rel=1e-14, abs=0)
 
 
 def test_placement_finds_the_nearest_planes_and_the_layers_between():
     st = _stackup()
     top = st.place("L1", "layer")
     assert top.outer == "top" and top.plane_below.name == "L2" and top.plane_above is None
-    assert top.distance_below == pytest.approx(3.5 * MIL)
+    assert top.distance_below == pytest.approx(3.5 * MIL, rel=1e-12, abs=0)
     bottom = st.place("L10", "layer")
     assert bottom.outer == "bottom" and bottom.plane_above.name == "L9"
-    assert bottom.distance_above == pytest.approx(3.5 * MIL)
+    assert bottom.distance_above == pytest.approx(3.5 * MIL, rel=1e-12, abs=0)
     inner = st.place("L3", "layer")
     assert (inner.plane_above.name, inner.plane_below.name) == ("L2", "L4")
-    assert inner.distance_above == pytest.approx(5 * MIL)
-    assert inner.distance_below == pytest.approx(6 * MIL)
+    assert inner.distance_above == pytest.approx(5 * MIL, rel=1e-12, abs=0)
+    assert inner.distance_below == pytest.approx(6 * MIL, rel=1e-12, abs=0)
     # L5 reaches its lower plane L7 through pp3, the copper of L6 and core3
     dual = st.place("L5", "layer")
     assert [ly.name for ly in dual.below] == ["pp3", "L6", "core3"]
-    assert dual.distance_below == pytest.approx((8 + 0.6 + 5) * MIL)
+    assert dual.distance_below == pytest.approx((8 + 0.6 + 5) * MIL, rel=1e-12, abs=0)
 
 
 # ----------------------------------------------- lines on layers = the explicit lines
@@ -261,8 +263,8 @@ layers = [
         + '[[channel]]\nline = "a"\nlength = "1 in"\n[[channel]]\nline = "b"\nlength = "1 in"\n'
     )
     sc = parse_scenario(text, base=tmp_path)
-    assert sc.lines["a"].height == pytest.approx(4 * MIL)
-    assert sc.lines["b"].below == pytest.approx(5 * MIL)
+    assert sc.lines["a"].height == pytest.approx(4 * MIL, rel=1e-12, abs=0)
+    assert sc.lines["b"].below == pytest.approx(5 * MIL, rel=1e-12, abs=0)
     assert sc.line_models["b"].stackup == "host"
     # without [stackup] and with two named boards, a line must name one
     two = BOARD.replace("[stackup]", "[stackups.a]") + BOARD.replace("[stackup]", "[stackups.b]")
