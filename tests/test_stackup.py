@@ -410,3 +410,24 @@ def test_cli_backdrill_above_the_exit_layer(tmp_path, capsys):
         'backdrill = "L4" }\n',
         ["backdrill = 'L4'", "above the exit layer 'L5'"],
     )
+
+
+def test_fill_below_embeds_the_trace_in_the_lower_sheet():
+    # L3 between core1 (Dk 3.6, above) and pp2 (Dk 3.9, below): with fill = "below" the
+    # trace's copper thickness sits in pp2, so more of its field is in the higher Dk and
+    # its impedance is lower (a larger capacitance per length, TEM: Z = sqrt(L/C))
+    fill_below = MIXED.replace(
+        '{ name = "L3", conductor = "signal", thickness = "0.6 mil", foil = "very-low-profile" }',
+        '{ name = "L3", conductor = "signal", thickness = "0.6 mil", fill = "below" }',
+    )
+    assert fill_below != MIXED
+    line = '[lines.x]\nkind = "stripline"\nlayer = "L3"\nwidth = "5 mil"\n'
+    chan = '[[channel]]\nline = "x"\nlength = "1 in"\n'
+    above = parse_scenario(HEAD + MIXED + line + chan).lines["x"]
+    below = parse_scenario(HEAD + fill_below + line + chan).lines["x"]
+    lo = below.geometry.layers
+    assert [ly.name for ly in lo] == ["pp2", "core1"]
+    assert lo[0].thickness == pytest.approx(6.6 * MIL, rel=1e-12, abs=0)  # 6 mil + the copper
+    assert below.geometry.signals[0].y == pytest.approx(6 * MIL, rel=1e-12, abs=0)
+    f = np.array([1e9])
+    assert below.line_values(f).main.z0[0] < above.line_values(f).main.z0[0]
