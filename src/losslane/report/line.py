@@ -106,6 +106,8 @@ def line_json(values: LineValues, solver_report: dict | None = None) -> dict:
     if solver_report is not None:
         out["solver"] = "field"
         out["field_solver"] = solver_report
+    else:
+        out["solver"] = "closed-form"
     return out
 
 

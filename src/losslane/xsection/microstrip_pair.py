@@ -53,6 +53,7 @@ from losslane.xsection.base import (
     strip_loss_modelled,
 )
 from losslane.xsection.microstrip import (
+    Microstrip,
     dispersion_terms,
     eps_eff_dispersive,
     eps_eff_thin,
@@ -357,6 +358,8 @@ class MicrostripPair(CrossSection):
         "spacing": (("height",), 0.01, 100.0),
     }
     outer_layer: ClassVar[bool] = True
+    #: the model of one leg alone (a skewed leg's extra length)
+    leg_model: ClassVar[type[CrossSection]] = Microstrip
 
     def mode_arrays(
         self,

@@ -48,7 +48,7 @@ from losslane.xsection.base import (
 )
 from losslane.xsection.elliptic import k_ratio
 from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode
-from losslane.xsection.stripline import centred_z_air, cohn_z_air, offset
+from losslane.xsection.stripline import Stripline, centred_z_air, cohn_z_air, offset
 from losslane.xsection.validity import Limit, Quantities
 
 if TYPE_CHECKING:
@@ -193,6 +193,8 @@ class StriplinePair(CrossSection):
         "spacing": (("below", "above"), 0.01, 10.0),
     }
     outer_layer: ClassVar[bool] = False
+    #: the model of one leg alone (a skewed leg's extra length)
+    leg_model: ClassVar[type[CrossSection]] = Stripline
 
     def mode_arrays(
         self,
