@@ -122,7 +122,17 @@ def test_page_is_self_contained(built) -> None:
     p = parse_page(page)
     imgs = [v for t, k, v in p.attrs if t == "img" and k == "src"]
     pngs = [f for f in files if f.suffix == ".png"]
-    assert len(imgs) == len(pngs) == 4  # IL, RL, budget chart, ILD: each one embedded
+    # IL, RL, a 2-port's phase/delay, VSWR and Smith charts, budget chart, ILD: each embedded
+    assert len(imgs) == len(pngs) == 7
+    assert sorted(f.name[len("report-lane-co-") :] for f in pngs) == [
+        "budget.png",
+        "ild.png",
+        "insertion-loss.png",
+        "phase-delay.png",
+        "return-loss.png",
+        "smith.png",
+        "vswr.png",
+    ]
     embedded = set()
     for src in imgs:
         assert src.startswith("data:image/png;base64,")

@@ -17,11 +17,13 @@ from typing import Any
 
 import numpy as np
 
+from losslane.bandspec import Band, Mask, parse_bands, parse_masks, parse_min_return_loss
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.library import Library, dielectric_from_spec, foil_from_spec, load_library
 from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
+from losslane.plotspec import PlotOptions, parse_plots
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
 from losslane.spec import check_keys, quantity, suggest, text
 from losslane.xsection.base import CrossSection
@@ -38,6 +40,7 @@ TOP_KEYS = (
     "lines",
     "channel",
     "budget",
+    "plots",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 MAX_POINTS = 200_001
@@ -96,6 +99,11 @@ class Budget:
     checks: tuple[Check, ...]
     fit_start: float | None = None
     fit_stop: float | None = None
+    # bands and limit masks (losslane.bandspec); min_return_loss holds over a default band
+    bands: tuple[Band, ...] = ()
+    masks: tuple[Mask, ...] = ()
+    min_return_loss: float | None = None
+    fit: bool = True  # False: no fitted insertion loss ([budget] fit = false)
 
     @property
     def baud(self) -> float | None:
@@ -122,6 +130,7 @@ class Scenario:
     dielectrics: dict[str, Dielectric]
     foils: dict[str, Roughness]
     source_text: str = ""
+    plots: PlotOptions = field(default_factory=PlotOptions)
 
     @property
     def conductors(self) -> int:
@@ -236,6 +245,7 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
         dielectrics=dielectrics,
         foils=foils,
         source_text=source,
+        plots=parse_plots(data["plots"]) if "plots" in data else PlotOptions(),
     )
     _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
     return sc
@@ -457,7 +467,10 @@ def _budget(spec: object) -> Budget:
     if not isinstance(spec, Mapping):
         raise LossLaneError(f"{where}: expected a table")
     check_keys(
-        where, spec, ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop")
+        where,
+        spec,
+        ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop")
+        + ("band", "mask", "min_return_loss", "fit"),
     )
     rate = quantity(where, spec, "data_rate", "data rate")
     if rate is not None and rate <= 0:
@@ -487,7 +500,23 @@ def _budget(spec: object) -> Budget:
         checks.append(chk)
     fit_start = quantity(where, spec, "fit_start", "frequency")
     fit_stop = quantity(where, spec, "fit_stop", "frequency")
-    return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop)
+    fit = spec.get("fit", True)
+    if not isinstance(fit, bool):
+        raise LossLaneError(
+            f"{where}.fit = {fit!r}: expected true or false (false: no fitted insertion loss)"
+        )
+    return Budget(
+        rate,
+        modulation,
+        max_loss,
+        tuple(checks),
+        fit_start,
+        fit_stop,
+        parse_bands(spec),
+        parse_masks(spec),
+        parse_min_return_loss(spec),
+        fit,
+    )
 
 
 __all__ = [

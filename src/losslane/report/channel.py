@@ -19,7 +19,7 @@ from losslane import __version__
 from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
 from losslane.report.budget import budget_text, write_budget_files
-from losslane.report.charts import Curve, Marker, db_plot, to_db
+from losslane.report.charts import Curve, db_plot, db_text, to_db
 from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
 
@@ -76,21 +76,22 @@ def summary_rows(result: ChannelResult) -> list[dict]:
         }
         if mm is not None:
             row["common_mode_loss_db"] = _at(result.f, -to_db(mm.cc[:, 1, 0]), x)
-            row["mode_conversion_db"] = _at(result.f, to_db(mm.cd[:, 1, 0]), x)
+            row["mode_conversion_db"] = _at(result.f, to_db(mm.cd[:, 1, 0]), x)  # Scd21
+            row["mode_conversion_near_db"] = _at(result.f, to_db(mm.cd[:, 0, 0]), x)  # Scd11
         rows.append(row)
     return rows
 
 
-def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
+def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[tuple[Path, str]]:
+    """The channel's charts, written into ``stage``: insertion loss (cumulative through
+    each segment), return loss, mixed mode for a pair, with the budget's limits drawn;
+    then the focus chart and a 2-port's RF views (``report.rf``). ``[(path, caption)]``."""
+    from losslane.report.budget import chart_limits
+    from losslane.report.rf import rf_charts
+
     sc = result.scenario
     f = result.f
     mode = "" if result.nports == 2 else " (differential mode)"
-    markers = []
-    if sc.budget is not None:
-        if sc.budget.nyquist is not None:
-            markers.append(Marker(sc.budget.nyquist, "Nyquist", sc.budget.max_loss))
-        for c in sc.budget.checks:
-            markers.append(Marker(c.at, f"check {c.at / 1e9:g} GHz", c.max_loss))
     import matplotlib
 
     cmap = matplotlib.colormaps["viridis"]
@@ -105,6 +106,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
             )
         )
     curves.append(Curve("whole channel", -result.insertion_loss_db, "-", 2.2, "black"))
+    markers, lines = chart_limits(sc, f, "insertion-loss")
     il = db_plot(
         stage / f"{stem}-insertion-loss.png",
         f,
@@ -113,12 +115,10 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         ("Sdd21" if result.nports == 4 else "S21") + " (dB), insertion loss below 0",
         markers,
         floor_db=-200,
+        limits=lines,
     )
     rl_in, rl_out = result.return_loss
-    rl_markers = [
-        Marker(c.at, f"check {c.at / 1e9:g} GHz", c.min_return_loss)
-        for c in (sc.budget.checks if sc.budget else ())
-    ]
+    markers, lines = chart_limits(sc, f, "return-loss")
     rl = db_plot(
         stage / f"{stem}-return-loss.png",
         f,
@@ -128,42 +128,53 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         ],
         f"{sc.name}: return loss{mode}",
         "20 log10 |S11|, |S22| (dB)",
-        rl_markers,
+        markers,
         floor_db=-80,
+        limits=lines,
     )
-    files = [il, rl]
+    files = [
+        (il, "Insertion loss, cumulative through each segment"),
+        (rl, "Return loss at both ends"),
+    ]
     mm = result.mixed_mode
     if mm is not None:
+        markers, lines = chart_limits(sc, f, "mixed-mode")
+        mixed = db_plot(
+            stage / f"{stem}-mixed-mode.png",
+            f,
+            [
+                Curve("Sdd21 differential through", to_db(mm.dd[:, 1, 0]), "-", 2.0, "black"),
+                Curve("Scc21 common-mode through", to_db(mm.cc[:, 1, 0]), "-", 1.3, "tab:blue"),
+                Curve(
+                    "Scd21 differential -> common (far end)",
+                    to_db(mm.cd[:, 1, 0]),
+                    "-",
+                    1.3,
+                    "tab:red",
+                ),
+                Curve(
+                    "Scd11 differential -> common (near end)",
+                    to_db(mm.cd[:, 0, 0]),
+                    "--",
+                    1.1,
+                    "tab:orange",
+                ),
+            ],
+            f"{sc.name}: mixed-mode S-parameters (differential {mm.z_diff:g} ohm, common "
+            f"{mm.z_common:g} ohm)",
+            "dB",
+            markers,
+            floor_db=-120,
+            limits=lines,
+        )
         files.append(
-            db_plot(
-                stage / f"{stem}-mixed-mode.png",
-                f,
-                [
-                    Curve("Sdd21 differential through", to_db(mm.dd[:, 1, 0]), "-", 2.0, "black"),
-                    Curve("Scc21 common-mode through", to_db(mm.cc[:, 1, 0]), "-", 1.3, "tab:blue"),
-                    Curve(
-                        "Scd21 differential -> common (far end)",
-                        to_db(mm.cd[:, 1, 0]),
-                        "-",
-                        1.3,
-                        "tab:red",
-                    ),
-                    Curve(
-                        "Scd11 differential -> common (near end)",
-                        to_db(mm.cd[:, 0, 0]),
-                        "--",
-                        1.1,
-                        "tab:orange",
-                    ),
-                ],
-                f"{sc.name}: mixed-mode S-parameters (differential {mm.z_diff:g} ohm, common "
-                f"{mm.z_common:g} ohm)",
-                "dB",
-                markers,
-                floor_db=-120,
+            (
+                mixed,
+                "Mixed-mode S-parameters: differential and common-mode through, and the "
+                "mode conversion at both ends",
             )
         )
-    return files
+    return files + rf_charts(result, stage, stem)
 
 
 def write_build(
@@ -203,14 +214,15 @@ def write_build(
                 ],
             )
         ]
-        if plots:
-            files += plot_files(result, stage, stem)
-        budget_files, charts = write_budget_files(result, budget, fit, stage, stem, plots)
+        charts = plot_files(result, stage, stem) if plots else []
+        files += [p for p, _ in charts]
+        budget_files, budget_charts = write_budget_files(result, budget, fit, stage, stem, plots)
         files += budget_files
+        charts += budget_charts
         page = stage / f"{stem}-report.html"
         names = sorted({p.name for p in files} | {page.name})
         page.write_text(
-            report_html(result, budget, fit, stage, stem, charts, names, summary),
+            report_html(result, budget, fit, charts, names, summary),
             encoding="utf-8",
         )
         files.append(page)
@@ -239,8 +251,8 @@ def summary_text(
     heads = ["frequency", "insertion loss", "return loss in", "return loss out"]
     units = ["GHz", "dB", "dB", "dB"]
     if four:
-        heads += ["common-mode loss", "Scd21"]
-        units += ["dB", "dB"]
+        heads += ["common-mode loss", "Scd21", "Scd11"]
+        units += ["dB", "dB", "dB"]
     rows = []
     for r in summary:
         row = [
@@ -250,7 +262,11 @@ def summary_text(
             f"{r['return_loss_out_db']:.1f}",
         ]
         if four:
-            row += [f"{r['common_mode_loss_db']:.2f}", f"{r['mode_conversion_db']:.1f}"]
+            row += [
+                db_text(r["common_mode_loss_db"], ".2f", ""),
+                db_text(r["mode_conversion_db"], ".1f", ""),
+                db_text(r["mode_conversion_near_db"], ".1f", ""),
+            ]
         rows.append(row)
     head = (
         f"{sc.name}: {len(result.blocks)} segments, {result.nports}-port, "
