@@ -18,7 +18,6 @@ from losslane import __version__
 from losslane.bands import band_list, in_range
 from losslane.budget import REFLECTIONS_ROW, FitOff
 from losslane.report.charts import (
-    LEGEND_CHAR_IN,
     LimitLine,
     Marker,
     db_text,
@@ -528,7 +527,7 @@ def budget_chart(path: Path, budget, title: str) -> Path:
                 fontsize=8,
             )
         ax.set_xlim(min(0.0, start + refl) - 0.02 * top, 1.12 * top if top > 0 else 1.0)
-        ax.set_title(point_title(pb, budget), fontsize=9)
+        ax.set_title(point_title(pb, budget), fontsize=9, y=1.0)
         ax.set_xlabel("insertion loss (dB)")
         ax.grid(True, axis="x", alpha=0.3)
     ax0 = axes[0][0]
@@ -538,7 +537,7 @@ def budget_chart(path: Path, budget, title: str) -> Path:
     fig.suptitle(title, fontsize=11)
     fig.text(0.995, 0.005, NOTE, ha="right", va="bottom", fontsize=7, color="0.45")
     # room on the left for the longest row name (8 pt text), no measuring pass
-    left = 0.3 + LEGEND_CHAR_IN * max(len(t) for t in labels)
+    left = 0.35 + 0.06 * max(len(t) for t in labels)
     return finish(plt, fig, path, left=min(left, 0.5 * width), right=0.35, top=0.75, wspace=0.12)
 
 
@@ -600,7 +599,7 @@ def ild_plot(
     a2.set_xlabel(f"frequency (GHz); fit band {lo:.4g}..{hi:.4g} GHz shaded")
     a1.legend(fontsize=8, loc="lower left")
     a2.legend(fontsize=8, loc="lower left")
-    a1.set_title(title, fontsize=11)
+    a1.set_title(title, fontsize=11, y=1.0)
     fig.text(0.995, 0.005, NOTE, ha="right", va="bottom", fontsize=7, color="0.45")
     return finish(plt, fig, path)
 

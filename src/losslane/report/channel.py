@@ -87,7 +87,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[tuple[Path
     each segment), return loss, mixed mode for a pair, with the budget's limits drawn;
     then the focus chart and a 2-port's RF views (``report.rf``). ``[(path, caption)]``."""
     from losslane.report.budget import chart_limits
-    from losslane.report.rf import rf_charts
+    from losslane.report.rf import focus_of, rf_charts
 
     sc = result.scenario
     f = result.f
@@ -107,6 +107,9 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[tuple[Path
         )
     curves.append(Curve("whole channel", -result.insertion_loss_db, "-", 2.2, "black"))
     markers, lines = chart_limits(sc, f, "insertion-loss")
+    # [plots] loss_range sets this chart's axis when no focused chart takes it
+    lr = sc.plots.loss_range
+    il_ylim = None if lr is None or focus_of(sc, f) is not None else (-lr[1], -lr[0])
     il = db_plot(
         stage / f"{stem}-insertion-loss.png",
         f,
@@ -116,6 +119,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[tuple[Path
         markers,
         floor_db=-200,
         limits=lines,
+        ylim=il_ylim,
     )
     rl_in, rl_out = result.return_loss
     markers, lines = chart_limits(sc, f, "return-loss")

@@ -226,7 +226,7 @@ def _figure():
 
 
 #: average width of a character of the 8 pt legend text, inches (DejaVu Sans, measured)
-LEGEND_CHAR_IN = 0.062
+LEGEND_CHAR_IN = 0.056
 
 
 def legend(ax, entries: int) -> float:
@@ -235,7 +235,7 @@ def legend(ax, entries: int) -> float:
     if entries > 3:
         leg = ax.legend(fontsize=8, loc="upper left", bbox_to_anchor=(1.01, 1.0), framealpha=0.85)
         longest = max((len(t.get_text()) for t in leg.get_texts()), default=10)
-        return min(0.75 + LEGEND_CHAR_IN * longest, 0.45 * ax.figure.get_size_inches()[0])
+        return min(0.6 + LEGEND_CHAR_IN * longest, 0.45 * ax.figure.get_size_inches()[0])
     ax.legend(fontsize=8, loc="best", framealpha=0.85)
     return 0.3
 
@@ -245,7 +245,8 @@ def title(ax, text: str, size: float = 11, width: int = 100) -> int:
     import textwrap
 
     lines = textwrap.wrap(text, width) or [""]
-    ax.set_title("\n".join(lines), fontsize=size)
+    # an explicit position: matplotlib then skips measuring the axis for the title
+    ax.set_title("\n".join(lines), fontsize=size, y=1.0)
     return len(lines)
 
 
