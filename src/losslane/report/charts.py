@@ -1,5 +1,8 @@
 """What every chart shares: matplotlib on the Agg backend, dB curves against GHz with
-vertical markers, and saving a figure atomically.
+vertical markers (close ones sharing one label) and limit lines, curves that leave the
+axis drawn clipped and said so in the legend, values at the numeric floor written as
+"< -200 dB", fixed margins so a figure is drawn once (when saved), and saving a figure
+atomically.
 
 matplotlib is imported inside the functions (Agg backend, no display needed), so
 importing this module costs nothing.
