@@ -216,10 +216,11 @@ def _section(options: dict) -> dict:
 
 
 def _echo(out: dict, as_json: bool, table: Callable[[dict], str]) -> None:
-    """``out`` as one JSON object on stdout, or the text ``table(out)``."""
-    import json
+    """``out`` as one strict JSON object on stdout (no NaN or Infinity: see
+    ``report.strict_json``), or the text ``table(out)``."""
+    from losslane.report.strict_json import dumps
 
-    click.echo(json.dumps(out) if as_json else table(out))
+    click.echo(dumps(out) if as_json else table(out))
 
 
 # --- commands -------------------------------------------------------------------------

@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import csv
 import io
-import json
 from pathlib import Path
 
 import numpy as np
@@ -17,6 +16,7 @@ import numpy as np
 from losslane import __version__
 from losslane.budget import REFLECTIONS_ROW
 from losslane.report.charts import label_vline, pyplot, save_figure
+from losslane.report.strict_json import dumps
 from losslane.report.text import table, verdict
 
 
@@ -259,7 +259,7 @@ def write_budget_files(
         p.write_text(budget_csv(budget), encoding="utf-8")
         files.append(p)
     p = stage / f"{stem}-budget.json"
-    p.write_text(json.dumps(budget_document(result, budget, fit), indent=2), encoding="utf-8")
+    p.write_text(dumps(budget_document(result, budget, fit), indent=2), encoding="utf-8")
     files.append(p)
     charts: list[tuple[Path, str]] = []
     if plots:

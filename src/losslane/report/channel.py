@@ -56,7 +56,10 @@ def summary_frequencies(result: ChannelResult) -> list[float]:
     if not out:
         top = f[-1]
         out = [top * k / 4 for k in (1, 2, 3, 4)]
-    return sorted({x for x in out if f[0] <= x <= f[-1]})
+    low = f[0]
+    if f.size > 1 and not np.isfinite(result.insertion_loss_db[0]):
+        low = f[1]  # a DC block: nothing between DC and the next point is read from DC
+    return sorted({x for x in out if low <= x <= f[-1]})
 
 
 def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
