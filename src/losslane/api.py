@@ -122,6 +122,7 @@ def section(spec: Mapping, where: str = "line", library: Library | None = None) 
 def _section_spec(kind: str, options: Mapping[str, Any], where: Where) -> dict:
     """Scenario-style keys from the keyword options of a cross-section call (dimensions
     and solver keys pass through; the laminate and the copper are checked and built)."""
+    from losslane.limits import DF, DK
     from losslane.materials.dielectric import Dielectric, make_dielectric
     from losslane.materials.library import foil_from_spec
     from losslane.units import parse_frequency
@@ -143,12 +144,12 @@ def _section_spec(kind: str, options: Mapping[str, Any], where: Where) -> dict:
         )
     if dk is not None:
         df = 0.0 if df is None else df
-        if not dk >= 1.0:
+        if not DK[0] <= dk <= DK[1]:
             raise LossLaneError(
-                f"{k('dk')} = {dk!r}: a relative permittivity is >= 1 "
-                "(air 1, board laminates 2.5..5)"
+                f"{k('dk')} = {dk!r}: a relative permittivity is >= {DK[0]:g} and <= {DK[1]:g} "
+                "(air 1, board laminates 2.5..5; Input limits)"
             )
-        if not 0.0 <= df < 1.0:
+        if not DF[0] <= df < DF[1]:
             raise LossLaneError(
                 f"{k('df')} = {df!r}: a loss tangent lies in 0 <= df < 1 (laminates 0.001..0.03)"
             )
@@ -336,6 +337,11 @@ def compare(
     z = parse_target(target, k("target"))
     freqs = parse_frequency_list(at, k("at"))
     f0 = parse_frequency(size_at, k("size_at"))
+    if not f0 > 0:  # checked here: the sizing it is passed to names its own key, `at`
+        raise LossLaneError(
+            f"{where.setting('size_at', size_at)}: size at a frequency above 0 Hz (e.g. "
+            "1GHz); at DC the impedance carries the full internal inductance"
+        )
     lib = _library(library_files)
     if options.get("dk") is not None or options.get("dielectric") is not None:
         raise LossLaneError(

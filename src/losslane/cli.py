@@ -49,6 +49,34 @@ def cli() -> None:
 # --- options ------------------------------------------------------------------------------
 
 
+class _StrictNumber(click.ParamType):
+    """A plain number option read as the unit parser reads numbers (``units.parse_number``:
+    ASCII digits only, never NaN or infinite); ``whole`` for counts and seeds."""
+
+    def __init__(self, whole: bool = False) -> None:
+        self.whole = whole
+        self.name = "integer" if whole else "number"
+
+    def convert(self, value, param, ctx):
+        import re
+
+        from losslane.units import parse_number
+
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            return value
+        key = param.opts[0] if param is not None and param.opts else "value"
+        if self.whole:
+            if not re.fullmatch(r"\s*[+-]?[0-9]+\s*", str(value)):
+                parse_number(value, key)  # names foreign digits and other non-numbers
+                raise LossLaneError(f"{key} = {value!r}: expected a whole number")
+            return int(value)
+        return parse_number(value, key)
+
+
+_NUMBER = _StrictNumber()
+_WHOLE = _StrictNumber(whole=True)
+
+
 def _options(*decorators):
     """One decorator applying ``decorators`` so that they show in --help in the order given."""
 
@@ -91,8 +119,8 @@ def _plot_options(default: str, help: str, no_plot_help: str):
 
 #: the laminate and copper of a cross-section (api.MATERIAL_OPTIONS, as options)
 _material_options = _options(
-    click.option("--dk", type=float, help="relative permittivity of the dielectric"),
-    click.option("--df", type=float, help="loss tangent of the dielectric (default 0)"),
+    click.option("--dk", type=_NUMBER, help="relative permittivity of the dielectric"),
+    click.option("--df", type=_NUMBER, help="loss tangent of the dielectric (default 0)"),
     click.option("--dk-at", metavar="FREQ", help="frequency of the --dk/--df values"),
     click.option(
         "--dielectric-model",
@@ -133,7 +161,7 @@ _material_options = _options(
 #: (metavar or click type, help)
 _FIELD_HELP = {
     "top_width": ("LENGTH", "top width of an etched trace (width is the base)"),
-    "etch_factor": (float, "2 x thickness / (width - top width)"),
+    "etch_factor": (_NUMBER, "2 x thickness / (width - top width)"),
     "coating_thickness": ("LENGTH", "solder-mask thickness over the outer layer"),
     "coating_dielectric": ("NAME", "the coating's dielectric (e.g. solder-mask)"),
     "dielectric_above": ("NAME", "stripline prepreg above the trace, if not --dielectric"),
@@ -403,10 +431,12 @@ def _progress_bar(label: str) -> Iterator[Callable[[int, int], None]]:
     show_default=True,
     help="normal: each +/- tolerance is 3 sigma; uniform: samples fill the +/- interval evenly",
 )
-@click.option("--samples", type=int, default=10000, show_default=True, help="Monte Carlo samples")
+@click.option(
+    "--samples", type=_WHOLE, default=10000, show_default=True, help="Monte Carlo samples"
+)
 @click.option(
     "--seed",
-    type=int,
+    type=_WHOLE,
     default=1,
     show_default=True,
     help="random seed (the same seed gives the same numbers)",

@@ -167,11 +167,10 @@ def _resolver(what: str, own: Mapping, library: Mapping) -> Callable[[str, str],
 
 def load_scenario(path: str | Path) -> Scenario:
     """Read and validate a scenario file."""
+    from losslane.userfiles import read_text
+
     p = Path(path)
-    if not p.is_file():
-        raise LossLaneError(f"scenario file {str(p)!r} does not exist")
-    text_ = p.read_text(encoding="utf-8")
-    return parse_scenario(text_, base=p.parent, path=p)
+    return parse_scenario(read_text(p, "scenario file"), base=p.parent, path=p)
 
 
 def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None) -> Scenario:
@@ -272,7 +271,12 @@ def _sweep(spec: object) -> Sweep:
         if step <= 0:
             raise LossLaneError(f"{where}.step = {spec['step']!r}: must be > 0 Hz")
         n = (stop - start) / step
-        points = int(np.floor(n + 1e-9)) + 1
+        if not n < MAX_POINTS:  # also an overflow to inf: never converted to int
+            raise LossLaneError(
+                f"{where}.step = {spec['step']!r}: {spec['start']!r}..{spec['stop']!r} in "
+                f"steps of {step:g} Hz is {n + 1:.4g} frequency points, more than the "
+                f"{MAX_POINTS} allowed; use a coarser step"
+            )
         if abs(n - round(n)) > 1e-6 * max(1.0, n):
             raise LossLaneError(
                 f"{where}.step = {spec['step']!r} does not divide the range "
@@ -286,8 +290,9 @@ def _sweep(spec: object) -> Sweep:
             raise LossLaneError(f"{where}.points = {pts!r}: expected a whole number >= 2")
         points, step = pts, None
     if points > MAX_POINTS:
+        key = f"{where}.step = {spec['step']!r}" if step else f"{where}.points = {points}"
         raise LossLaneError(
-            f"{where}: {points} frequency points is more than the "
+            f"{key}: {points} frequency points is more than the "
             f"{MAX_POINTS} allowed; use a coarser step"
         )
     return Sweep(start, stop, step, points)
