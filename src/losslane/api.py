@@ -543,8 +543,9 @@ def build(
 
     from losslane.budget import evaluate_budget, fit_channel, validate
     from losslane.channel import build_channel
-    from losslane.errors import LossLaneWarning
-    from losslane.report.channel import prepare_out_dir, slug, summary_rows, write_build
+    from losslane.errors import LossLaneWarning, warn
+    from losslane.report.channel import prepare_out_dir, summary_rows, write_build
+    from losslane.report.output import MAX_STEM, file_stem
     from losslane.scenario import load_scenario
 
     caught: list = []
@@ -553,7 +554,13 @@ def build(
             warnings.simplefilter("always", LossLaneWarning)
             sc = load_scenario(scenario)
             points = validate(sc)  # budget frequencies against the sweep, before any work
-            out_dir = prepare_out_dir(out if out is not None else slug(sc.name))
+            stem, cut = file_stem(sc.name)
+            if cut:
+                warn(
+                    f"name is {len(sc.name)} characters long; the output files are named "
+                    f"{stem!r}... (file stems are cut to {MAX_STEM} characters)"
+                )
+            out_dir = prepare_out_dir(out if out is not None else stem)
             channel = build_channel(sc)
             budget = evaluate_budget(channel, points=points)
             fit = fit_channel(channel)

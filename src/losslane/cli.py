@@ -17,6 +17,7 @@ import click
 
 from losslane import api
 from losslane.errors import LossLaneError, LossLaneWarning
+from losslane.report.output import check_output_file
 
 
 @contextlib.contextmanager
@@ -272,6 +273,8 @@ def line_command(kind: str, at: str, as_json: bool, plot: str | None, **options)
     """
     from losslane.report.line import describe, line_table
 
+    if plot is not None:
+        check_output_file(plot, "--plot")  # before any work
     with _warnings_to_stderr():
         result = api.line(kind, at=at, where=api.cli_where("losslane line"), **_section(options))
         if plot is not None:
@@ -384,6 +387,8 @@ def compare_command(
     from losslane.report.design import compare_chart, compare_table
     from losslane.report.line import stackup
 
+    if not no_plot:
+        check_output_file(plot, "--plot")  # before any work
     with _warnings_to_stderr():
         res = api.compare(
             kind,
@@ -484,6 +489,8 @@ def spread_command(
     from losslane.report.design import spread_chart, spread_table
     from losslane.report.line import describe
 
+    if not no_plot:
+        check_output_file(plot, "--plot")  # before any work
     tol_keys = [k for k in options if k.endswith("_tol")]
     tolerances = {k[: -len("_tol")]: options.pop(k) for k in tol_keys}
     with _warnings_to_stderr(), _progress_bar("sampling") as progress:

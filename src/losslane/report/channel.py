@@ -20,28 +20,20 @@ from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
 from losslane.report.budget import budget_text, write_budget_files
 from losslane.report.charts import Curve, Marker, db_plot, to_db
+from losslane.report.output import check_output_dir, check_targets, file_stem
 from losslane.report.page import report_html
 from losslane.report.text import CAUTION, table
 
 
 def slug(name: str) -> str:
-    s = re.sub(r"[^A-Za-z0-9]+", "-", name.strip().lower()).strip("-")
-    return s or "channel"
+    """The file stem of a scenario ``name`` (``report.output.file_stem``)."""
+    return file_stem(name)[0]
 
 
 def prepare_out_dir(out: Path | str) -> Path:
-    """Check the output directory is usable before any work is done."""
-    p = Path(out)
-    if p.exists() and not p.is_dir():
-        raise LossLaneError(
-            f"--out {str(p)!r} is an existing file, not a directory; choose a directory name"
-        )
-    parent = p.resolve().parent
-    if not parent.exists():
-        raise LossLaneError(
-            f"--out {str(p)!r}: the parent directory {str(parent)!r} does not exist"
-        )
-    return p
+    """Check the output directory is usable before any work is done (the rule of
+    ``report.output``)."""
+    return check_output_dir(out, "--out")
 
 
 def summary_frequencies(result: ChannelResult) -> list[float]:
@@ -187,8 +179,15 @@ def write_build(
 
     out = Path(out_dir)
     stem = slug(result.scenario.name)
-    # staged beside the output directory, so nothing appears in it until all is written
-    stage = Path(tempfile.mkdtemp(prefix=".losslane-build-", dir=out.resolve().parent))
+    # staged in a hidden directory inside an existing output directory, else beside it,
+    # so nothing appears until all is written
+    home = out if out.is_dir() else out.resolve().parent
+    try:
+        stage = Path(tempfile.mkdtemp(prefix=".losslane-build-", dir=home))
+    except OSError as exc:
+        raise LossLaneError(
+            f"--out {str(out)!r}: cannot write in {str(home)!r} ({exc.strerror or exc})"
+        ) from None
     try:
         files = [
             write_touchstone(
@@ -216,6 +215,7 @@ def write_build(
             encoding="utf-8",
         )
         files.append(page)
+        check_targets(out, [p.name for p in files])
         final = []
         out.mkdir(exist_ok=True)
         for p in files:
@@ -223,6 +223,11 @@ def write_build(
             p.replace(target)
             final.append(target)
         return final
+    except OSError as exc:
+        where = exc.filename or out
+        raise LossLaneError(
+            f"--out {str(out)!r}: writing {str(where)!r} failed ({exc.strerror or exc})"
+        ) from None
     finally:
         shutil.rmtree(stage, ignore_errors=True)
 

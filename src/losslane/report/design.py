@@ -346,11 +346,11 @@ def spread_histograms(
 
 
 def _chart_path(path: Path | str) -> Path:
-    """A chart's path, its folder created when missing (the charts of compare and
-    spread go where the user names them)."""
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    return path
+    """A chart's path, checked by the one rule for outputs (``report.output``: its folder
+    must exist and be writable; no folder is created)."""
+    from losslane.report.output import check_output_file
+
+    return check_output_file(path, "--plot")
 
 
 def compare_chart(result, path: Path | str) -> Path:

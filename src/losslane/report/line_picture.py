@@ -11,6 +11,7 @@ import numpy as np
 
 from losslane.errors import LossLaneError
 from losslane.report.charts import save_figure
+from losslane.report.output import check_output_file
 from losslane.units import MIL
 
 _FORMATS = (".png", ".svg", ".pdf")
@@ -35,8 +36,7 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
         )
     if not isinstance(section, FieldSection):
         raise LossLaneError(f"{key} needs the field solver (--solver field)")
-    if not path.parent.exists():
-        raise LossLaneError(f"{key} {str(path)!r}: the folder {str(path.parent)!r} does not exist")
+    check_output_file(path, key)
 
     import matplotlib
 
