@@ -123,7 +123,10 @@ def test_tiny_step_names_step_and_does_not_overflow(capsys, tmp_path):
 
 
 def test_conductivity_nan_in_a_graded_layer_is_refused(capsys, tmp_path):
-    extra = '\n[foils.plated]\nmodel = "graded"\nlayers = [{ conductivity = nan, thickness = "1 um" }]\n'
+    extra = (
+        '\n[foils.plated]\nmodel = "graded"\n'
+        'layers = [{ conductivity = nan, thickness = "1 um" }]\n'
+    )
     msg = build_refused(capsys, tmp_path, SMALL + extra)
     assert "[foils.plated].layers[0].conductivity = nan" in msg
 
