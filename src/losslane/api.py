@@ -159,7 +159,13 @@ def _section_spec(kind: str, options: Mapping[str, Any], where: Where) -> dict:
                 f"(e.g. 10GHz); or use {where.setting('dielectric_model', 'constant')}"
             )
         at_hz = parse_frequency(dk_at, k("dk_at")) if dk_at is not None else None
-        spec["dielectric"] = make_dielectric(dk, df, at_hz, model, "dielectric")
+        try:
+            spec["dielectric"] = make_dielectric(dk, df, at_hz, model, "dielectric")
+        except LossLaneError as exc:  # name the options the laminate came from
+            given = [where.setting("dk", dk), where.setting("df", df)]
+            if dk_at is not None:
+                given.append(where.setting("dk_at", dk_at))
+            raise LossLaneError(f"{', '.join(given)}: {exc}") from None
     else:
         if df is not None or dk_at is not None:
             raise LossLaneError(

@@ -540,7 +540,7 @@ def materials_command(
 
 
 @cli.command("build")
-@click.argument("scenario", type=click.Path(dir_okay=False))
+@click.argument("scenario", metavar="SCENARIO")  # checked by the scenario reader
 @click.option("--out", "out", metavar="DIR", help="output directory (default: ./<scenario name>)")
 @click.option(
     "--touchstone-version",

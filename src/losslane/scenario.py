@@ -23,7 +23,8 @@ from losslane.materials.library import Library, dielectric_from_spec, foil_from_
 from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
-from losslane.spec import check_keys, quantity, suggest, text
+from losslane.spec import check_keys, dimension, quantity, suggest, text
+from losslane.userfiles import check_readable
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
 
@@ -391,12 +392,15 @@ def _segment(
             raise LossLaneError(
                 f"{where}.order = {order!r}: valid values are {', '.join(repr(o) for o in ORDERS)}"
             )
+        if "\x00" in fname:
+            raise LossLaneError(f"{w} = {fname!r}: a file name cannot hold a NUL character")
         p = (base / fname).resolve()
-        if not p.is_file():
+        if not p.exists():
             raise LossLaneError(
                 f"{w} = {fname!r}: file {str(p)!r} does not exist (paths are "
                 "relative to the scenario file)"
             )
+        check_readable(p, f"{w} = {fname!r}: touchstone file")  # a directory, a device
         if not re.search(r"\.s\d+p$", p.name, re.IGNORECASE):
             raise LossLaneError(f"{w} = {fname!r}: expected a Touchstone file (.s2p, .s4p)")
         return Segment(i, "touchstone", name or p.stem, path=p, order=order)
@@ -410,8 +414,8 @@ def _segment(
             required=("barrel", "impedance", "dielectric"),
         )
         vals = {
-            "barrel": quantity(w, body, "barrel", "length", required=True),
-            "stub": quantity(w, body, "stub", "length", default=0.0),
+            "barrel": dimension(w, body, "barrel", required=True),
+            "stub": dimension(w, body, "stub", default=0.0, zero_ok=True),
             "impedance": quantity(w, body, "impedance", "resistance", required=True),
         }
         if vals["barrel"] <= 0 or vals["stub"] < 0 or vals["impedance"] <= 0:

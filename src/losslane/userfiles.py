@@ -22,6 +22,8 @@ def check_readable(path: str | os.PathLike, what: str) -> Path:
     shown = f"{what} {str(p)!r}"
     if str(path) == "":
         raise LossLaneError(f"{what} '': empty file name")
+    if "\x00" in str(path):
+        raise LossLaneError(f"{shown}: a file name cannot hold a NUL character")
     try:
         st = p.stat()
     except FileNotFoundError:

@@ -17,6 +17,7 @@ read and written through scikit-rf.
 from __future__ import annotations
 
 import os
+import warnings
 from collections.abc import Iterable
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -64,7 +65,10 @@ def read_touchstone(path: str | os.PathLike) -> skrf.Network:
     # Touchstone is ASCII; Latin-1 reads any byte a comment may hold
     scan = scan_touchstone(read_bytes(p, "touchstone file").decode("latin-1"), p)
     try:
-        net = skrf.Network(str(p))
+        # absurd values overflow in scikit-rf's conversions; _check_values names them
+        with warnings.catch_warnings(), np.errstate(all="ignore"):
+            warnings.simplefilter("ignore", RuntimeWarning)
+            net = skrf.Network(str(p))
     except Exception as exc:  # skrf raises many types on malformed files
         raise LossLaneError(
             f"touchstone file '{p}' could not be read as Touchstone 1.x/2.x: {exc}"
@@ -130,7 +134,7 @@ def header_lines(
     lines.append(f"reference impedance: {ref} (power waves)")
     lines.append("frequencies in Hz; parameters S")
     lines.extend(str(c) for c in comments)
-    return [ln.replace("\n", " ") for ln in lines]
+    return [ln.replace("\r", " ").replace("\n", " ") for ln in lines]
 
 
 def touchstone_text(

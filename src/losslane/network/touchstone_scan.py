@@ -113,7 +113,9 @@ def scan_touchstone(text: str, path: str | Path) -> Scan | None:
     None when the file's port count cannot be told (left to the reader's own error)."""
     path = Path(path)
     error = _Error(path)
-    raw_lines = text.splitlines()
+    # line breaks as a text file is read (universal newlines), not str.splitlines, which
+    # also breaks at form feeds and Unicode separators that a comment may hold
+    raw_lines = text.replace("\r\n", "\n").replace("\r", "\n").split("\n")
     version = 1
     nports = _ports_from_name(path)
     matrix = "full"

@@ -15,7 +15,7 @@ import numpy as np
 
 from losslane import __version__
 from losslane.budget import REFLECTIONS_ROW
-from losslane.report.charts import label_vline, pyplot, save_figure
+from losslane.report.charts import label_vline, pyplot, save_figure, user_text
 from losslane.report.strict_json import dumps
 from losslane.report.text import table, verdict
 
@@ -305,6 +305,7 @@ REFLECTION_COLOUR = "#c0392b"
 TOTAL_COLOUR = "#333333"
 
 
+@user_text
 def budget_chart(path: Path, budget, title: str) -> Path:
     """A horizontal waterfall per check point: each segment's own loss stacked from the
     input, then the reflections row (red; negative when reflections cancel), then the
@@ -381,6 +382,7 @@ def budget_chart(path: Path, budget, title: str) -> Path:
         plt.close(fig)
 
 
+@user_text
 def ild_plot(
     path: Path,
     f: np.ndarray,

@@ -7,7 +7,8 @@ importing this module costs nothing.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+import functools
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -32,6 +33,22 @@ class Marker:
     at_hz: float
     label: str
     limit_db: float | None = None
+
+
+def user_text(chart: Callable) -> Callable:
+    """Decorate a chart function so that its texts are shown as written: titles, legends
+    and notes carry user names (a scenario, a segment, a material), and a ``$`` in them
+    must not start matplotlib's math mode, where unbalanced markup is an error. (The
+    setting holds while the chart is drawn; matplotlib is imported only then.)"""
+
+    @functools.wraps(chart)
+    def draw(*args, **kwargs):
+        import matplotlib
+
+        with matplotlib.rc_context({"text.parse_math": False}):
+            return chart(*args, **kwargs)
+
+    return draw
 
 
 def pyplot():
@@ -65,6 +82,7 @@ def _figure():
     return plt, fig, ax
 
 
+@user_text
 def db_plot(
     path: Path,
     f: np.ndarray,

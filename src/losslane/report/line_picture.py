@@ -10,7 +10,7 @@ from pathlib import Path
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.report.charts import save_figure
+from losslane.report.charts import save_figure, user_text
 from losslane.report.output import check_output_file
 from losslane.units import MIL
 
@@ -18,6 +18,7 @@ _FORMATS = (".png", ".svg", ".pdf")
 _COPPER = "#b87333"
 
 
+@user_text
 def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     """Draw ``section`` (a FieldSection) to ``path`` (.png, .svg or .pdf), written to a
     temporary name first and renamed, so a failure leaves no half-written file.

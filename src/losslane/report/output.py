@@ -68,6 +68,8 @@ def _existing_directory(directory: Path, key: str, shown: str, what: str) -> Non
 def _nonempty(path: str | os.PathLike, key: str) -> Path:
     if str(path).strip() == "":
         raise LossLaneError(f"{key} '': an empty name; give a path (. for this directory)")
+    if "\x00" in str(path):
+        raise LossLaneError(f"{key} {str(path)!r}: a path cannot hold a NUL character")
     return Path(path)
 
 
