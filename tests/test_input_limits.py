@@ -184,3 +184,20 @@ def test_plain_number_options_refuse_full_width_digits(capsys):
         capsys, *LINE, "--width", "6mil", "--dk", "\uff13.7", "--df", "0", "--dk-at", "1GHz"
     )
     assert "--dk" in msg and "U+FF13" in msg
+
+
+def test_dielectric_fit_errors_name_the_options(capsys):
+    # found by the hostile-input suite: the wideband Debye fit's refusal named "at", a key
+    # of scenario files, not the option the user gave
+    msg = refused(capsys, *LINE, "--width", "6mil", "--dk", "3.7", "--df", "0.01", "--dk-at", "0Hz")
+    assert "--dk-at 0Hz" in msg and "between the model's corners" in msg
+
+
+def test_a_model_refusal_names_its_section(capsys, tmp_path):
+    # found by the hostile-input suite: a coplanar strip too thick for its gap was refused
+    # without saying which [lines.*] section; Gupta's thickness widening closes the gap
+    text = SMALL.replace('kind = "microstrip"', 'kind = "cpw"\ngap = "3 mil"').replace(
+        'thickness = "1.4 mil"', 'thickness = "2.9 mil"'
+    )
+    msg = build_refused(capsys, tmp_path, text)
+    assert msg.startswith("error: [lines.host]: cpw: thickness") and "gap" in msg

@@ -123,3 +123,66 @@ def test_name_longer_than_a_file_name_gets_a_safe_stem(capsys, tmp_path, monkeyp
     names = sorted(f.name for f in out_dir.iterdir())
     assert names and all(len(n.encode()) <= 255 for n in names)
     assert any(n.endswith(".s2p") for n in names)
+
+
+@pytest.mark.parametrize(
+    ("where", "needle"),
+    [
+        ("scenario", "scenario file"),
+        ("library", "library file"),
+        ("touchstone", "[[channel]] #2.touchstone"),
+        ("out", "--out"),
+    ],
+)
+def test_nul_characters_in_paths(capsys, tmp_path, where, needle):
+    # found by the hostile-input suite: a NUL in a path raised ValueError from the OS layer
+    text = SMALL
+    scenario, out = str(tmp_path / "lane.toml"), str(tmp_path / "out")
+    if where == "scenario":
+        scenario = str(tmp_path / "la\x00ne.toml")
+    elif where == "library":
+        text = 'library = ["li\\u0000b.toml"]\n' + SMALL
+    elif where == "touchstone":
+        text = SMALL + '\n[[channel]]\ntouchstone = "pa\\u0000rt.s2p"\n'
+    else:
+        out = str(tmp_path / "o\x00ut")
+    (tmp_path / "lane.toml").write_text(text, encoding="utf-8")
+    before = files_under(tmp_path)
+    rc, stdout, err = run_cli(capsys, "build", scenario, "--out", out, "--no-plots")
+    assert rc == 2
+    msg = error_line(err)
+    assert needle in msg and "NUL" in msg
+    assert files_under(tmp_path) == before
+
+
+@pytest.mark.parametrize(("make", "needle"), [("dir", "is a directory"), ("dev", "not a regular")])
+def test_touchstone_path_that_is_not_a_file(capsys, tmp_path, make, needle):
+    if make == "dir":
+        (tmp_path / "part.s2p").mkdir()
+        name = "part.s2p"
+    else:
+        name = "/dev/null"
+    (tmp_path / "lane.toml").write_text(
+        SMALL + f'\n[[channel]]\ntouchstone = "{name}"\n', encoding="utf-8"
+    )
+    rc, out, err = run_cli(
+        capsys, "build", str(tmp_path / "lane.toml"), "--out", str(tmp_path / "o"), "--no-plots"
+    )
+    assert rc == 2
+    msg = error_line(err)
+    assert "[[channel]] #2.touchstone" in msg and needle in msg and "does not exist" not in msg
+
+
+def test_dollar_signs_in_names_do_not_break_the_charts(capsys, tmp_path):
+    # found by the hostile-input suite: matplotlib read '$...$' in a title or legend as math
+    # and failed on unbalanced markup; names are shown as written
+    text = SMALL.replace('name = "bench lane"', 'name = "$\\\\frac{$ lane"').replace(
+        'length = "2 in"', 'length = "2 in"\nname = "seg $^$"'
+    )
+    text += '\n[[channel]]\nline = "host"\nlength = "1 in"\n'
+    rc, out, err = build(capsys, tmp_path, text)  # --no-plots there; this one draws
+    assert rc == 0, err
+    p = tmp_path / "lane.toml"
+    rc, out, err = run_cli(capsys, "build", str(p), "--out", str(tmp_path / "charts"))
+    assert rc == 0, err
+    assert (tmp_path / "charts" / "frac-lane-insertion-loss.png").stat().st_size > 0
