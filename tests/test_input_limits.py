@@ -201,3 +201,18 @@ def test_a_model_refusal_names_its_section(capsys, tmp_path):
     )
     msg = build_refused(capsys, tmp_path, text)
     assert msg.startswith("error: [lines.host]: cpw: thickness") and "gap" in msg
+
+
+@pytest.mark.parametrize(
+    ("argv", "key"),
+    [
+        (["size", "microstrip", "--target", "\uff15\uff10"], "--target"),
+        (["spread", "microstrip", "--width", "6mil", "--band", "\uff11\uff10%"], "--band"),
+        (["spread", "microstrip", "--width", "6mil", "--width-tol", "\uff11%"], "--width-tol"),
+    ],
+)
+def test_design_numbers_refuse_full_width_digits(capsys, argv, key):
+    common = ["--height", "4mil", "--thickness", "1.4mil", "--dielectric", "low-loss"]
+    extra = ["--no-plot", "--samples", "20"] if argv[0] == "spread" else []
+    msg = refused(capsys, *argv, *common, *extra)
+    assert msg.startswith(f"error: {key} = ") and "ASCII digits" in msg

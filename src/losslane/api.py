@@ -210,6 +210,15 @@ def _make_section(kind: str, options: Mapping[str, Any], where: Where, lib: Libr
     return section_from_spec(_section_spec(kind, options, where), where, lib.dielectric, lib.foil)
 
 
+def _digits(value: Any, key: str) -> Any:
+    """``value`` unchanged if it is not text in foreign digits (``units.check_digits``)."""
+    from losslane.units import check_digits
+
+    if isinstance(value, str):
+        check_digits(value, key)
+    return value
+
+
 def _where(where: Where | None, function: str) -> Where:
     return where if where is not None else python_where(function)
 
@@ -295,7 +304,7 @@ def size(
     from losslane.units import parse_frequency, parse_frequency_list
 
     where = _where(where, "size")
-    z = parse_target(target, where.key("target"))
+    z = parse_target(_digits(target, where.key("target")), where.key("target"))
     f0 = parse_frequency(at, where.key("at"))
     floss = parse_frequency_list(loss_at, where.key("loss_at")) if loss_at else None
     lib = _library(library_files)
@@ -340,7 +349,7 @@ def compare(
 
     where = _where(where, "compare")
     k = where.key
-    z = parse_target(target, k("target"))
+    z = parse_target(_digits(target, k("target")), k("target"))
     freqs = parse_frequency_list(at, k("at"))
     f0 = parse_frequency(size_at, k("size_at"))
     if not f0 > 0:  # checked here: the sizing it is passed to names its own key, `at`
@@ -386,6 +395,7 @@ def parse_band(value: str | float, key: str = "band") -> tuple[float | None, flo
         if not 0 < value < 1:
             raise LossLaneError(f"{key} = {value!r}: a fraction between 0 and 1 (e.g. 0.1)")
         return float(value), None
+    _digits(value, key)
     m = re.fullmatch(r"\s*(\d+\.?\d*|\.\d+)\s*%\s*", str(value))
     if m:
         frac = float(m.group(1)) / 100.0
@@ -434,7 +444,11 @@ def spread(
 
     where = _where(where, "spread")
     freqs = parse_frequency_list(at, where.key("at"))
-    z = parse_target(target, where.key("target")) if target is not None else None
+    z = (
+        parse_target(_digits(target, where.key("target")), where.key("target"))
+        if target is not None
+        else None
+    )
     frac, ohm = parse_band(band, where.key("band"))
     sec = _make_section(kind, options, where, _library(library_files))
     geo = sec.dimension_values()
@@ -450,6 +464,7 @@ def spread(
         if value is None:
             continue
         nominal = sec.dielectric.dk if key == "dk" else geo.get(key, 0.0)
+        _digits(value, where.tolerance(key))
         tols[key] = parse_tolerance(value, key, nominal, where)
     return spread_(
         sec,

@@ -96,13 +96,13 @@ _TABLES: dict[str, dict[str, float]] = {
 _CASELESS = {"frequency"}
 
 # ASCII digits only: Python's \d and float() also take full-width and other scripts'
-# digits, which a strict parser refuses (``_foreign_digit``); any Unicode space (a no-break
+# digits, which a strict parser refuses (``check_digits``); any Unicode space (a no-break
 # space pasted from a document) separates the number from its unit
 _NUMBER = r"[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?"
 _PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(\S.*?)?\s*$")
 
 
-def _foreign_digit(value: str, key: str) -> None:
+def check_digits(value: str, key: str) -> None:
     """Refuse digits other than ASCII 0-9 (full-width, Arabic-Indic, ...), naming the
     character: they look like numbers but are not what a data sheet or a script writes."""
     import unicodedata
@@ -122,7 +122,7 @@ def parse_number(value: object, key: str = "value") -> float:
     if isinstance(value, bool) or not isinstance(value, (str, int, float)):
         raise LossLaneError(f"{key} = {value!r}: expected a plain number")
     if isinstance(value, str):
-        _foreign_digit(value, key)
+        check_digits(value, key)
         if not re.fullmatch(rf"\s*{_NUMBER}\s*", value):
             raise LossLaneError(f"{key} = {value!r}: expected a plain number such as 3.7 or 1e-3")
     v = float(value)
@@ -171,7 +171,7 @@ def parse_quantity(value: object, kind: str, key: str = "value") -> float:
         raise LossLaneError(f"{key} = {value!r}: expected a {kind} as text; {hint}")
     if isinstance(value, (int, float)):
         raise LossLaneError(f"{key} = {value!r}: a bare number is not a {kind}; {hint}")
-    _foreign_digit(value, key)
+    check_digits(value, key)
     m = _PATTERN.match(value)
     if not m:
         raise LossLaneError(f"{key} = {value!r}: not a number with a unit; {hint}")
