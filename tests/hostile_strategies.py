@@ -492,8 +492,11 @@ def valid_scenario(draw) -> Case:
 def budget_spec(draw, f: np.ndarray, dc_block: bool) -> dict:
     budget: dict = {}
     # points read through an unbounded DC point are refused: stay above f[1] then
-    low = float(f[1]) if (dc_block and f[0] == 0 and f.size > 2) else float(f[0])
-    choices = f[(f > low) | ((f == low) & (not dc_block or f[0] > 0))]
+    # (the first sweep point above DC included: values there are read with DC's weight 0)
+    if dc_block and f[0] == 0:
+        choices = f[f > f[1]]
+    else:
+        choices = f
     if choices[choices > 0].size and draw(st.booleans()):
         nyq = float(draw(st.sampled_from(choices[choices > 0])))
         budget["data_rate"] = f"{2 * nyq / 1e9:.12g} Gb/s"
