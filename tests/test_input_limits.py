@@ -216,3 +216,14 @@ def test_design_numbers_refuse_full_width_digits(capsys, argv, key):
     extra = ["--no-plot", "--samples", "20"] if argv[0] == "spread" else []
     msg = refused(capsys, *argv, *common, *extra)
     assert msg.startswith(f"error: {key} = ") and "ASCII digits" in msg
+
+
+def test_a_model_refusal_on_the_command_line_names_the_options(capsys):
+    msg = refused(
+        capsys,
+        "line",
+        "cpw",
+        *("--width", "5mil", "--height", "5mil", "--gap", "3mil", "--thickness", "3mil"),
+        *MATERIAL,
+    )
+    assert "cpw: --thickness = " in msg and "for --gap = " in msg

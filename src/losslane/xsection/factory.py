@@ -77,7 +77,18 @@ def section_from_spec(
     try:
         return cls(**geometry, dielectric=d, metal=metal)
     except LossLaneError as exc:  # the model's own refusal: say which section it is
-        raise LossLaneError(f"{where}: {exc}" if where else str(exc)) from None
+        raise LossLaneError(_located(str(exc), where, cls.dimensions)) from None
+
+
+def _located(message: str, where: str, keys: tuple[str, ...]) -> str:
+    """A model's message prefixed with ``where``; on the command line its ``key = value``
+    phrases name the options (``--thickness = ...``)."""
+    import re
+
+    if isinstance(where, Where) and where.cli and keys:
+        pattern = r"\b(" + "|".join(map(re.escape, keys)) + r")\b(?= = )"
+        message = re.sub(pattern, lambda m: where.key(m.group(1)), message)
+    return f"{where}: {message}" if where else message
 
 
 def metal_from_spec(spec: Mapping, where: str, foil: Callable[[str, str], Roughness]) -> Metal:
