@@ -4,7 +4,7 @@ VENV := .venv
 PY := $(VENV)/bin/python
 STAMP := $(VENV)/.installed
 
-.PHONY: demo test lint format bench clean
+.PHONY: demo test soak lint format bench clean
 
 $(STAMP): pyproject.toml
 	$(PYTHON) -m venv $(VENV)
@@ -19,6 +19,10 @@ test: $(STAMP)
 	$(PY) -m pytest -q
 	$(VENV)/bin/ruff check src tests benchmarks
 	$(VENV)/bin/ruff format --check src tests benchmarks
+
+# the hostile-input properties with thousands of examples each (minutes, not seconds)
+soak: $(STAMP)
+	LOSSLANE_SOAK=1 $(PY) -m pytest -q tests/test_hostile_input.py --hypothesis-show-statistics
 
 lint: $(STAMP)
 	$(VENV)/bin/ruff check src tests benchmarks

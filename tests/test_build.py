@@ -396,7 +396,7 @@ def test_build_cascade_equals_skrf_cascade_of_the_same_blocks(tmp_path):
 )
 def test_dc_point_of_a_plain_line_is_its_series_resistance(tmp_path, kind, geometry):
     # DC circuit theory: a series resistance R between two Z0 ports gives
-    # S21 = 2 Z0 / (2 Z0 + R), S11 = R / (2 Z0 + R). With return planes 1 km thick (their
+    # S21 = 2 Z0 / (2 Z0 + R), S11 = R / (2 Z0 + R). With return planes 1 m thick (their
     # DC resistance vanishes) R is the strip's own, R = length / (sigma w t) (hand value)
     text = f"""
 name = "dc lane"
@@ -411,7 +411,7 @@ thickness = "0.7 mil"
 {geometry}
 dielectric = "low-loss"
 foil = "standard-ed"
-plane_thickness = "1000 m"
+plane_thickness = "1 m"
 conductivity = "5.8e7 S/m"
 [[channel]]
 line = "l"

@@ -40,7 +40,7 @@ thickness = "0.6 mil"
 below = "6 mil"
 above = "6 mil"
 dielectric = "clear"
-conductivity = "1e15 S/m"   # practically no conductor loss: a TEM line
+conductivity = "1e12 S/m"   # practically no conductor loss: a TEM line
 [[channel]]
 line = "route"
 length = "4 in"

@@ -191,6 +191,7 @@ def test_stripline_dielectric_loss_matches_tem_formula(capsys, tmp_path: Path) -
 
 def test_chart_is_written(capsys, tmp_path: Path) -> None:
     png = tmp_path / "out" / "cmp.png"
+    png.parent.mkdir()  # the folder of a --plot must exist (README: where files go)
     rc, out, err = run(
         capsys,
         "compare",

@@ -64,7 +64,7 @@ def test_group_delay_of_an_ideal_tem_line(aperture: float) -> None:
 
 def test_group_delay_of_a_matched_stripline_built_by_losslane() -> None:
     # stripline in one constant-Dk dielectric without loss tangent, very high conductivity
-    # (the range's top, 1e9 S/m), smooth copper, ports at the line's own Z0: nearly a
+    # (1e9 S/m), smooth copper, ports at the line's own Z0: nearly a
     # matched lossless TEM line, so tau = length * sqrt(Dk) / c
     lines = (
         '[dielectrics.flat]\ndk = 3.5\ndf = 0.0\nat = "10 GHz"\nmodel = "constant"\n'

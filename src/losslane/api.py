@@ -134,6 +134,7 @@ def section(spec: Mapping, where: str = "line", library: Library | None = None) 
 def _section_spec(kind: str, options: Mapping[str, Any], where: Where) -> dict:
     """Scenario-style keys from the keyword options of a cross-section call (dimensions
     and solver keys pass through; the laminate and the copper are checked and built)."""
+    from losslane.limits import DF, DK
     from losslane.materials.dielectric import Dielectric, make_dielectric
     from losslane.materials.library import foil_from_spec
     from losslane.units import parse_frequency
@@ -155,12 +156,12 @@ def _section_spec(kind: str, options: Mapping[str, Any], where: Where) -> dict:
         )
     if dk is not None:
         df = 0.0 if df is None else df
-        if not dk >= 1.0:
+        if not DK[0] <= dk <= DK[1]:
             raise LossLaneError(
-                f"{k('dk')} = {dk!r}: a relative permittivity is >= 1 "
-                "(air 1, board laminates 2.5..5)"
+                f"{k('dk')} = {dk!r}: a relative permittivity is >= {DK[0]:g} and <= {DK[1]:g} "
+                "(air 1, board laminates 2.5..5; Input limits)"
             )
-        if not 0.0 <= df < 1.0:
+        if not DF[0] <= df < DF[1]:
             raise LossLaneError(
                 f"{k('df')} = {df!r}: a loss tangent lies in 0 <= df < 1 (laminates 0.001..0.03)"
             )
@@ -170,7 +171,13 @@ def _section_spec(kind: str, options: Mapping[str, Any], where: Where) -> dict:
                 f"(e.g. 10GHz); or use {where.setting('dielectric_model', 'constant')}"
             )
         at_hz = parse_frequency(dk_at, k("dk_at")) if dk_at is not None else None
-        spec["dielectric"] = make_dielectric(dk, df, at_hz, model, "dielectric")
+        try:
+            spec["dielectric"] = make_dielectric(dk, df, at_hz, model, "dielectric")
+        except LossLaneError as exc:  # name the options the laminate came from
+            given = [where.setting("dk", dk), where.setting("df", df)]
+            if dk_at is not None:
+                given.append(where.setting("dk_at", dk_at))
+            raise LossLaneError(f"{', '.join(given)}: {exc}") from None
     else:
         if df is not None or dk_at is not None:
             raise LossLaneError(
@@ -213,6 +220,15 @@ def _make_section(kind: str, options: Mapping[str, Any], where: Where, lib: Libr
     from losslane.xsection.factory import section_from_spec
 
     return section_from_spec(_section_spec(kind, options, where), where, lib.dielectric, lib.foil)
+
+
+def _digits(value: Any, key: str) -> Any:
+    """``value`` unchanged if it is not text in foreign digits (``units.check_digits``)."""
+    from losslane.units import check_digits
+
+    if isinstance(value, str):
+        check_digits(value, key)
+    return value
 
 
 def _where(where: Where | None, function: str) -> Where:
@@ -300,7 +316,7 @@ def size(
     from losslane.units import parse_frequency, parse_frequency_list
 
     where = _where(where, "size")
-    z = parse_target(target, where.key("target"))
+    z = parse_target(_digits(target, where.key("target")), where.key("target"))
     f0 = parse_frequency(at, where.key("at"))
     floss = parse_frequency_list(loss_at, where.key("loss_at")) if loss_at else None
     lib = _library(library_files)
@@ -345,9 +361,14 @@ def compare(
 
     where = _where(where, "compare")
     k = where.key
-    z = parse_target(target, k("target"))
+    z = parse_target(_digits(target, k("target")), k("target"))
     freqs = parse_frequency_list(at, k("at"))
     f0 = parse_frequency(size_at, k("size_at"))
+    if not f0 > 0:  # checked here: the sizing it is passed to names its own key, `at`
+        raise LossLaneError(
+            f"{where.setting('size_at', size_at)}: size at a frequency above 0 Hz (e.g. "
+            "1GHz); at DC the impedance carries the full internal inductance"
+        )
     lib = _library(library_files)
     if options.get("dk") is not None or options.get("dielectric") is not None:
         raise LossLaneError(
@@ -386,6 +407,7 @@ def parse_band(value: str | float, key: str = "band") -> tuple[float | None, flo
         if not 0 < value < 1:
             raise LossLaneError(f"{key} = {value!r}: a fraction between 0 and 1 (e.g. 0.1)")
         return float(value), None
+    _digits(value, key)
     m = re.fullmatch(r"\s*(\d+\.?\d*|\.\d+)\s*%\s*", str(value))
     if m:
         frac = float(m.group(1)) / 100.0
@@ -434,7 +456,11 @@ def spread(
 
     where = _where(where, "spread")
     freqs = parse_frequency_list(at, where.key("at"))
-    z = parse_target(target, where.key("target")) if target is not None else None
+    z = (
+        parse_target(_digits(target, where.key("target")), where.key("target"))
+        if target is not None
+        else None
+    )
     frac, ohm = parse_band(band, where.key("band"))
     sec = _make_section(kind, options, where, _library(library_files))
     geo = sec.dimension_values()
@@ -450,6 +476,7 @@ def spread(
         if value is None:
             continue
         nominal = sec.dielectric.dk if key == "dk" else geo.get(key, 0.0)
+        _digits(value, where.tolerance(key))
         tols[key] = parse_tolerance(value, key, nominal, where)
     return spread_(
         sec,
@@ -571,9 +598,10 @@ def build(
 
     from losslane.bands import validate_limits
     from losslane.budget import validate
-    from losslane.errors import LossLaneWarning
+    from losslane.errors import LossLaneWarning, warn
     from losslane.plotspec import check_plots
-    from losslane.report.channel import prepare_out_dir, slug, write_build
+    from losslane.report.channel import prepare_out_dir, write_build
+    from losslane.report.output import MAX_STEM, file_stem
     from losslane.scenario import load_scenario
 
     caught: list = []
@@ -584,7 +612,13 @@ def build(
             points = validate(sc)  # budget frequencies against the sweep, before any work
             validate_limits(sc)  # bands and masks likewise
             check_plots(sc.plots, sc.frequencies())
-            out_dir = prepare_out_dir(out if out is not None else slug(sc.name))
+            stem, cut = file_stem(sc.name)
+            if cut:
+                warn(
+                    f"name is {len(sc.name)} characters long; the output files are named "
+                    f"{stem!r}... (file stems are cut to {MAX_STEM} characters)"
+                )
+            out_dir = prepare_out_dir(out if out is not None else stem)
             result = build_result(sc, points, skip_fit=skip_fit)
     finally:
         # outside the recording block, so the caller's own filters see them again

@@ -633,6 +633,26 @@ def validate(scenario) -> list[CheckPoint]:
     points = check_points(budget, f)
     if budget is not None and (budget.fit_start is not None or budget.fit_stop is not None):
         fit_band(budget, f)
+    # a series capacitor blocks DC: the loss at 0 Hz is unbounded, and so is every value
+    # read between DC and the first sweep point above it (that point itself too: ``_at``
+    # weighs the DC point by 0 there, and 0 x inf is NaN)
+    blocks = [s for s in scenario.channel if s.type == "capacitor"]
+    if blocks and budget is not None and f[0] == 0:
+        first = float(f[1])
+        asked = [(f"{p.key}.at", p.at) for p in points if not p.nyquist]
+        asked += [("[budget].data_rate (its Nyquist frequency)", p.at) for p in points if p.nyquist]
+        # the fit uses the sweep points of its band: only the DC point itself is unbounded
+        tol = 1e-9 * max(float(f[-1]), 1.0)
+        if budget.fit_start is not None and budget.fit_start <= tol:
+            asked.append(("[budget].fit_start", budget.fit_start))
+        for key, at in asked:
+            if at <= first * (1 + 1e-12):
+                raise LossLaneError(
+                    f"{key} = {_ghz(at)}: {blocks[0].where} is a series capacitor (a DC "
+                    "block), so the loss at 0 Hz is unbounded, and so is every value read "
+                    f"between 0 Hz and the first sweep point above it ({_ghz(first)}); "
+                    f"choose a frequency above {_ghz(first)}"
+                )
     return points
 
 

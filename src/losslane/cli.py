@@ -18,6 +18,7 @@ import click
 
 from losslane import api
 from losslane.errors import LossLaneError, LossLaneWarning
+from losslane.report.output import check_output_file
 
 
 @contextlib.contextmanager
@@ -48,6 +49,34 @@ def cli() -> None:
 
 
 # --- options ------------------------------------------------------------------------------
+
+
+class _StrictNumber(click.ParamType):
+    """A plain number option read as the unit parser reads numbers (``units.parse_number``:
+    ASCII digits only, never NaN or infinite); ``whole`` for counts and seeds."""
+
+    def __init__(self, whole: bool = False) -> None:
+        self.whole = whole
+        self.name = "integer" if whole else "number"
+
+    def convert(self, value, param, ctx):
+        import re
+
+        from losslane.units import parse_number
+
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            return value
+        key = param.opts[0] if param is not None and param.opts else "value"
+        if self.whole:
+            if not re.fullmatch(r"\s*[+-]?[0-9]+\s*", str(value)):
+                parse_number(value, key)  # names foreign digits and other non-numbers
+                raise LossLaneError(f"{key} = {value!r}: expected a whole number")
+            return int(value)
+        return parse_number(value, key)
+
+
+_NUMBER = _StrictNumber()
+_WHOLE = _StrictNumber(whole=True)
 
 
 def _options(*decorators):
@@ -97,8 +126,8 @@ def _plot_options(default: str, help: str, no_plot_help: str):
 
 #: the laminate and copper of a cross-section (api.MATERIAL_OPTIONS, as options)
 _material_options = _options(
-    click.option("--dk", type=float, help="relative permittivity of the dielectric"),
-    click.option("--df", type=float, help="loss tangent of the dielectric (default 0)"),
+    click.option("--dk", type=_NUMBER, help="relative permittivity of the dielectric"),
+    click.option("--df", type=_NUMBER, help="loss tangent of the dielectric (default 0)"),
     click.option("--dk-at", metavar="FREQ", help="frequency of the --dk/--df values"),
     click.option(
         "--dielectric-model",
@@ -139,7 +168,7 @@ _material_options = _options(
 #: (metavar or click type, help)
 _FIELD_HELP = {
     "top_width": ("LENGTH", "top width of an etched trace (width is the base)"),
-    "etch_factor": (float, "2 x thickness / (width - top width)"),
+    "etch_factor": (_NUMBER, "2 x thickness / (width - top width)"),
     "coating_thickness": ("LENGTH", "solder-mask thickness over the outer layer"),
     "coating_dielectric": ("NAME", "the coating's dielectric (e.g. solder-mask)"),
     "dielectric_above": ("NAME", "stripline prepreg above the trace, if not --dielectric"),
@@ -222,10 +251,11 @@ def _section(options: dict) -> dict:
 
 
 def _echo(out: dict, as_json: bool, table: Callable[[dict], str]) -> None:
-    """``out`` as one JSON object on stdout, or the text ``table(out)``."""
-    import json
+    """``out`` as one strict JSON object on stdout (no NaN or Infinity: see
+    ``report.strict_json``), or the text ``table(out)``."""
+    from losslane.report.strict_json import dumps
 
-    click.echo(json.dumps(out) if as_json else table(out))
+    click.echo(dumps(out) if as_json else table(out))
 
 
 # --- commands -------------------------------------------------------------------------
@@ -249,6 +279,8 @@ def line_command(kind: str, at: str, as_json: bool, plot: str | None, **options)
     """
     from losslane.report.line import describe, line_table
 
+    if plot is not None:
+        check_output_file(plot, "--plot")  # before any work
     with _warnings_to_stderr():
         result = api.line(kind, at=at, where=api.cli_where("losslane line"), **_section(options))
         if plot is not None:
@@ -361,6 +393,8 @@ def compare_command(
     from losslane.report.design import compare_chart, compare_table
     from losslane.report.line import stackup
 
+    if not no_plot:
+        check_output_file(plot, "--plot")  # before any work
     with _warnings_to_stderr():
         res = api.compare(
             kind,
@@ -408,10 +442,12 @@ def _progress_bar(label: str) -> Iterator[Callable[[int, int], None]]:
     show_default=True,
     help="normal: each +/- tolerance is 3 sigma; uniform: samples fill the +/- interval evenly",
 )
-@click.option("--samples", type=int, default=10000, show_default=True, help="Monte Carlo samples")
+@click.option(
+    "--samples", type=_WHOLE, default=10000, show_default=True, help="Monte Carlo samples"
+)
 @click.option(
     "--seed",
-    type=int,
+    type=_WHOLE,
     default=1,
     show_default=True,
     help="random seed (the same seed gives the same numbers)",
@@ -459,6 +495,8 @@ def spread_command(
     from losslane.report.design import spread_chart, spread_table
     from losslane.report.line import describe
 
+    if not no_plot:
+        check_output_file(plot, "--plot")  # before any work
     tol_keys = [k for k in options if k.endswith("_tol")]
     tolerances = {k[: -len("_tol")]: options.pop(k) for k in tol_keys}
     with _warnings_to_stderr(), _progress_bar("sampling") as progress:
@@ -508,7 +546,7 @@ def materials_command(
 
 
 @cli.command("build")
-@click.argument("scenario", type=click.Path(dir_okay=False))
+@click.argument("scenario", metavar="SCENARIO")  # checked by the scenario reader
 @click.option("--out", "out", metavar="DIR", help="output directory (default: ./<scenario name>)")
 @click.option(
     "--touchstone-version",

@@ -26,10 +26,11 @@ from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.plotspec import PlotOptions, parse_plots
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
-from losslane.spec import check_keys, quantity, suggest, text
+from losslane.spec import check_keys, dimension, quantity, suggest, text
 from losslane.stackup import Stackup, parse_stackup, parse_stackups
 from losslane.timesettings import TimeSettings, parse_time
 from losslane.units import parse_quantity
+from losslane.userfiles import check_readable
 from losslane.via_geometry import DrillVia, drill_via, is_drill_form
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
@@ -220,11 +221,10 @@ def _resolver(what: str, own: Mapping, library: Mapping) -> Callable[[str, str],
 
 def load_scenario(path: str | Path) -> Scenario:
     """Read and validate a scenario file."""
+    from losslane.userfiles import read_text
+
     p = Path(path)
-    if not p.is_file():
-        raise LossLaneError(f"scenario file {str(p)!r} does not exist")
-    text_ = p.read_text(encoding="utf-8")
-    return parse_scenario(text_, base=p.parent, path=p)
+    return parse_scenario(read_text(p, "scenario file"), base=p.parent, path=p)
 
 
 def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None) -> Scenario:
@@ -371,7 +371,12 @@ def _sweep(spec: object) -> Sweep:
         if step <= 0:
             raise LossLaneError(f"{where}.step = {spec['step']!r}: must be > 0 Hz")
         n = (stop - start) / step
-        points = int(np.floor(n + 1e-9)) + 1
+        if not n < MAX_POINTS:  # also an overflow to inf: never converted to int
+            raise LossLaneError(
+                f"{where}.step = {spec['step']!r}: {spec['start']!r}..{spec['stop']!r} in "
+                f"steps of {step:g} Hz is {n + 1:.4g} frequency points, more than the "
+                f"{MAX_POINTS} allowed; use a coarser step"
+            )
         if abs(n - round(n)) > 1e-6 * max(1.0, n):
             raise LossLaneError(
                 f"{where}.step = {spec['step']!r} does not divide the range "
@@ -385,8 +390,9 @@ def _sweep(spec: object) -> Sweep:
             raise LossLaneError(f"{where}.points = {pts!r}: expected a whole number >= 2")
         points, step = pts, None
     if points > MAX_POINTS:
+        key = f"{where}.step = {spec['step']!r}" if step else f"{where}.points = {points}"
         raise LossLaneError(
-            f"{where}: {points} frequency points is more than the "
+            f"{key}: {points} frequency points is more than the "
             f"{MAX_POINTS} allowed; use a coarser step"
         )
     return Sweep(start, stop, step, points)
@@ -499,12 +505,15 @@ def _segment(
             raise LossLaneError(
                 f"{where}.order = {order!r}: valid values are {', '.join(repr(o) for o in ORDERS)}"
             )
+        if "\x00" in fname:
+            raise LossLaneError(f"{w} = {fname!r}: a file name cannot hold a NUL character")
         p = (base / fname).resolve()
-        if not p.is_file():
+        if not p.exists():
             raise LossLaneError(
                 f"{w} = {fname!r}: file {str(p)!r} does not exist (paths are "
                 "relative to the scenario file)"
             )
+        check_readable(p, f"{w} = {fname!r}: touchstone file")  # a directory, a device
         if not re.search(r"\.s\d+p$", p.name, re.IGNORECASE):
             raise LossLaneError(f"{w} = {fname!r}: expected a Touchstone file (.s2p, .s4p)")
         as_is = entry.get("as_is", False)
@@ -587,8 +596,8 @@ def _via_segment(
         required=("barrel", "impedance", "dielectric"),
     )
     vals = {
-        "barrel": quantity(w, body, "barrel", "length", required=True),
-        "stub": quantity(w, body, "stub", "length", default=0.0),
+        "barrel": dimension(w, body, "barrel", required=True),
+        "stub": dimension(w, body, "stub", default=0.0, zero_ok=True),
         "impedance": quantity(w, body, "impedance", "resistance", required=True),
     }
     if vals["barrel"] <= 0 or vals["stub"] < 0 or vals["impedance"] <= 0:

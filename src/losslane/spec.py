@@ -7,7 +7,7 @@ import difflib
 from collections.abc import Iterable, Mapping
 
 from losslane.errors import LossLaneError
-from losslane.units import parse_quantity
+from losslane.units import parse_number, parse_quantity
 
 
 class Where(str):
@@ -98,6 +98,24 @@ def quantity(
     return parse_quantity(table[key], kind, key_name(where, key))
 
 
+def dimension(
+    where: str,
+    table: Mapping,
+    key: str,
+    default: float | None = None,
+    required: bool = False,
+    zero_ok: bool = False,
+) -> float | None:
+    """A length that draws a board (a cross-section, a via, a foil): parsed as ``quantity``
+    and inside ``limits.DIMENSION`` (0 allowed with ``zero_ok``)."""
+    from losslane.limits import check_dimension
+
+    value = quantity(where, table, key, "length", default, required)
+    if value is None or key not in table:
+        return value
+    return check_dimension(value, key_name(where, key), table[key], zero_ok)
+
+
 def number(
     where: str,
     table: Mapping,
@@ -114,14 +132,7 @@ def number(
             raise LossLaneError(f"{where}: missing {key_name(where, key)} (a number)")
         return default
     value = table[key]
-    if isinstance(value, str):
-        try:
-            value = float(value)
-        except ValueError:
-            pass
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise LossLaneError(f"{key_name(where, key)} = {value!r}: expected a plain number")
-    v = float(value)
+    v = parse_number(value, key_name(where, key))  # finite, ASCII digits
     bad = (low is not None and (v <= low if low_open else v < low)) or (
         high is not None and (v >= high if high_open else v > high)
     )

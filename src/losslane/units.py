@@ -8,10 +8,10 @@ accepted forms.
 
 from __future__ import annotations
 
-import math
 import re
 
 from losslane.errors import LossLaneError
+from losslane.limits import check_kind
 
 MIL = 25.4e-6
 INCH = 25.4e-3
@@ -96,8 +96,40 @@ _TABLES: dict[str, dict[str, float]] = {
 # Frequency units are matched without regard to case (nobody means millihertz).
 _CASELESS = {"frequency"}
 
-_NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
+# ASCII digits only: Python's \d and float() also take full-width and other scripts'
+# digits, which a strict parser refuses (``check_digits``); any Unicode space (a no-break
+# space pasted from a document) separates the number from its unit
+_NUMBER = r"[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?"
 _PATTERN = re.compile(rf"^\s*({_NUMBER})\s*(\S.*?)?\s*$")
+
+
+def check_digits(value: str, key: str) -> None:
+    """Refuse digits other than ASCII 0-9 (full-width, Arabic-Indic, ...), naming the
+    character: they look like numbers but are not what a data sheet or a script writes."""
+    import unicodedata
+
+    for ch in value:
+        if not ch.isascii() and unicodedata.category(ch) == "Nd":
+            raise LossLaneError(
+                f"{key} = {value!r}: contains the digit {ch!r} "
+                f"(U+{ord(ch):04X} {unicodedata.name(ch, 'digit')}); write numbers with the "
+                "ASCII digits 0-9"
+            )
+
+
+def parse_number(value: object, key: str = "value") -> float:
+    """A plain number (no unit): an int or float, or text such as "3.7" or "1e-3" in ASCII
+    digits; never NaN or infinite. ``key`` names the input in messages."""
+    if isinstance(value, bool) or not isinstance(value, (str, int, float)):
+        raise LossLaneError(f"{key} = {value!r}: expected a plain number")
+    if isinstance(value, str):
+        check_digits(value, key)
+        if not re.fullmatch(rf"\s*{_NUMBER}\s*", value):
+            raise LossLaneError(f"{key} = {value!r}: expected a plain number such as 3.7 or 1e-3")
+    v = float(value)
+    if v != v or v in (float("inf"), float("-inf")):
+        raise LossLaneError(f"{key} = {value!r}: not a finite number")
+    return v
 
 
 def accepted_units(kind: str) -> str:
@@ -141,6 +173,7 @@ def parse_quantity(value: object, kind: str, key: str = "value") -> float:
         raise LossLaneError(f"{key} = {value!r}: expected a {kind} as text; {hint}")
     if isinstance(value, (int, float)):
         raise LossLaneError(f"{key} = {value!r}: a bare number is not a {kind}; {hint}")
+    check_digits(value, key)
     m = _PATTERN.match(value)
     if not m:
         raise LossLaneError(f"{key} = {value!r}: not a number with a unit; {hint}")
@@ -153,10 +186,7 @@ def parse_quantity(value: object, kind: str, key: str = "value") -> float:
         factor = table.get(unit.lower())
     if factor is None:
         raise LossLaneError(f"{key} = {value!r}: unknown {kind} unit {unit!r}; {hint}")
-    result = float(number) * factor
-    if not math.isfinite(result):
-        raise LossLaneError(f"{key} = {value!r}: not a finite {kind}")
-    return result
+    return check_kind(float(number) * factor, kind, key, value)
 
 
 def parse_length(value: object, key: str = "length") -> float:
@@ -190,9 +220,9 @@ def parse_decibel(value: object, key: str = "value") -> float:
 def parse_conductivity(value: object, key: str = "conductivity") -> float:
     """Conductivity with a unit, or a bare number taken as S/m (the only SI unit in use)."""
     if isinstance(value, (int, float)) and not isinstance(value, bool):
-        return float(value)
+        return check_kind(float(value), "conductivity", key, value)
     if isinstance(value, str) and re.fullmatch(rf"\s*{_NUMBER}\s*", value):
-        return float(value)
+        return check_kind(float(value), "conductivity", key, value)
     return parse_quantity(value, "conductivity", key)
 
 

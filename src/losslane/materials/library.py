@@ -10,6 +10,7 @@ from importlib import resources
 from pathlib import Path
 
 from losslane.errors import LossLaneError
+from losslane.limits import DF, DIMENSION, DK
 from losslane.materials.dielectric import Dielectric, make_dielectric
 from losslane.materials.roughness import (
     FinishLayer,
@@ -20,9 +21,15 @@ from losslane.materials.roughness import (
     Roughness,
     Smooth,
 )
-from losslane.spec import check_keys, number, quantity, suggest, text
+from losslane.spec import check_keys, dimension, number, quantity, suggest, text
 
 DIELECTRIC_KEYS = ("dk", "df", "at", "model", "class", "note")
+#: upper bounds of a foil's plain numbers (far above typical values, finite)
+MAX_RATIO = 1e3  # Huray surface ratio (typical 0.5..4) and matte ratio (1..2)
+MAX_COUNT = 1e12  # spheres per tile
+MAX_MU_R = 1e5  # relative permeability of a plating layer (nickel: a few hundred)
+SPHERE_EXAMPLE = '{ radius = "0.5 um", surface_ratio = 2.0 }'
+LAYER_EXAMPLE = '{ name = "nickel", conductivity = "1.4e7 S/m", thickness = "3 um" }'
 FOIL_MODELS = ("none", "hammerstad", "groiss", "huray", "graded")
 FOIL_KEYS = (
     "model",
@@ -41,8 +48,8 @@ FOIL_KEYS = (
 
 def dielectric_from_spec(name: str, spec: Mapping, where: str) -> Dielectric:
     check_keys(where, spec, DIELECTRIC_KEYS, required=("dk",))
-    dk = number(where, spec, "dk", required=True, low=1.0)
-    df = number(where, spec, "df", default=0.0, low=0.0, high=1.0, high_open=True)
+    dk = number(where, spec, "dk", required=True, low=DK[0], high=DK[1])
+    df = number(where, spec, "df", default=0.0, low=DF[0], high=DF[1], high_open=True)
     model = text(where, spec, "model", ("wideband-debye", "constant"), "wideband-debye")
     at = quantity(where, spec, "at", "frequency")
     if model == "wideband-debye" and at is None:
@@ -79,13 +86,13 @@ def foil_from_spec(name: str, spec: Mapping, where: str) -> Roughness:
     if model == "none":
         return Smooth()
     if model in ("hammerstad", "groiss"):
-        rq = quantity(where, spec, "rq", "length", required=True)
+        rq = dimension(where, spec, "rq", required=True)
         return Hammerstad(rq) if model == "hammerstad" else Groiss(rq)
     if model == "huray":
-        matte = number(where, spec, "matte_ratio", default=1.0, low=1.0)
+        matte = number(where, spec, "matte_ratio", default=1.0, low=1.0, high=MAX_RATIO)
         if "spheres" in spec:
             spheres = []
-            for i, item in enumerate(spec["spheres"]):
+            for i, item in enumerate(_entries(where, spec, "spheres", SPHERE_EXAMPLE)):
                 w = f"{where}.spheres[{i}]"
                 if not isinstance(item, Mapping):
                     raise LossLaneError(
@@ -96,14 +103,14 @@ def foil_from_spec(name: str, spec: Mapping, where: str) -> Roughness:
                 )
                 spheres.append(
                     (
-                        quantity(w, item, "radius", "length", required=True),
-                        number(w, item, "surface_ratio", required=True, low=0.0),
+                        dimension(w, item, "radius", required=True),
+                        number(w, item, "surface_ratio", required=True, low=0.0, high=MAX_RATIO),
                     )
                 )
             return Huray(tuple(spheres), matte)
-        radius = quantity(where, spec, "radius", "length", required=True)
+        radius = dimension(where, spec, "radius", required=True)
         if "count" in spec:
-            count = number(where, spec, "count", required=True, low=0.0)
+            count = number(where, spec, "count", required=True, low=0.0, high=MAX_COUNT)
             tile = spec.get("tile_area")
             if not isinstance(tile, str):
                 raise LossLaneError(
@@ -111,11 +118,11 @@ def foil_from_spec(name: str, spec: Mapping, where: str) -> Roughness:
                     "that holds 'count' spheres, e.g. \"100 um^2\""
                 )
             return Huray.from_counts(radius, count, parse_area(tile, f"{where}.tile_area"), matte)
-        ratio = number(where, spec, "surface_ratio", required=True, low=0.0)
+        ratio = number(where, spec, "surface_ratio", required=True, low=0.0, high=MAX_RATIO)
         return Huray.from_surface_ratio(radius, ratio, matte)
-    rq = quantity(where, spec, "rq", "length", default=0.0)
+    rq = dimension(where, spec, "rq", default=0.0, zero_ok=True)
     layers = []
-    for i, item in enumerate(spec.get("layers", [])):
+    for i, item in enumerate(_entries(where, spec, "layers", LAYER_EXAMPLE)):
         w = f"{where}.layers[{i}]"
         if not isinstance(item, Mapping):
             raise LossLaneError(f"{w}: expected a table {{name, conductivity, thickness, mu_r}}}}")
@@ -130,35 +137,67 @@ def foil_from_spec(name: str, spec: Mapping, where: str) -> Roughness:
         layers.append(
             FinishLayer(
                 sigma=parse_conductivity(item["conductivity"], f"{w}.conductivity"),
-                thickness=quantity(w, item, "thickness", "length", required=True),
-                mu_r=number(w, item, "mu_r", default=1.0, low=1.0),
-                name=str(item.get("name", f"layer {i + 1}")),
+                thickness=dimension(w, item, "thickness", required=True),
+                mu_r=number(w, item, "mu_r", default=1.0, low=1.0, high=MAX_MU_R),
+                name=_layer_name(w, item, i),
             )
         )
-    outside = number(where, spec, "outside_dk", default=1.0, low=1.0)
+    outside = number(where, spec, "outside_dk", default=1.0, low=DK[0], high=DK[1])
     return Graded(rq, tuple(layers), outside)
 
 
+def _entries(where: str, spec: Mapping, key: str, example: str) -> list:
+    """``spec[key]``, which must be a list of tables (TOML array of inline tables)."""
+    value = spec.get(key, [])
+    if not isinstance(value, list):
+        raise LossLaneError(
+            f"{where}.{key} = {value!r}: expected a list of tables, e.g. {key} = [{example}]"
+        )
+    return value
+
+
+def _layer_name(where: str, item: Mapping, i: int) -> str:
+    name = item.get("name", f"layer {i + 1}")
+    if not isinstance(name, str):
+        raise LossLaneError(f"{where}.name = {name!r}: expected text")
+    return name
+
+
 def parse_area(value: str, key: str) -> float:
-    """An area written as a length unit squared: "100 um^2", "1e-10 m^2"."""
+    """An area written as a length unit squared: "100 um^2", "1e-10 m^2"; between
+    (1 nm)^2 and (1 m)^2 (the board-dimension range squared)."""
     import re
 
-    from losslane.units import parse_length
+    from losslane.units import parse_length, parse_number
 
-    m = re.match(r"^\s*([0-9.eE+-]+)\s*([^\s^²]+)\s*(\^2|²)\s*$", value)
+    m = re.match(r"^\s*(\S+?)\s*([^\s^²0-9.+-][^\s^²]*)\s*(\^2|²)\s*$", value)
     if not m:
         raise LossLaneError(f'{key} = {value!r}: expected an area such as "100 um^2"')
+    try:
+        number = parse_number(m.group(1), key)
+    except LossLaneError:
+        raise LossLaneError(
+            f"{key} = {value!r}: {m.group(1)!r} is not a number; expected an area such as "
+            '"100 um^2"'
+        ) from None
     unit = parse_length(f"1 {m.group(2)}", key)
-    return float(m.group(1)) * unit * unit
+    area = number * unit * unit
+    lo, hi = DIMENSION
+    if not lo * lo <= area <= hi * hi:
+        raise LossLaneError(
+            f"{key} = {value!r} ({area:.6g} m^2): an area is between (1 nm)^2 and (1 m)^2"
+        )
+    return area
 
 
 def read_toml(path: Path, what: str) -> dict:
     """The parsed TOML file at ``path``; a LossLaneError naming ``what`` and the path if it
     is missing or not valid TOML."""
+    from losslane.userfiles import read_text
+
+    source = read_text(path, what)
     try:
-        return tomllib.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise LossLaneError(f"{what} {str(path)!r} does not exist") from None
+        return tomllib.loads(source)
     except tomllib.TOMLDecodeError as exc:
         raise LossLaneError(f"{what} {str(path)!r}: not valid TOML ({exc})") from None
 
@@ -201,15 +240,28 @@ class Library:
             raise LossLaneError(f"{source}: [stackups] expects named tables, e.g. [stackups.host]")
         for name, spec in named.items():
             self.stackups[name] = (spec, source)
-        for name, spec in data.get("dielectrics", {}).items():
+        for name, spec in _named_tables(data, "dielectrics", source).items():
             where = f"{source} [dielectrics.{name}]"
             self.dielectrics[name] = dielectric_from_spec(name, spec, where)
             self.notes[f"dielectric:{name}"] = str(spec.get("note", ""))
             self.classes[name] = str(spec.get("class", ""))
-        for name, spec in data.get("foils", {}).items():
+        for name, spec in _named_tables(data, "foils", source).items():
             where = f"{source} [foils.{name}]"
             self.foils[name] = foil_from_spec(name, spec, where)
             self.notes[f"foil:{name}"] = str(spec.get("note", ""))
+
+
+def _named_tables(data: Mapping, key: str, source: str) -> dict[str, Mapping]:
+    """``data[key]``: a table of named tables ([dielectrics.NAME], [foils.NAME])."""
+    value = data.get(key, {})
+    if not isinstance(value, Mapping):
+        raise LossLaneError(
+            f"{source}: {key} = {value!r}: expected a table of named entries, e.g. [{key}.NAME]"
+        )
+    for name, spec in value.items():
+        if not isinstance(spec, Mapping):
+            raise LossLaneError(f"{source} [{key}.{name}]: expected a table of keys, got {spec!r}")
+    return dict(value)
 
 
 def load_library(extra: Iterable[Path | str] = ()) -> Library:

@@ -57,6 +57,16 @@ def printed_digits(text: str) -> int:
     return int(np.median(counts))
 
 
+_METRICS = (
+    "passivity",
+    "reciprocity",
+    "causality",
+    "passivity_level",
+    "reciprocity_level",
+    "causality_level",
+)
+
+
 @dataclass(frozen=True)
 class ImportCheck:
     """The check of one imported file: its quality metrics (``quality``, the IEEE 370
@@ -82,7 +92,7 @@ class ImportCheck:
         return self.action != "as-is"
 
     def to_json(self) -> dict:
-        q = self.quality.to_json()
+        q = self.quality.to_json() if self.quality is not None else dict.fromkeys(_METRICS)
         return {
             "file": str(self.path),
             "passivity": q["passivity"],
@@ -103,11 +113,14 @@ class ImportCheck:
     def summary(self) -> str:
         """One line for the terminal and the report."""
         q = self.quality
-        head = (
-            f"{self.path.name}: IEEE 370 passivity {q.passivity:.2f} ({q.passivity_level}), "
-            f"reciprocity {q.reciprocity:.2f} ({q.reciprocity_level}), causality "
-            f"{q.causality:.1f} ({q.causality_level})"
-        )
+        if q is None:
+            head = f"{self.path.name}: too few points for the IEEE 370 metrics"
+        else:
+            head = (
+                f"{self.path.name}: IEEE 370 passivity {q.passivity:.2f} ({q.passivity_level}), "
+                f"reciprocity {q.reciprocity:.2f} ({q.reciprocity_level}), causality "
+                f"{q.causality:.1f} ({q.causality_level})"
+            )
         if self.action == "repaired":
             return (
                 head
@@ -156,7 +169,8 @@ def check_import(
     allow_p = TOLERANCE + nports * rounding
     allow_r = TOLERANCE + 2.0 * rounding * float(np.max(np.abs(s)))
     p_excess, p_hz, r_err, r_hz = _violations(f, s)
-    report = quality(f, s)
+    # the metrics need two frequency steps (causality); a 2-point file is still checked
+    report = quality(f, s) if f.size >= 3 else None
 
     def made(action: str, size: float = 0.0) -> ImportCheck:
         return ImportCheck(

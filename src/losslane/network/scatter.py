@@ -26,8 +26,17 @@ from losslane.network.scaled import stack_matmul
 
 #: the smallest |S21| kept: 6000 dB, the floor of every reported loss
 TRANSMISSION_FLOOR = 1e-300
+#: that floor in dB: a loss this large is unbounded (behind a DC block at 0 Hz, ...)
+LOSS_FLOOR_DB = 6000.0
 
-__all__ = ["TRANSMISSION_FLOOR", "loss_db", "main_transmission", "renormalize", "star"]
+__all__ = [
+    "LOSS_FLOOR_DB",
+    "TRANSMISSION_FLOOR",
+    "loss_db",
+    "main_transmission",
+    "renormalize",
+    "star",
+]
 
 
 def _inverse_stack(m: np.ndarray) -> np.ndarray:

@@ -17,6 +17,7 @@ read and written through scikit-rf.
 from __future__ import annotations
 
 import os
+import warnings
 from collections.abc import Iterable
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -47,18 +48,68 @@ def _version(version: int | str) -> str:
 
 
 def read_touchstone(path: str | os.PathLike) -> skrf.Network:
-    """A Touchstone file (version 1 or 2) as a ``skrf.Network``."""
+    """A Touchstone file (version 1 or 2) as a ``skrf.Network``.
+
+    Reading checks (``touchstone_scan``, then the values scikit-rf read): finite numbers,
+    reference impedances > 0, strictly increasing frequencies, rows that fit the port
+    count, a version-2 ``[Number of Frequencies]`` that matches the rows, and every S
+    entry of magnitude at most ``limits.MAX_S_MAGNITUDE``. A failure is a LossLaneError
+    naming the file and, where it can, the line.
+    """
     import skrf
 
+    from losslane.network.touchstone_scan import scan_touchstone
+    from losslane.userfiles import read_bytes
+
     p = Path(path)
-    if not p.is_file():
-        raise LossLaneError(f"touchstone file '{p}' does not exist (or is not a file)")
+    # Touchstone is ASCII; Latin-1 reads any byte a comment may hold
+    scan = scan_touchstone(read_bytes(p, "touchstone file").decode("latin-1"), p)
     try:
-        return skrf.Network(str(p))
+        # absurd values overflow in scikit-rf's conversions; _check_values names them
+        with warnings.catch_warnings(), np.errstate(all="ignore"):
+            warnings.simplefilter("ignore", RuntimeWarning)
+            net = skrf.Network(str(p))
     except Exception as exc:  # skrf raises many types on malformed files
         raise LossLaneError(
             f"touchstone file '{p}' could not be read as Touchstone 1.x/2.x: {exc}"
         ) from exc
+    _check_values(net, p, scan)
+    return net
+
+
+def _check_values(net: skrf.Network, path: Path, scan) -> None:
+    """The values scikit-rf read: S finite and bounded, references finite and > 0."""
+    from losslane.limits import MAX_S_MAGNITUDE
+
+    def where(i: int) -> str:
+        line = scan.line_of(i) if scan is not None else None
+        return f", line {line}" if line is not None else ""
+
+    z0 = np.asarray(net.z0)
+    bad_z = ~np.isfinite(z0) | ~(z0.real > 0)
+    if np.any(bad_z):
+        i = int(np.argwhere(bad_z)[0][0])
+        raise LossLaneError(
+            f"touchstone file '{path}'{where(i)}: reference impedance "
+            f"{complex(z0[np.nonzero(bad_z)][0]):g} ohm: a reference impedance must be finite "
+            "and > 0 ohm"
+        )
+    s = np.asarray(net.s)
+    with np.errstate(invalid="ignore", over="ignore"):
+        mag = np.abs(s)
+    bad = ~np.isfinite(mag) | (mag > MAX_S_MAGNITUDE)
+    if np.any(bad):
+        i, a, b = (int(x) for x in np.argwhere(bad)[0])
+        value = mag[i, a, b]
+        what = (
+            "is not finite (NaN or infinite after conversion to S)"
+            if not np.isfinite(value)
+            else f"has magnitude {value:.6g}, above the accepted {MAX_S_MAGNITUDE:g} "
+            "(a passive model has |S| <= 1; Input limits)"
+        )
+        raise LossLaneError(
+            f"touchstone file '{path}'{where(i)}: S{a + 1}{b + 1} at {float(net.f[i]):g} Hz {what}"
+        )
 
 
 def header_lines(
@@ -83,7 +134,7 @@ def header_lines(
     lines.append(f"reference impedance: {ref} (power waves)")
     lines.append("frequencies in Hz; parameters S")
     lines.extend(str(c) for c in comments)
-    return [ln.replace("\n", " ") for ln in lines]
+    return [ln.replace("\r", " ").replace("\n", " ") for ln in lines]
 
 
 def touchstone_text(

@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import csv
 import io
-import json
 from pathlib import Path
 
 import numpy as np
@@ -24,7 +23,9 @@ from losslane.report.charts import (
     finish,
     label_vline,
     pyplot,
+    user_text,
 )
+from losslane.report.strict_json import dumps
 from losslane.report.text import table, verdict
 
 
@@ -455,7 +456,7 @@ def write_budget_files(
         p.write_text(budget_csv(budget), encoding="utf-8")
         files.append(p)
     p = stage / f"{stem}-budget.json"
-    p.write_text(json.dumps(budget_document(result, budget, fit), indent=2), encoding="utf-8")
+    p.write_text(dumps(budget_document(result, budget, fit), indent=2), encoding="utf-8")
     files.append(p)
     charts: list[tuple[Path, str]] = []
     if plots:
@@ -501,6 +502,7 @@ REFLECTION_COLOUR = "#c0392b"
 TOTAL_COLOUR = "#333333"
 
 
+@user_text
 def budget_chart(path: Path, budget, title: str) -> Path:
     """A horizontal waterfall per check point: each segment's own loss stacked from the
     input, then the reflections row (red; negative when reflections cancel), then the
@@ -573,6 +575,7 @@ def budget_chart(path: Path, budget, title: str) -> Path:
     return finish(plt, fig, path, left=min(left, 0.5 * width), right=0.35, top=0.75, wspace=0.12)
 
 
+@user_text
 def ild_plot(
     path: Path,
     f: np.ndarray,

@@ -18,32 +18,25 @@ import numpy as np
 from losslane import __version__
 from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
+from losslane.network.scatter import LOSS_FLOOR_DB
 from losslane.report.budget import budget_text, write_budget_files
 from losslane.report.charts import Curve, Marker, db_plot, db_text, to_db
 from losslane.report.models import models_text
+from losslane.report.output import check_output_dir, check_targets, file_stem
 from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
 from losslane.report.timeviews import build_summary_lines, build_view_files
 
 
 def slug(name: str) -> str:
-    s = re.sub(r"[^A-Za-z0-9]+", "-", name.strip().lower()).strip("-")
-    return s or "channel"
+    """The file stem of a scenario ``name`` (``report.output.file_stem``)."""
+    return file_stem(name)[0]
 
 
 def prepare_out_dir(out: Path | str) -> Path:
-    """Check the output directory is usable before any work is done."""
-    p = Path(out)
-    if p.exists() and not p.is_dir():
-        raise LossLaneError(
-            f"--out {str(p)!r} is an existing file, not a directory; choose a directory name"
-        )
-    parent = p.resolve().parent
-    if not parent.exists():
-        raise LossLaneError(
-            f"--out {str(p)!r}: the parent directory {str(parent)!r} does not exist"
-        )
-    return p
+    """Check the output directory is usable before any work is done (the rule of
+    ``report.output``)."""
+    return check_output_dir(out, "--out")
 
 
 def summary_frequencies(result: ChannelResult) -> list[float]:
@@ -58,7 +51,10 @@ def summary_frequencies(result: ChannelResult) -> list[float]:
     if not out:
         top = f[-1]
         out = [top * k / 4 for k in (1, 2, 3, 4)]
-    return sorted({x for x in out if f[0] <= x <= f[-1]})
+    low = f[0]
+    if f.size > 1 and not result.insertion_loss_db[0] < LOSS_FLOOR_DB - 1.0:
+        low = f[1]  # a DC block: nothing between DC and the next point is read from DC
+    return sorted({x for x in out if low <= x <= f[-1]})
 
 
 def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
@@ -229,8 +225,15 @@ def write_build(
 
     out = Path(out_dir)
     stem = slug(result.scenario.name)
-    # staged beside the output directory, so nothing appears in it until all is written
-    stage = Path(tempfile.mkdtemp(prefix=".losslane-build-", dir=out.resolve().parent))
+    # staged in a hidden directory inside an existing output directory, else beside it,
+    # so nothing appears until all is written
+    home = out if out.is_dir() else out.resolve().parent
+    try:
+        stage = Path(tempfile.mkdtemp(prefix=".losslane-build-", dir=home))
+    except OSError as exc:
+        raise LossLaneError(
+            f"--out {str(out)!r}: cannot write in {str(home)!r} ({exc.strerror or exc})"
+        ) from None
     try:
         files = [
             write_touchstone(
@@ -276,6 +279,7 @@ def write_build(
             encoding="utf-8",
         )
         files.append(page)
+        check_targets(out, [p.name for p in files])
         final = []
         out.mkdir(exist_ok=True)
         for p in files:
@@ -283,6 +287,11 @@ def write_build(
             p.replace(target)
             final.append(target)
         return final
+    except OSError as exc:
+        where = exc.filename or out
+        raise LossLaneError(
+            f"--out {str(out)!r}: writing {str(where)!r} failed ({exc.strerror or exc})"
+        ) from None
     finally:
         shutil.rmtree(stage, ignore_errors=True)
 

@@ -10,7 +10,8 @@ importing this module costs nothing.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+import functools
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -57,6 +58,22 @@ class LimitLine:
     label: str
     f_hz: np.ndarray
     db: np.ndarray
+
+
+def user_text(chart: Callable) -> Callable:
+    """Decorate a chart function so that its texts are shown as written: titles, legends
+    and notes carry user names (a scenario, a segment, a material), and a ``$`` in them
+    must not start matplotlib's math mode, where unbalanced markup is an error. (The
+    setting holds while the chart is drawn; matplotlib is imported only then.)"""
+
+    @functools.wraps(chart)
+    def draw(*args, **kwargs):
+        import matplotlib
+
+        with matplotlib.rc_context({"text.parse_math": False}):
+            return chart(*args, **kwargs)
+
+    return draw
 
 
 def pyplot():
@@ -301,6 +318,7 @@ def finish(plt, fig, path: Path, **margins: float) -> Path:
         plt.close(fig)
 
 
+@user_text
 def db_plot(
     path: Path,
     f: np.ndarray,

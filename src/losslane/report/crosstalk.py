@@ -12,7 +12,7 @@ from pathlib import Path
 
 import numpy as np
 
-from losslane.report.charts import Curve, Marker, db_plot, pyplot, save_figure, to_db
+from losslane.report.charts import Curve, Marker, db_plot, pyplot, save_figure, to_db, user_text
 from losslane.report.text import table, verdict
 
 __all__ = [
@@ -113,6 +113,7 @@ def xtalk_chart(path: Path, xt, title: str) -> Path:
     return db_plot(path, xt.f, curves, title, "dB", markers, floor_db=-140)
 
 
+@user_text
 def step_chart(path: Path, xt, title: str) -> Path:
     """The victim's waveforms at its receiver (% of the aggressor's step): NEXT for a step
     on each aggressor at the same end, FEXT for a step at the other end."""

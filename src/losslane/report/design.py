@@ -13,7 +13,7 @@ from pathlib import Path
 
 import numpy as np
 
-from losslane.report.charts import pyplot, save_figure
+from losslane.report.charts import pyplot, save_figure, user_text
 from losslane.report.line import stackup
 from losslane.report.text import CAUTION, table
 from losslane.units import MIL
@@ -261,6 +261,7 @@ def _left(headers: list[str], rows: list[list[str]]) -> str:
 CAPTION = "estimates from published models; confirm against fabricated test coupons"
 
 
+@user_text
 def loss_comparison_chart(
     curves: Sequence[tuple[str, np.ndarray, np.ndarray]],
     path: Path | str,
@@ -309,6 +310,7 @@ def loss_comparison_chart(
         plt.close(fig)
 
 
+@user_text
 def spread_histograms(
     impedance: np.ndarray,
     impedance_label: str,
@@ -346,11 +348,11 @@ def spread_histograms(
 
 
 def _chart_path(path: Path | str) -> Path:
-    """A chart's path, its folder created when missing (the charts of compare and
-    spread go where the user names them)."""
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    return path
+    """A chart's path, checked by the one rule for outputs (``report.output``: its folder
+    must exist and be writable; no folder is created)."""
+    from losslane.report.output import check_output_file
+
+    return check_output_file(path, "--plot")
 
 
 def compare_chart(result, path: Path | str) -> Path:

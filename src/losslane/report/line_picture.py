@@ -10,13 +10,15 @@ from pathlib import Path
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.report.charts import save_figure
+from losslane.report.charts import save_figure, user_text
+from losslane.report.output import check_output_file
 from losslane.units import MIL
 
 _FORMATS = (".png", ".svg", ".pdf")
 _COPPER = "#b87333"
 
 
+@user_text
 def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
     """Draw ``section`` (a FieldSection) to ``path`` (.png, .svg or .pdf), written to a
     temporary name first and renamed, so a failure leaves no half-written file.
@@ -35,8 +37,7 @@ def plot_section(section, path: str | Path, key: str = "--plot") -> Path:
         )
     if not isinstance(section, FieldSection):
         raise LossLaneError(f"{key} needs the field solver (--solver field)")
-    if not path.parent.exists():
-        raise LossLaneError(f"{key} {str(path)!r}: the folder {str(path.parent)!r} does not exist")
+    check_output_file(path, key)
 
     import matplotlib
 

@@ -19,7 +19,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from losslane.report.charts import pyplot, save_figure
+from losslane.report.charts import pyplot, save_figure, user_text
 from losslane.report.text import table
 
 if TYPE_CHECKING:
@@ -293,6 +293,7 @@ def _limits(y: np.ndarray, keep: np.ndarray) -> tuple[float, float]:
     return lo - 0.08 * span, hi + 0.12 * span
 
 
+@user_text
 def _extract_chart(ext, path: Path, y, u, ylabel: str, title: str, at_key: str) -> Path:
     plt = pyplot()
     fig, ax = plt.subplots(figsize=(10.5, 5.2), dpi=110)
@@ -379,6 +380,7 @@ def extract_charts(ext: LineExtraction, directory: Path) -> list[Path]:
     ]
 
 
+@user_text
 def _fit_chart(
     fit, path: Path, measured, model, ylabel: str, dlabel: str, title: str, subtitle: str
 ) -> Path:

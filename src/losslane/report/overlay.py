@@ -13,7 +13,7 @@ from html import escape
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from losslane.report.charts import Curve, Marker, label_vline, pyplot, save_figure
+from losslane.report.charts import Curve, Marker, label_vline, pyplot, save_figure, user_text
 from losslane.report.text import table
 
 if TYPE_CHECKING:
@@ -74,6 +74,7 @@ def measured_rl_curves(overlay: MeasuredOverlay | None) -> list[Curve]:
     ]
 
 
+@user_text
 def difference_chart(
     overlay: MeasuredOverlay, path: Path, title: str, markers: Sequence[Marker] = ()
 ) -> Path:

@@ -35,6 +35,7 @@ from losslane.report.charts import (
     pyplot,
     stamp,
     title,
+    user_text,
 )
 
 #: the widest band, as a share of its centre frequency, that the charts focus on by themselves
@@ -105,6 +106,7 @@ def _mode(result) -> str:
     return "" if result.nports == 2 else " (differential mode)"
 
 
+@user_text
 def focus_chart(path: Path, result, focus: Focus) -> Path:
     """Two panels over the focus: the insertion loss (axis from ``[plots] loss_range`` or
     zoomed to what is inside) and the return loss at both ends, with every limit."""
@@ -159,6 +161,7 @@ def _marks(ax, result, lo: float, hi: float) -> None:
         label_vline(ax, x / 1e9, text)
 
 
+@user_text
 def phase_delay_chart(path: Path, result, focus: Focus | None) -> Path:
     """S21's unwrapped phase and its group delay over the focus (or the sweep above DC),
     the aperture stated."""
@@ -215,6 +218,7 @@ def vswr_of_return_loss(rl_db) -> np.ndarray:
     return vswr(g)
 
 
+@user_text
 def vswr_chart(path: Path, result, focus: Focus | None) -> Path:
     """VSWR at port 1 and port 2 over the focus (or the sweep above DC), with the
     return-loss limits as VSWR limits."""
@@ -283,6 +287,7 @@ def vswr_chart(path: Path, result, focus: Focus | None) -> Path:
     return finish(plt, fig, path, right=room, top=0.2 + 0.22 * n)
 
 
+@user_text
 def smith_chart(path: Path, result, focus: Focus | None) -> Path:
     """S11 and S22 on a Smith chart (scikit-rf's), over the focus (or the sweep above DC);
     the first and last frequency marked."""

@@ -8,7 +8,7 @@ from pathlib import Path
 
 import numpy as np
 
-from losslane.report.charts import pyplot, save_figure
+from losslane.report.charts import pyplot, save_figure, user_text
 from losslane.report.text import CAUTION, table
 
 
@@ -91,6 +91,7 @@ def sweep_text(result) -> str:
     return "\n".join(lines)
 
 
+@user_text
 def sweep_charts(result, stem: Path) -> list[Path]:
     """A result against one varied parameter grouped by another (the plan's ``chart``, or
     the rank column against the first varied parameter), and for random sweeps a

@@ -20,6 +20,7 @@ from pathlib import Path
 
 import numpy as np
 
+from losslane.report.charts import user_text
 from losslane.report.text import table
 
 #: how a profile's features read (the legend of the text and the page)
@@ -268,6 +269,7 @@ def _scale(k: float):
     return (lambda x: x * k), (lambda y: y / k)
 
 
+@user_text
 def profile_chart(path: Path | str, insp, title: str, modes: tuple[str, ...] | None = None) -> Path:
     """The impedance profiles against the round-trip time (ns), single-ended ports and the
     differential pairs in separate panels (only ``modes``, if given), features marked; a
@@ -301,6 +303,7 @@ def profile_chart(path: Path | str, insp, title: str, modes: tuple[str, ...] | N
     return _save(plt, fig, Path(path))
 
 
+@user_text
 def step_chart(path: Path | str, insp, title: str) -> Path:
     """The step responses of the through paths, their 50 % delays marked."""
     plt, fig, (ax,) = _figure()
@@ -316,6 +319,7 @@ def step_chart(path: Path | str, insp, title: str) -> Path:
     return _save(plt, fig, Path(path))
 
 
+@user_text
 def pulse_chart(path: Path | str, insp, title: str) -> Path:
     """The pulse response against unit intervals from its main cursor, cursors marked."""
     p = insp.time.pulse

@@ -250,6 +250,7 @@ class CrossSection:
         """The dimensions (metres) of a user's spec: each key of ``dimensions`` as a length
         (> 0; a thickness >= 0). A kind with other kinds of keys (a list of traces, say)
         overrides this; the factory checks the keys against ``spec_keys`` first."""
+        from losslane.limits import check_dimension
         from losslane.spec import key_name, quantity
 
         out: dict[str, float] = {}
@@ -261,6 +262,7 @@ class CrossSection:
                 raise LossLaneError(
                     f"{key_name(where, key)} = {spec[key]!r}: a {cls.kind} needs {key} {bound}"
                 )
+            check_dimension(out[key], key_name(where, key), spec[key], key in MAY_BE_ZERO)
         return out
 
     @classmethod

@@ -11,7 +11,7 @@ from losslane.errors import LossLaneError
 from losslane.materials.conductor import Conductor
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness
-from losslane.spec import Where, check_keys, key_name, quantity, text
+from losslane.spec import Where, check_keys, dimension, key_name, text
 from losslane.units import OZ_COPPER, parse_conductivity
 from losslane.xsection import registry
 from losslane.xsection.base import CrossSection, Metal
@@ -82,7 +82,21 @@ def section_from_spec(
         return field_section(
             cls, geometry, d, metal, _field_dielectrics(spec, where, dielectric), where
         )
-    return cls(**geometry, dielectric=d, metal=metal)
+    try:
+        return cls(**geometry, dielectric=d, metal=metal)
+    except LossLaneError as exc:  # the model's own refusal: say which section it is
+        raise LossLaneError(_located(str(exc), where, cls.dimensions)) from None
+
+
+def _located(message: str, where: str, keys: tuple[str, ...]) -> str:
+    """A model's message prefixed with ``where``; on the command line its ``key = value``
+    phrases name the options (``--thickness = ...``)."""
+    import re
+
+    if isinstance(where, Where) and where.cli and keys:
+        pattern = r"\b(" + "|".join(map(re.escape, keys)) + r")\b(?= = )"
+        message = re.sub(pattern, lambda m: where.key(m.group(1)), message)
+    return f"{where}: {message}" if where else message
 
 
 def metal_from_spec(spec: Mapping, where: str, foil: Callable[[str, str], Roughness]) -> Metal:
@@ -101,7 +115,7 @@ def metal_from_spec(spec: Mapping, where: str, foil: Callable[[str, str], Roughn
     kwargs = {
         "conductor": Conductor(sigma=sigma),
         "plane_foil": rough("plane_foil"),
-        "plane_thickness": quantity(where, spec, "plane_thickness", "length", default=OZ_COPPER),
+        "plane_thickness": dimension(where, spec, "plane_thickness", default=OZ_COPPER),
     }
     if foil_ is not None:
         kwargs["foil"] = foil_

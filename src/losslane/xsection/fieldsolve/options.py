@@ -13,7 +13,7 @@ from collections.abc import Mapping
 
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
-from losslane.spec import key_name, number, quantity, text
+from losslane.spec import dimension, key_name, number, text
 from losslane.xsection.base import Metal
 from losslane.xsection.fieldsolve.geometry import Coating
 from losslane.xsection.fieldsolve.keys import ACCURACIES
@@ -36,7 +36,7 @@ def _dielectric(spec: Mapping, where: str, key: str) -> Dielectric | None:
 def _etch(dims: Mapping[str, float], spec: Mapping, where: str) -> tuple:
     """(top_width, etch_factor) as given, checked against the trace's width."""
     w, t = dims["width"], dims["thickness"]
-    top = quantity(where, spec, "top_width", "length")
+    top = dimension(where, spec, "top_width")
     ef = number(where, spec, "etch_factor", low=0.0, low_open=True)
     if top is not None and ef is not None:
         raise LossLaneError(
@@ -63,7 +63,7 @@ def field_options(
     accuracy = text(where, spec, "accuracy", ACCURACIES, "normal")
     top, ef = _etch(dims, spec, where)
     coating = None
-    c = quantity(where, spec, "coating_thickness", "length")
+    c = dimension(where, spec, "coating_thickness")
     cd = _dielectric(spec, where, "coating_dielectric")
     if (c is None) != (cd is None):
         missing = "coating_dielectric" if cd is None else "coating_thickness"
