@@ -21,13 +21,13 @@ import warnings
 
 import numpy as np
 
-from losslane.materials.conductor import internal_impedance
 from losslane.materials.dielectric import ConstantDielectric
 from losslane.units import MIL, OZ_COPPER
 from losslane.xsection.base import Metal
 from losslane.xsection.fieldsolve import Geometry, Layer, Trace
 from losslane.xsection.fieldsolve.eddy import eddy_impedance
 from losslane.xsection.microstrip import Microstrip
+from losslane.xsection.rlgc import group_impedances
 from losslane.xsection.stripline import Stripline
 
 AIR = ConstantDielectric(1.0, name="air")
@@ -40,9 +40,8 @@ def group_r(cf, f: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     dims = [np.asarray(getattr(cf, k), float) for k in cf.dimensions]
     strip = np.zeros(f.shape)
     planes = np.zeros(f.shape)
-    for grp in cf._groups(*dims):
-        k = grp.roughness.factor(f, grp.conductor)
-        r, _ = internal_impedance(f, grp.conductor, grp.geometry_factor, grp.depth, k, grp.wide)
+    groups = cf._groups(*dims)
+    for grp, (r, _) in zip(groups, group_impedances(f, groups), strict=True):
         if grp.wide:
             planes = planes + r
         else:

@@ -1,5 +1,8 @@
 """Conductors: conductivity, skin depth, surface impedance, and the internal impedance of a
-conductor group that joins the exact DC resistance to the skin-effect regime."""
+line's conductors from DC to full skin effect: a signal strip (``strip_impedance``, exact
+DC resistance, a transition fitted to the eddy-current field solution) and the return path
+of planes and coplanar grounds (``return_impedance``, a closed-form solution of a slab under
+a line current)."""
 
 from __future__ import annotations
 
@@ -66,55 +69,24 @@ def _coth_excess(x2: np.ndarray) -> np.ndarray:
     return out
 
 
-def _tanh_ratio(x2: np.ndarray) -> np.ndarray:
-    """tanh(x)/x as a function of x^2 (complex), exact at x = 0, no overflow."""
-    x2 = np.asarray(x2, dtype=complex)
-    out = np.empty_like(x2)
-    small = np.abs(x2) < 2.5e-3
-    xs = x2[small]
-    out[small] = 1 - xs / 3 + 2 * xs**2 / 15 - 17 * xs**3 / 315
-    x = np.sqrt(x2[~small])
-    out[~small] = np.tanh(x) / x
-    return out
-
-
 def internal_impedance(
     f: np.ndarray,
     conductor: Conductor,
     geometry_factor: ArrayLike,
     depth: ArrayLike,
     roughness: ArrayLike = 1.0,
-    wide: bool = False,
 ) -> tuple[np.ndarray, np.ndarray]:
-    """Internal resistance and inductance per unit length of one conductor group.
+    """Internal resistance and inductance per unit length (R, L_int) of a conducting slab
+    of half-thickness ``depth`` tau carrying current on its faces:
+    Z_int = (k / sigma) G coth(k tau), k = (1 + j)/delta, the exact slab solution
+    (Ramo, Whinnery, Van Duzer), with ``geometry_factor`` G Wheeler's factor, so that
+    Z -> (1 + j) R_s G at high frequency (Proc. IRE 30, 1942) and G/(sigma tau) at DC;
+    the internal inductance at DC is mu G tau / 3. ``roughness`` K(f) scales the part
+    above the DC resistance: Z = R_dc (1 + K (k tau coth(k tau) - 1)).
 
-    Returns ``(R, L_int)`` in ohm/m and H/m. ``geometry_factor`` G (1/m) is Wheeler's
-    incremental-inductance factor of the group, so that at high frequency both forms below
-    tend to Z_int = (1 + j) R_s G, Wheeler's skin-effect result (Proc. IRE 30, 1942);
-    k = (1 + j)/delta.
-
-    * A signal conductor (``wide=False``): Z_int = (k / sigma) G coth(k tau), the exact
-      internal impedance of a conducting slab of half-thickness tau carrying current on
-      its faces. The caller picks tau so that the DC limit G/(sigma tau) is the exact DC
-      resistance (tau = G * area for a strip). The internal inductance at DC is
-      mu G tau / 3.
-    * A return plane or a wide coplanar ground (``wide=True``), tau its thickness:
-      Z_int = (k / sigma) G tanh(k tau), the slab whose far face rests on a lossless
-      path. A plane many times wider than the trace has a DC resistance per unit length
-      that is negligible beside the strip's (a 1 oz plane 25 mm wide: 0.02 ohm/m against
-      3 ohm/m for a 6 x 1.4 mil trace), and this form gives it exactly 0 at DC while the
-      current is still confined under the strip at high frequency; the internal
-      inductance at DC is mu G tau.
-
-    In both the internal inductance is finite at DC and falls toward 0 as the frequency
-    rises, so the total inductance falls toward the external one.
-
-    ``roughness`` K(f) scales the part of the impedance above the DC resistance, so the
-    DC value stays exact whatever the roughness model: for a signal conductor
-    Z = R_dc (1 + K (k tau coth(k tau) - 1)); for a wide plane Z = K (k/sigma) G tanh(k tau).
-
-    ``geometry_factor`` and ``depth`` may be arrays (e.g. one value per geometry sample,
-    shape (S, 1)) that broadcast against ``f``; where G = 0 the group carries no loss.
+    The first term of the strip model (``strip_impedance``) is this slab. G and tau may
+    be arrays (e.g. one value per geometry sample, shape (S, 1)) that broadcast against
+    ``f``; where G = 0 the result is 0.
     """
     f = np.asarray(f, dtype=float)
     gf = np.asarray(geometry_factor, dtype=float)
@@ -124,21 +96,214 @@ def internal_impedance(
     if np.any(bad):
         shown = depth if depth.ndim == 0 else np.broadcast_to(depth, bad.shape)[bad][0]
         raise LossLaneError(f"conductor depth {float(shown)!r} m must be > 0")
-    if not np.any(live):
-        shape = np.broadcast_shapes(f.shape, gf.shape, depth.shape)
-        return np.zeros(shape), np.zeros(shape)
     tau = np.where(live, depth, 1.0)
     mu = MU0 * conductor.mu_r
     omega = 2 * np.pi * f
     x2 = 1j * omega * mu * conductor.sigma * tau**2
-    if wide:
-        # Z = K j w mu G tau tanh(x)/x with x^2 = j w mu sigma tau^2: R(0) = 0 exactly
-        kt = np.asarray(roughness) * _tanh_ratio(x2)
-        g_live = np.where(live, gf, 0.0)
-        return -omega * mu * g_live * tau * kt.imag, mu * g_live * tau * kt.real
     kh = np.asarray(roughness) * _coth_excess(x2)
     r_dc = np.where(live, gf, 0.0) / (conductor.sigma * tau)
     # Z = r_dc (1 + K x^2 h(x^2)) and x^2 = j w mu sigma tau^2, so both parts stay finite at DC
     resistance = r_dc * (1.0 - omega * mu * conductor.sigma * tau**2 * kh.imag)
     inductance = r_dc * mu * conductor.sigma * tau**2 * kh.real
+    return resistance, inductance
+
+
+#: the least value of |c1| in ``sheet_return``: the return current's spreading at the lowest
+#: frequencies is capped near 140 h (a plane about 100 structure sizes wide, as in the
+#: eddy-current solver's default); an infinitely wide plane would make the 2-D inductance
+#: diverge at DC
+SPREAD_FLOOR = 0.04
+
+
+def exp_e1(c: ArrayLike) -> np.ndarray:
+    """e^c E1(c) for complex c with Re c >= 0 (E1 the exponential integral), without
+    overflow: the asymptotic series 1/c - 1/c^2 + 2/c^3 - ... where |c| > 40."""
+    from scipy.special import exp1
+
+    c = np.asarray(c, dtype=complex)
+    out = np.empty_like(c)
+    big = np.abs(c) > 40.0
+    cb = c[big]
+    acc = np.zeros_like(cb)
+    term = 1.0 / cb
+    for n in range(14):  # the n-th term is n!/|c|^(n+1): below 1e-12 relative at |c| = 40
+        acc += term
+        term = -term * (n + 1) / cb
+    out[big] = acc
+    cs = c[~big]
+    out[~big] = np.exp(cs) * exp1(cs)
+    return out
+
+
+def sheet_return(
+    f: np.ndarray,
+    conductor: Conductor,
+    geometry_factor: ArrayLike,
+    thickness: ArrayLike,
+    floor: float = SPREAD_FLOOR,
+) -> tuple[np.ndarray, np.ndarray]:
+    """Internal resistance and inductance per unit length (R, L_int) of a wide return
+    conductor of ``thickness`` whose Wheeler factor is G = ``geometry_factor``, from DC to
+    full skin effect.
+
+    The return is a conducting slab under a line current at the height h = 1/(2 pi G) at
+    which a filament over a perfect plane has that factor. Its exact spectral solution
+    (each transverse wavenumber kappa of the field reflected by the slab,
+    Z = (j w mu / pi) int exp(-2 kappa h) / (kappa + Y(kappa)) dkappa, Y the slab's input
+    admittance) has, with the slab's propagation constant taken as k = (1 + j)/delta
+    (exact for a thin slab, and for kappa << 1/delta), the closed form
+
+        Z = (j w mu / 2 pi) S,  S = e^c1 E1(c1) + e^c2 E1(c2),
+        c1 = 2 h k tanh(k t / 2),  c2 = 2 h k coth(k t / 2),
+
+    so R = -(w mu / 2 pi) Im S and L_int = (mu / 2 pi) Re S. Its limits: Wheeler's
+    (1 + j) Rs G when delta << t; the thin sheet of resistance G/(sigma t) while the
+    current is held under the line by induction (delta > t, |c1| >> 1); and w mu / 4 when
+    the current spreads across the plane (|c1| << 1, the 2-D low-frequency limit,
+    independent of the metal). The spreading is capped by ``floor`` (c1 -> c1 + floor),
+    which keeps the inductance finite at DC; R(0) = 0.
+    Where G = 0 the result is 0.
+    """
+    f = np.asarray(f, dtype=float)
+    gf = np.asarray(geometry_factor, dtype=float)
+    tp = np.asarray(thickness, dtype=float)
+    mu = MU0 * conductor.mu_r
+    omega = 2 * np.pi * f
+    live = gf > 0
+    h = 1.0 / (2 * np.pi * np.where(live, gf, 1.0))
+    k = np.sqrt(1j * omega * mu * conductor.sigma)
+    x = 0.5 * k * tp
+    small = np.abs(x) < 1e-6
+    xs = np.where(small, 1.0, x)
+    # tanh(x) and coth(x), with their series where x -> 0 (DC)
+    th = np.where(small, x, np.tanh(xs))
+    c1 = 2 * h * k * th + floor
+    c2 = np.where(small, 4 * h / tp + 2 * h * k * x / 3, 2 * h * k / np.where(small, 1.0, th))
+    c1, c2 = np.broadcast_arrays(c1, c2)
+    y = mu / (2 * np.pi) * live * (exp_e1(c1) + exp_e1(c2))  # Z / (j w)
+    return -omega * y.imag, y.real
+
+
+def return_impedance(
+    f: np.ndarray,
+    conductor: Conductor,
+    parts: list[tuple[ArrayLike, ArrayLike, ArrayLike]],
+    floor: float = SPREAD_FLOOR,
+) -> list[tuple[np.ndarray, np.ndarray]]:
+    """Resistance and internal inductance per unit length (R_i, L_i) of each part of a
+    line's return path, ``parts`` = [(G_i, thickness_i, roughness K_i)]: its planes and
+    coplanar grounds, all joined at the line's ends.
+
+    At high frequency each part carries its own share of the current and its loss is
+    K_i Rs G_i; where the current spreads (below the skin-effect regime) the parts act
+    as one return, since the field reaches through them all. Both follow from treating
+    the return as one sheet of factor G = sum G_i (``sheet_return``) whose impedance each
+    part takes in the proportion G_i / G, with its own thickness and roughness:
+    Z_i = K_i (G_i / G) Z_sheet(G, t_i). One part: Z = K Z_sheet(G, t). K may be complex
+    (a plated stack).
+    """
+    f = np.asarray(f, dtype=float)
+    if not parts:
+        return []
+    g_total = sum(np.asarray(g, float) for g, _, _ in parts)
+    safe = np.where(g_total > 0, g_total, 1.0)
+    omega = 2 * np.pi * f
+    out = []
+    for g, t, k in parts:
+        r, l_int = sheet_return(f, conductor, g_total, t, floor)
+        share = np.asarray(g, float) / safe
+        # K (complex for a plated stack) scales the impedance: Z / (j w) = L - j R / w
+        # -> K (L - j R / w), kept in that form so that DC stays finite
+        with np.errstate(invalid="ignore", divide="ignore"):
+            r_over_w = np.where(omega > 0, r / np.where(omega > 0, omega, 1.0), 0.0)
+        y = share * np.asarray(k) * (l_int - 1j * r_over_w)
+        out.append((-omega * y.imag, y.real))
+    return out
+
+
+# BEGIN fitted strip transition (written by tools/fit_strip_transition.py; do not edit)
+#: knots of ln(width/thickness) and the fitted ln(alpha), ln(d) there; eps = (e0 + e1 ln(w/t)
+#: + e2 ln(w/h)) / (1 + (w/(8 h))^2); see ``transition_shape``
+TRANSITION_KNOTS = (0.0, 0.693147, 1.252763, 1.791759, 2.302585, 2.890372, 3.555348)
+TRANSITION_ALPHA = (0.335609, 0.353151, 0.709805, 0.848406, 0.927978, 1.045184, 1.229307)
+TRANSITION_D = (1.571791, 1.626257, 0.838921, 0.755404, 0.796071, 0.868319, 0.967295)
+TRANSITION_EPS = (0.004082, 0.006275, 0.008925)
+TRANSITION_NOTE = "preliminary"
+#: the proximity w/h above which the high-frequency deficit fades (see ``transition_shape``)
+PROXIMITY_FADE = 8.0
+# END fitted strip transition
+
+
+def transition_shape(
+    aspect: ArrayLike, proximity: ArrayLike
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(alpha, d, eps) of ``strip_impedance`` for a strip of width/thickness ``aspect``
+    whose width is ``proximity`` times its distance to the nearest plane (the fitted
+    functions, clamped to the fitted range of w/t)."""
+    la = np.log(np.asarray(aspect, float))
+    lp = np.log(np.asarray(proximity, float))
+    alpha = np.exp(np.interp(la, TRANSITION_KNOTS, TRANSITION_ALPHA))
+    d = np.exp(np.interp(la, TRANSITION_KNOTS, TRANSITION_D))
+    e0, e1, e2 = TRANSITION_EPS
+    lo, hi = TRANSITION_KNOTS[0], TRANSITION_KNOTS[-1]
+    # fitted over w/h 0.5 .. 3; it fades for wide strips (the edges' share of the
+    # current, where the deficit arises, falls as h/w: the parallel-plate limit)
+    eps = e0 + e1 * np.clip(la, lo, hi) + e2 * np.clip(lp, np.log(0.5), np.log(3.0))
+    prox = np.exp(lp)
+    return alpha, d, eps / (1.0 + (prox / PROXIMITY_FADE) ** 2)
+
+
+def strip_impedance(
+    f: np.ndarray,
+    conductor: Conductor,
+    geometry_factor: ArrayLike,
+    depth: ArrayLike,
+    roughness: ArrayLike = 1.0,
+    aspect: ArrayLike = 4.0,
+    proximity: ArrayLike = 1.5,
+) -> tuple[np.ndarray, np.ndarray]:
+    """Internal resistance and inductance per unit length (R, L_int) of a signal strip
+    from DC through the skin-effect transition.
+
+    ``geometry_factor`` G is Wheeler's factor of the strip (R -> Rs G at high frequency,
+    Proc. IRE 30, 1942) and ``depth`` tau = G * area, so that G/(sigma tau) is the exact
+    DC resistance R_dc. With s = j w mu sigma tau^2 the normalised impedance is
+
+        Phi(s) = (1/alpha) z coth z + (1 - 1/alpha) / (1 + s/d),   z^2 = alpha^2 s,
+
+    the exact impedance of a slab of depth alpha tau that carries the skin current
+    (Ramo, Whinnery, Van Duzer) plus the part of the DC resistance that the current's
+    crowding toward the surfaces bypasses; both are positive-real, so R and L_int form a
+    causal pair. Phi(0) = 1 and Phi -> sqrt(s) = Rs G (1 + j)/R_dc at high frequency. The
+    shape (alpha, d) and a small high-frequency deficit eps (the closed forms' G against the
+    field solution with conductors meshed) are fitted functions of w/t (``aspect``) and of
+    w/h (``proximity``, h the distance to the nearer plane) from the eddy-current solver
+    (``transition_shape``; tools/fit_strip_transition.py). Then
+
+        Z = R_dc (1 + K (1 - eps) (Phi - 1)),
+
+    with ``roughness`` K(f) scaling the part above the DC resistance, as for every
+    conductor (DC exact whatever the foil). Where G = 0 the result is 0.
+    """
+    f = np.asarray(f, dtype=float)
+    gf = np.asarray(geometry_factor, dtype=float)
+    depth = np.asarray(depth, dtype=float)
+    live = gf != 0.0
+    bad = live & ~(np.isfinite(depth) & (depth > 0))
+    if np.any(bad):
+        shown = depth if depth.ndim == 0 else np.broadcast_to(depth, bad.shape)[bad][0]
+        raise LossLaneError(f"conductor depth {float(shown)!r} m must be > 0")
+    tau = np.where(live, depth, 1.0)
+    alpha, d, eps = transition_shape(aspect, proximity)
+    mu = MU0 * conductor.mu_r
+    omega = 2 * np.pi * f
+    a = mu * conductor.sigma * tau**2  # s = j w a
+    s = 1j * omega * a
+    # (Phi - 1)/s, finite at DC: alpha h(alpha^2 s) - (1 - 1/alpha)/(d + s), h from coth
+    q = alpha * _coth_excess(alpha * alpha * s) - (1.0 - 1.0 / alpha) / (d + s)
+    q = np.asarray(roughness) * (1.0 - eps) * q
+    r_dc = np.where(live, gf, 0.0) / (conductor.sigma * tau)
+    # Z = r_dc (1 + s q), s = j w a
+    resistance = r_dc * (1.0 - omega * a * q.imag)
+    inductance = r_dc * a * q.real
     return resistance, inductance

@@ -37,9 +37,12 @@ def _matrix_list(a: np.ndarray) -> list:
     return a.tolist()
 
 
-def line_json(values: LineValues, solver_report: dict | None = None) -> dict:
+def line_json(
+    values: LineValues, solver_report: dict | None = None, model_report: dict | None = None
+) -> dict:
     """The `losslane line --json` object (DESIGN.md keys; a pair's loss keys are its
-    differential mode). ``solver_report``: a field-solved section's report."""
+    differential mode). ``solver_report``: a field-solved section's report;
+    ``model_report``: a closed-form section's (its methods and corrections)."""
     out: dict = {"kind": values.kind, "frequencies_hz": values.f.tolist()}
     if values.main is not None:
         out.update(_mode_json(values.main))
@@ -64,6 +67,9 @@ def line_json(values: LineValues, solver_report: dict | None = None) -> dict:
     if solver_report is not None:
         out["solver"] = "field"
         out["field_solver"] = solver_report
+    elif model_report is not None:
+        out["solver"] = model_report["solver"]
+        out["model"] = model_report
     return out
 
 
@@ -90,6 +96,8 @@ def describe(section) -> str:
     if metal is not None:
         parts.append(f"foil {metal.foil.model}")
     report = getattr(section, "solver_report", None)
+    if report is None and getattr(type(section), "correction", None) is not None:
+        parts.append("closed forms with field-solver correction")
     if report is not None:
         est = report()["error_estimate"].get("z0")
         parts.append(

@@ -24,6 +24,7 @@ from losslane.materials.conductor import COPPER, Conductor
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness, Smooth
 from losslane.units import INCH, OZ_COPPER
+from losslane.xsection.fitted import StaticCorrection
 from losslane.xsection.rlgc import (
     NP_TO_DB,
     RLGC,
@@ -110,15 +111,29 @@ def strip_and_planes(
     scale: np.ndarray,
     area: np.ndarray,
     metal: Metal,
+    aspect: np.ndarray,
+    proximity: np.ndarray,
 ) -> list[ConductorGroup]:
     """Wheeler's conductor groups of one mode: the strip(s), then each return plane.
 
-    The strips' depth is G * ``area`` (their exact DC resistance); a plane's is
-    ``metal.plane_thickness`` with the planes' foil, marked wide.
+    The strips' depth is G * ``area`` (their exact DC resistance), with their
+    width/thickness ``aspect`` and width over the distance to the nearer plane
+    (``proximity``); a plane's depth is ``metal.plane_thickness`` with the planes' foil,
+    marked wide.
     """
     name, recede = strip
     g_strip = wheeler_factor(z_air, p0, recede, scale)
-    groups = [ConductorGroup(name, g_strip, g_strip * area, metal.conductor, metal.foil)]
+    groups = [
+        ConductorGroup(
+            name,
+            g_strip,
+            g_strip * area,
+            metal.conductor,
+            metal.foil,
+            aspect=aspect,
+            proximity=proximity,
+        )
+    ]
     for name, recede in planes:
         g = wheeler_factor(z_air, p0, recede, scale)
         groups.append(
@@ -218,6 +233,10 @@ class CrossSection:
     #: sizing: dimension -> (reference dimensions summed, lowest, highest ratio searched);
     #: the interval is then narrowed to ``limits``
     search: ClassVar[Mapping[str, tuple[tuple[str, ...], float, float]]] = {}
+    #: the field-solver correction of the quasi-static results (``xsection.fitted``):
+    #: a model with one implements ``static_parameters``, ``static_dimensions`` and
+    #: ``published_static``, and uses ``corrected_static`` for its modes
+    correction: ClassVar[StaticCorrection | None] = None
 
     def __post_init__(self) -> None:
         # run by the dataclass __init__ of the closed-form models
@@ -238,6 +257,30 @@ class CrossSection:
         """A copy with some dimensions (keys of ``dimensions``, metres) or materials
         (``dielectric``, ``metal``) changed."""
         return dataclasses.replace(self, **changes)
+
+    def model_report(self) -> dict:
+        """Which models produce this section's numbers (the ``model`` object of
+        `losslane line --json`): the published methods of its validity table, the
+        field-solver correction of its quasi-static values and the conductor model."""
+        corr = type(self).correction
+        out: dict = {
+            "solver": "closed-form",
+            "methods": list(dict.fromkeys(lim.method for lim in self.limits)),
+        }
+        if corr is not None:
+            out["static_correction"] = {
+                "method": "fitted to the 2-D field solver (tools/fit_static_corrections.py)",
+                "box": {
+                    a.name: [a.low, a.high] for a in corr.axes + ((corr.dk,) if corr.dk else ())
+                },
+                "fit": corr.note,
+            }
+        out["conductor"] = (
+            "strip: exact DC resistance, DC-to-skin transition fitted to the eddy-current "
+            "solver, Wheeler's rule at high frequency; returns: closed-form slab under a "
+            "line current"
+        )
+        return out
 
     def check_validity(self, q: Quantities) -> None:
         """Warn for every validity range of ``limits`` that the quantities leave."""
@@ -282,6 +325,56 @@ class CrossSection:
     def solvable(cls) -> bool:
         """True when the kind also runs in the 2-D field solver (it has a layout)."""
         return cls.field_geometry.__func__ is not CrossSection.field_geometry.__func__
+
+    # -- the field-solver correction -----------------------------------------------------
+    @classmethod
+    def static_parameters(cls, dims: Mapping[str, ArrayLike]) -> tuple[np.ndarray, ...]:
+        """The correction's dimensionless parameters at ``dims`` (arrays broadcast)."""
+        raise NotImplementedError
+
+    @classmethod
+    def static_dimensions(cls, params: tuple[float, ...]) -> dict[str, float]:
+        """Dimensions (m) that have the correction's ``params`` (for the fit's grid)."""
+        raise NotImplementedError
+
+    @classmethod
+    def published_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """{mode: (Z_air, eps_eff)}, quasi-static, from the published formulas alone."""
+        raise NotImplementedError
+
+    @classmethod
+    def corrected_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """{mode: (Z_air, eps_eff)}, quasi-static: the published formulas times the
+        field-solver correction (Z0 = Z_air / sqrt(eps_eff))."""
+        out = cls.published_static(dims, er)
+        corr = cls.correction
+        if corr is None:
+            return out
+        params = cls.static_parameters(dims)
+        return {
+            m: (corr.z_air(m, params, z), corr.eps_eff(m, params, e, er))
+            for m, (z, e) in out.items()
+        }
+
+    @classmethod
+    def published(cls) -> type[CrossSection]:
+        """The same model with its field-solver correction off: the published formulas
+        alone (what other implementations of the papers compute)."""
+        if cls.correction is None:
+            return cls
+        return type(cls.__name__, (cls,), {"correction": None, "__module__": cls.__module__})
+
+    @classmethod
+    def corrected_z_air(cls, mode: str, dims: Mapping[str, ArrayLike]) -> np.ndarray:
+        """The corrected air-filled impedance of ``mode`` (Wheeler's rule differentiates
+        it)."""
+        z = cls.published_static(dims, 1.0)[mode][0]
+        corr = cls.correction
+        return z if corr is None else corr.z_air(mode, cls.static_parameters(dims), z)
 
     # -- the model interface ------------------------------------------------------------
     def modes(self, f: np.ndarray) -> dict[str, Mode]:

@@ -52,11 +52,12 @@ from losslane.xsection.base import (
     strip_and_planes,
     strip_loss_modelled,
 )
+from losslane.xsection.fitted import Axis, StaticCorrection
 from losslane.xsection.microstrip import (
+    Microstrip,
     dispersion_terms,
     eps_eff_dispersive,
     eps_eff_thin,
-    quasi_static,
     widened_ratios,
     z0_dispersion_exponent,
     z0_dispersive,
@@ -307,20 +308,26 @@ def dispersive_z(
     return z_e, z_o
 
 
-#: the validity table (ranges from memory of the 1984 paper; see DEVELOPERS.md)
+#: the parameters of the field-solver correction and the box it was fitted and verified in
+AXES = (
+    Axis("width/height", 0.1, 10.0, "log"),
+    Axis("spacing/height", 0.1, 10.0, "log"),
+    Axis("thickness/height", 0.0, 0.5, "sqrt"),
+)
+DK_AXIS = Axis("dk", 1.0, 18.0, "log")
+
+# BEGIN fitted microstrip-pair (written by tools/fit_static_corrections.py; do not edit)
+CORRECTION = StaticCorrection.none(AXES, DK_AXIS, PAIR_MODES)
+# END fitted microstrip-pair
+
+#: the validity table: the box of the field-solver correction (the Kirschning-Jansen
+#: ranges of the 1984 paper, from memory; see DEVELOPERS.md), then the dispersion's
+_FIT = "microstrip-pair (Kirschning-Jansen, field-solver correction)"
 LIMITS = (
-    Limit("microstrip-pair (Kirschning-Jansen)", "width/height", 0.1, 10, ("width", ("height",))),
-    Limit(
-        "microstrip-pair (Kirschning-Jansen)", "spacing/height", 0.1, 10, ("spacing", ("height",))
-    ),
-    Limit("microstrip-pair (Kirschning-Jansen)", "dk", 1, 18, value=dk),
-    Limit(
-        "microstrip-pair (Jansen thickness)",
-        "thickness/height",
-        0,
-        0.5,
-        ("thickness", ("height",)),
-    ),
+    Limit(_FIT, "width/height", 0.1, 10, ("width", ("height",))),
+    Limit(_FIT, "spacing/height", 0.1, 10, ("spacing", ("height",))),
+    Limit(_FIT, "dk", 1, 18, value=dk),
+    Limit(_FIT, "thickness/height", 0, 0.5, ("thickness", ("height",))),
     Limit(
         "microstrip-pair dispersion (Kirschning-Jansen)",
         "frequency x height [GHz mm]",
@@ -357,6 +364,27 @@ class MicrostripPair(CrossSection):
         "spacing": (("height",), 0.01, 100.0),
     }
     outer_layer: ClassVar[bool] = True
+    correction: ClassVar[StaticCorrection] = CORRECTION
+
+    @classmethod
+    def static_parameters(cls, dims: Mapping[str, ArrayLike]) -> tuple[np.ndarray, ...]:
+        h = np.asarray(dims["height"], float)
+        return tuple(np.asarray(dims[k], float) / h for k in ("width", "spacing", "thickness"))
+
+    @classmethod
+    def static_dimensions(cls, params: tuple[float, ...]) -> dict[str, float]:
+        h = 100e-6
+        u, g, th = params
+        return {"width": u * h, "spacing": g * h, "height": h, "thickness": th * h}
+
+    @classmethod
+    def published_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """Kirschning-Jansen with the thickness terms (``static_modes``)."""
+        keys = ("width", "spacing", "height", "thickness")
+        qs = static_modes(*(dims[k] for k in keys), er)
+        return {m: (z * np.sqrt(e), e) for m, (z, e) in qs.items()}
 
     def mode_arrays(
         self,
@@ -374,10 +402,13 @@ class MicrostripPair(CrossSection):
         self.check_validity(Quantities(dims, er, f))
         u, g = w / h, s / h
         fn = f * 1e-9 * h * 1e3
-        qs = static_modes(w, s, h, t, er)
-        (z_e0, eps_e0), (z_o0, eps_o0) = qs["even"], qs["odd"]
+        qs = self.corrected_static(dims, er)
+        (za_e, eps_e0), (za_o, eps_o0) = qs["even"], qs["odd"]
+        z_e0, z_o0 = za_e / np.sqrt(eps_e0), za_o / np.sqrt(eps_o0)
         eps_ef, eps_of = dispersive_eps(u, g, er, eps_e0, eps_o0, fn)
-        z00, eps0 = quasi_static(w, h, t, er)
+        single = {"width": w, "height": h, "thickness": t}
+        za_s, eps0 = Microstrip.corrected_static(single, er)["single"]
+        z00 = za_s / np.sqrt(eps0)
         epsf = eps_eff_dispersive(u, er, eps0, fn)
         z0f = z0_dispersive(u, er, eps0, epsf, z00, fn)
         z_ef, z_of = dispersive_z(u, g, er, fn, z_e0, z_o0, eps_o0, eps_of, (z00, eps0, z0f, epsf))
@@ -394,14 +425,17 @@ class MicrostripPair(CrossSection):
     def _groups(
         self, mode: str, w: np.ndarray, s: np.ndarray, h: np.ndarray, t: np.ndarray
     ) -> list[ConductorGroup]:
+        keys = ("width", "spacing", "height", "thickness")
         return strip_and_planes(
-            lambda p: mode_z_air(mode, *p),
+            lambda p: self.corrected_z_air(mode, dict(zip(keys, p, strict=True))),
             (w, s, h, t),
             ("strips", lambda p, d: (p[0] - 2 * d, p[1] + 2 * d, p[2] + d, p[3] - 2 * d)),
             [("plane", lambda p, d: (p[0], p[1], p[2] + d, p[3]))],
             np.minimum(np.minimum(w, s), np.minimum(h, t)),
             w * t,
             self.metal,
+            w / t,
+            w / h,
         )
 
     @classmethod

@@ -26,6 +26,7 @@ from numpy.typing import ArrayLike
 from losslane.materials.dielectric import Dielectric
 from losslane.xsection.base import CrossSection, Metal, strip_and_planes, strip_loss_modelled
 from losslane.xsection.elliptic import k_ratio
+from losslane.xsection.fitted import Axis, StaticCorrection
 from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode
 from losslane.xsection.validity import Limit, Quantities
 
@@ -83,22 +84,53 @@ def offset(q: Quantities) -> np.ndarray:
     return np.abs(q.below - q.above) > 1e-9 * b
 
 
-#: the validity table (ranges from memory; see DEVELOPERS.md)
+def centring(below: ArrayLike, above: ArrayLike) -> np.ndarray:
+    """4 below above / (below + above)^2: 1 for a centred trace, toward 0 as it nears a
+    plane; symmetric in the two distances and smooth at the centre (the correction's
+    offset parameter)."""
+    below, above = np.asarray(below, float), np.asarray(above, float)
+    return 4.0 * below * above / (below + above) ** 2
+
+
+def nearer_plane(q: Quantities) -> np.ndarray:
+    """The distance to the nearer plane over below + above (0.5: centred)."""
+    return np.minimum(q.below, q.above) / (q.below + q.above)
+
+
+#: the parameters of the field-solver correction and the box it was fitted and verified in
+AXES = (
+    Axis("width/spacing", 0.02, 10.0, "log"),
+    Axis("thickness/spacing", 0.0, 0.25, "sqrt"),
+    Axis("4 below above/(below + above)^2", 0.19, 1.0, "linear"),
+)
+
+# BEGIN fitted stripline (written by tools/fit_static_corrections.py; do not edit)
+CORRECTION = StaticCorrection.none(AXES, None, ("single",))
+# END fitted stripline
+
+#: the validity table: the box of the field-solver correction (Wheeler's thickness range
+#: t/b <= 0.25 from memory; see DEVELOPERS.md)
 LIMITS = (
     Limit(
-        "stripline (Wheeler thickness)",
+        "stripline (field-solver correction)",
+        "width/spacing",
+        0.02,
+        10.0,
+        ("width", ("below", "above", "thickness")),
+    ),
+    Limit(
+        "stripline (Wheeler thickness, field-solver correction)",
         "thickness/spacing",
         0,
         0.25,
         ("thickness", ("below", "above", "thickness")),
     ),
     Limit(
-        "offset stripline",
-        "width/(spacing - thickness)",
-        0.35,
+        "offset stripline (field-solver correction)",
+        "nearer plane/(below + above)",
+        0.05,
         None,
-        ("width", ("below", "above")),
-        when=offset,
+        value=nearer_plane,
     ),
 )
 
@@ -120,11 +152,34 @@ class Stripline(CrossSection):
     # the floor 0.01 is the search's, not the model's: Cohn's solution holds at any width
     search: ClassVar[dict] = {"width": (("below", "above"), 0.01, 10.0)}
     outer_layer: ClassVar[bool] = False
+    correction: ClassVar[StaticCorrection] = CORRECTION
 
     @property
     def spacing(self) -> float:
         """Plane-to-plane spacing b."""
         return self.below + self.above + self.thickness
+
+    @classmethod
+    def static_parameters(cls, dims: Mapping[str, ArrayLike]) -> tuple[np.ndarray, ...]:
+        w, lo, hi, t = (np.asarray(dims[k], float) for k in cls.dimensions)
+        b = lo + hi + t
+        return w / b, t / b, centring(lo, hi)
+
+    @classmethod
+    def static_dimensions(cls, params: tuple[float, ...]) -> dict[str, float]:
+        b = 100e-6
+        wb, tb, c = params
+        t = tb * b
+        lo = 0.5 * (1.0 - np.sqrt(max(0.0, 1.0 - c))) * (b - t)
+        return {"width": wb * b, "below": lo, "above": b - t - lo, "thickness": t}
+
+    @classmethod
+    def published_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """Cohn x Wheeler, offset by the parallel combination; eps_eff = eps_r."""
+        z = stripline_z_air(*(dims[k] for k in cls.dimensions))
+        return {"single": (z, np.asarray(er, float))}
 
     def mode_arrays(
         self,
@@ -140,7 +195,7 @@ class Stripline(CrossSection):
         er = eps_r.real
         dims = {"width": w, "below": lo, "above": hi, "thickness": t}
         self.check_validity(Quantities(dims, er, f))
-        z0 = stripline_z_air(w, lo, hi, t) / np.sqrt(er)
+        z0 = self.corrected_z_air("single", dims) / np.sqrt(er)
         groups = self._groups(w, lo, hi, t)
         return {"single": assemble_mode("single", f, eps_r, er, z0, groups, q=np.ones(er.shape))}
 
@@ -152,7 +207,7 @@ class Stripline(CrossSection):
         ):
             return []
         return strip_and_planes(
-            lambda p: stripline_z_air(*p),
+            lambda p: self.corrected_z_air("single", dict(zip(self.dimensions, p, strict=True))),
             (w, lo, hi, t),
             ("strip", lambda p, d: (p[0] - 2 * d, p[1] + d, p[2] + d, p[3] - 2 * d)),
             [
@@ -162,6 +217,8 @@ class Stripline(CrossSection):
             np.minimum(np.minimum(w, lo), np.minimum(hi, t)),
             w * t,
             self.metal,
+            w / t,
+            w / np.minimum(lo, hi),
         )
 
     @classmethod

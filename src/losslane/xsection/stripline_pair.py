@@ -47,8 +47,9 @@ from losslane.xsection.base import (
     strip_loss_modelled,
 )
 from losslane.xsection.elliptic import k_ratio
+from losslane.xsection.fitted import Axis, StaticCorrection
 from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode
-from losslane.xsection.stripline import centred_z_air, cohn_z_air, offset
+from losslane.xsection.stripline import centred_z_air, centring, cohn_z_air, nearer_plane
 from losslane.xsection.validity import Limit, Quantities
 
 if TYPE_CHECKING:
@@ -139,30 +140,27 @@ def stripline_pair_z_air(
     return np.where(centred, zc, 2.0 * z1 * z2 / (z1 + z2))
 
 
-#: the validity table (ranges from memory; see DEVELOPERS.md)
+#: the parameters of the field-solver correction and the box it was fitted and verified in
+AXES = (
+    Axis("width/plane spacing", 0.04, 5.0, "log"),
+    Axis("spacing/plane spacing", 0.03, 5.0, "log"),
+    Axis("thickness/plane spacing", 0.0, 0.25, "sqrt"),
+    Axis("4 below above/(below + above)^2", 0.19, 1.0, "linear"),
+)
+
+# BEGIN fitted stripline-pair (written by tools/fit_static_corrections.py; do not edit)
+CORRECTION = StaticCorrection.none(AXES, None, PAIR_MODES)
+# END fitted stripline-pair
+
+_PLANES = ("below", "above", "thickness")
+_FIT = "stripline-pair (field-solver correction)"
+
+#: the validity table: the box of the field-solver correction
 LIMITS = (
-    Limit(
-        "stripline-pair (Cohn thickness correction)",
-        "thickness/plane spacing",
-        0,
-        0.1,
-        ("thickness", ("below", "above", "thickness")),
-    ),
-    Limit(
-        "stripline-pair (Cohn thickness correction)",
-        "thickness/width",
-        0,
-        0.2,
-        ("thickness", ("width",)),
-    ),
-    Limit(
-        "offset stripline-pair",
-        "width/(plane spacing - thickness)",
-        0.35,
-        None,
-        ("width", ("below", "above")),
-        when=offset,
-    ),
+    Limit(_FIT, "width/plane spacing", 0.04, 5.0, ("width", _PLANES)),
+    Limit(_FIT, "spacing/plane spacing", 0.03, 5.0, ("spacing", _PLANES)),
+    Limit(_FIT, "thickness/plane spacing", 0, 0.25, ("thickness", _PLANES)),
+    Limit(_FIT, "nearer plane/(below + above)", 0.05, None, value=nearer_plane),
 )
 
 
@@ -193,6 +191,37 @@ class StriplinePair(CrossSection):
         "spacing": (("below", "above"), 0.01, 10.0),
     }
     outer_layer: ClassVar[bool] = False
+    correction: ClassVar[StaticCorrection] = CORRECTION
+
+    @classmethod
+    def static_parameters(cls, dims: Mapping[str, ArrayLike]) -> tuple[np.ndarray, ...]:
+        w, s, lo, hi, t = (np.asarray(dims[k], float) for k in cls.dimensions)
+        b = lo + hi + t
+        return w / b, s / b, t / b, centring(lo, hi)
+
+    @classmethod
+    def static_dimensions(cls, params: tuple[float, ...]) -> dict[str, float]:
+        b = 100e-6
+        wb, sb, tb, c = params
+        t = tb * b
+        lo = 0.5 * (1.0 - np.sqrt(max(0.0, 1.0 - c))) * (b - t)
+        return {
+            "width": wb * b,
+            "spacing": sb * b,
+            "below": lo,
+            "above": b - t - lo,
+            "thickness": t,
+        }
+
+    @classmethod
+    def published_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """Cohn's coupled striplines with his thickness corrections, offset by the parallel
+        combination; eps_eff = eps_r in both modes."""
+        p = tuple(dims[k] for k in cls.dimensions)
+        er = np.asarray(er, float)
+        return {m: (stripline_pair_z_air(m, *p), er) for m in PAIR_MODES}
 
     def mode_arrays(
         self,
@@ -211,7 +240,7 @@ class StriplinePair(CrossSection):
         lossy = strip_loss_modelled(self.kind, p0[4], *_NO_THICKNESS)
         out = {}
         for mode in PAIR_MODES:
-            z_air = stripline_pair_z_air(mode, *p0)
+            z_air = self.corrected_z_air(mode, dict(zip(self.dimensions, p0, strict=True)))
             out[mode] = assemble_mode(
                 mode,
                 f,
@@ -232,8 +261,9 @@ class StriplinePair(CrossSection):
         hi: np.ndarray,
         t: np.ndarray,
     ) -> list[ConductorGroup]:
+        keys = self.dimensions
         return strip_and_planes(
-            lambda p: stripline_pair_z_air(mode, *p),
+            lambda p: self.corrected_z_air(mode, dict(zip(keys, p, strict=True))),
             (w, s, lo, hi, t),
             ("strips", lambda p, d: (p[0] - 2 * d, p[1] + 2 * d, p[2] + d, p[3] + d, p[4] - 2 * d)),
             [
@@ -243,6 +273,8 @@ class StriplinePair(CrossSection):
             np.minimum(np.minimum(np.minimum(w, s), np.minimum(lo, hi)), t),
             w * t,
             self.metal,
+            w / t,
+            w / np.minimum(lo, hi),
         )
 
     @classmethod
