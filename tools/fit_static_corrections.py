@@ -153,15 +153,19 @@ def _progress(i: int, n: int, t0: float) -> None:
         print(f"\r  {i + 1}/{n} solves, {time.time() - t0:.0f} s", end="", file=sys.stderr)
 
 
-def targets(cls, points: list, dks: np.ndarray, solved: list) -> dict:
-    """{mode: (air (P,), fill (P, K) or None)}: the logarithms the series fit."""
+def targets(cls, points: list, dks: np.ndarray, solved: list) -> tuple[dict, np.ndarray]:
+    """{mode: (air (P,), fill (P, K))}: the logarithms the series (times the weights)
+    fit, against the model's base (published formulas; a pair's with the single line's
+    correction), and the weights (P,) (1; a pair's coupling)."""
     modes = modes_of(cls)
     out = {m: ([], []) for m in modes}
+    weights = []
     for p, res in zip(points, solved, strict=True):
         dims = cls.static_dimensions(p)
+        weights.append(float(np.ravel(cls.correction_weight(dims))[0]))
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            pub = cls.published_static(dims, dks)
+            pub = cls.base_static(dims, dks)
         for m in modes:
             c0f, cf = res[m]
             z_air_pub, eps_pub = (np.asarray(v, float) for v in pub[m])
@@ -170,7 +174,8 @@ def targets(cls, points: list, dks: np.ndarray, solved: list) -> dict:
             q_field = (cf / c0f - 1.0) / (dks - 1.0)
             q_pub = (np.broadcast_to(eps_pub, dks.shape) - 1.0) / (dks - 1.0)
             out[m][1].append(q_field / q_pub)
-    return {m: (np.log(np.array(a)), np.log(np.array(f))) for m, (a, f) in out.items()}
+    logs = {m: (np.log(np.array(a)), np.log(np.array(f))) for m, (a, f) in out.items()}
+    return logs, np.array(weights)
 
 
 def design(axes: tuple[Axis, ...], degrees: tuple[int, ...], values: list[np.ndarray]):
@@ -182,8 +187,11 @@ def design(axes: tuple[Axis, ...], degrees: tuple[int, ...], values: list[np.nda
     return cols
 
 
-def fit(axes, degrees, values, y) -> np.ndarray:
+def fit(axes, degrees, values, y, weight=None) -> np.ndarray:
+    """Least squares of weight * series = y (weight 1: the series itself)."""
     a = design(axes, degrees, values)
+    if weight is not None:
+        a = a * weight[:, None]
     coef, *_ = np.linalg.lstsq(a, y, rcond=None)
     return coef.reshape(tuple(d + 1 for d in degrees))
 
@@ -307,12 +315,13 @@ def main() -> None:
     key = zlib.crc32(repr((axes, list(solve_dks))).encode())
     store = Path(args.cache) / f"{args.kind}-{args.accuracy}-{key:08x}.pickle"
     solved = solve_all(args.kind, points, solve_dks, LEVELS[args.accuracy], args.jobs, store)
-    tg = targets(cls, points, solve_dks, solved)
+    tg, wts = targets(cls, points, solve_dks, solved)
     air, fill = {}, {}
     for m, (a, f) in tg.items():
-        air[m] = fit(axes, plan["air"], grid_values(points, None), a)
+        air[m] = fit(axes, plan["air"], grid_values(points, None), a, wts)
         if not homogeneous:
-            fill[m] = fit(axes + (corr.dk,), plan["fill"], grid_values(points, dks), f.ravel())
+            w_f = np.repeat(wts, len(dks))
+            fill[m] = fit(axes + (corr.dk,), plan["fill"], grid_values(points, dks), f.ravel(), w_f)
         print(
             f"{m}: published formulas against the solver: air-filled C0 "
             f"{100 * np.min(np.expm1(a)):+.2f} .. {100 * np.max(np.expm1(a)):+.2f} %"

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import argparse
 import itertools
+import json
 import pickle
 import re
 import sys
@@ -34,12 +35,14 @@ from pathlib import Path
 import numpy as np
 
 from losslane.materials import conductor as cond
+from losslane.materials.conductor import MU0
 from losslane.materials.dielectric import ConstantDielectric
 from losslane.units import MIL, OZ_COPPER
 from losslane.xsection.base import Metal
 from losslane.xsection.fieldsolve import Geometry, Layer, Trace
 from losslane.xsection.fieldsolve.eddy import eddy_impedance
 from losslane.xsection.microstrip import Microstrip
+from losslane.xsection.rlgc import group_impedances
 from losslane.xsection.stripline import Stripline
 
 AIR = ConstantDielectric(1.0, name="air")
@@ -47,7 +50,13 @@ F = np.array(
     [0, 1e3, 1e4, 3e4, 1e5, 2e5, 5e5, 1e6, 2e6, 3e6, 5e6, 7e6, 1e7, 1.5e7, 2e7, 3e7, 5e7, 7e7]
     + [1e8, 1.5e8, 2e8, 3e8, 5e8, 1e9, 3e9, 1e10]
 )
-KNOTS = np.log([1.0, 2.0, 3.5, 6.0, 10.0, 18.0, 35.0])
+#: ln(w/t) of the fitted strips' aspects (3-24 mil wide in 0.5-2 oz copper)
+KNOTS = np.log([1.094, 2.189, 4.379, 8.758, 17.52, 35.03])
+#: weight of the knots' second differences in the least squares (keeps alpha(w/t) and
+#: d(w/t) smooth between the fitted aspects)
+SMOOTH = 0.02
+#: weight of the line's inductance 1-10 MHz against the strip's resistance in the fit
+WEIGHT_L = 2.0
 
 
 def microstrip(w: float, h: float, t_oz: float, p_oz: float):
@@ -107,14 +116,20 @@ def solve(cases: list, store: Path) -> dict:
 
 
 def strip_data(cases: list, solved: dict) -> list:
-    """Per geometry: tau/delta, the eddy strip R / R_dc, and the shape inputs."""
+    """Per geometry: tau/delta, the eddy strip R / R_dc, the shape inputs, and for the
+    inductance 1-10 MHz: the eddy L and what the closed form has besides the strip's
+    internal inductance (external and the planes')."""
     rows = []
     f = F[1:]
+    band = (f >= 1e6) & (f <= 1e7)
     for label, cf, _, _ in cases:
         dims = [np.asarray(getattr(cf, k), float) for k in cf.dimensions]
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            g = cf._groups(*dims)[0]
+            groups = cf._groups(*dims)
+            rl = cf.rlgc(f[band])
+        g = groups[0]
+        l_strip = group_impedances(f[band], groups)[0][1]
         tau = float(g.depth)
         r_dc = 1.0 / (cf.metal.conductor.sigma * cf.width * cf.thickness)
         delta = cf.metal.conductor.skin_depth(f)
@@ -125,9 +140,23 @@ def strip_data(cases: list, solved: dict) -> list:
                 "y": solved[label]["strip"][1:] / r_dc,
                 "aspect": float(g.aspect),
                 "proximity": float(g.proximity),
+                "band": band,
+                "l_rest": rl.l[:, 0, 0] - l_strip,
+                "l_eddy": solved[label]["l"][1:][band],
+                "l_scale": r_dc * cf.metal.conductor.sigma * MU0 * tau**2,
             }
         )
     return rows
+
+
+def model_inductance(x, alpha, d, eps):
+    """Im Z / (w R_dc mu sigma tau^2) of the strip model at tau/delta = x: Re Q."""
+    s = 2j * x * x
+    z2 = alpha * alpha * s
+    z = np.sqrt(z2)
+    h = (z / np.tanh(z) - 1) / z2
+    q = alpha * h - (1 - 1 / alpha) / (d + s)
+    return (1 - eps) * q.real
 
 
 def model_ratio(x, alpha, d, eps):
@@ -151,17 +180,24 @@ def shape(q: np.ndarray, aspect: float, proximity: float):
 def fit(rows: list) -> np.ndarray:
     from scipy.optimize import least_squares
 
+    n = len(KNOTS)
+
     def resid(q):
         out = []
         for r in rows:
             sel = (r["x"] > 0.1) & (r["x"] < 25)
             a, d, e = shape(q, r["aspect"], r["proximity"])
             out.append(model_ratio(r["x"][sel], a, d, e) / r["y"][sel] - 1)
+            a_l = model_inductance(r["x"][r["band"]], a, d, e) * r["l_scale"]
+            out.append(WEIGHT_L * ((r["l_rest"] + a_l) / r["l_eddy"] - 1))
+        out.append(SMOOTH * np.diff(q[:n], 2))
+        out.append(SMOOTH * np.diff(q[n : 2 * n], 2))
         return np.concatenate(out)
 
-    n = len(KNOTS)
     q0 = np.concatenate([np.full(n, np.log(2.0)), np.full(n, np.log(2.5)), [0.01, 0.005, 0.0]])
-    return least_squares(resid, q0).x
+    lo = np.concatenate([np.zeros(n), np.full(n, np.log(0.2)), [-0.05, -0.05, -0.05]])
+    hi = np.concatenate([np.full(n, np.log(6.0)), np.full(n, np.log(50.0)), [0.05, 0.05, 0.05]])
+    return least_squares(resid, q0, bounds=(lo, hi)).x
 
 
 def write_block(q: np.ndarray, note: str) -> Path:
@@ -177,7 +213,9 @@ def write_block(q: np.ndarray, note: str) -> Path:
             "TRANSITION_ALPHA = (" + ", ".join(f"{v:.6f}" for v in q[:n]) + ")",
             "TRANSITION_D = (" + ", ".join(f"{v:.6f}" for v in q[n : 2 * n]) + ")",
             "TRANSITION_EPS = (" + ", ".join(f"{v:.6f}" for v in q[2 * n :]) + ")",
-            f"TRANSITION_NOTE = {note!r}",
+            "TRANSITION_NOTE = (",
+            *(f"    {json.dumps(part)}" for part in _wrap(note)),
+            ")",
             "# END fitted strip transition",
         ]
     )
@@ -188,6 +226,16 @@ def write_block(q: np.ndarray, note: str) -> Path:
     )
     path.write_text(pat.sub(lambda _: text, src, count=1))
     return path
+
+
+def _wrap(text: str, width: int = 86) -> list[str]:
+    lines, line = [], ""
+    for w in text.split():
+        if line and len(line) + len(w) + 1 > width:
+            lines.append(line + " ")
+            line = ""
+        line = f"{line} {w}" if line else w
+    return lines + [line]
 
 
 def line_errors(cases: list, solved: dict) -> list:
@@ -228,6 +276,7 @@ def main() -> None:
     )
     print(note)
     n = len(KNOTS)
+    cond.TRANSITION_KNOTS = tuple(KNOTS)
     cond.TRANSITION_ALPHA, cond.TRANSITION_D = tuple(q[:n]), tuple(q[n : 2 * n])
     cond.TRANSITION_EPS = tuple(q[2 * n :])
     if args.write:

@@ -144,6 +144,35 @@ def strip_and_planes(
     return groups
 
 
+def pair_base(
+    pair: type[CrossSection],
+    single: type[CrossSection],
+    single_dims: Mapping[str, ArrayLike],
+    dims: Mapping[str, ArrayLike],
+    er: ArrayLike,
+) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """A pair's published even/odd values times the single line's field-solver correction
+    (its air-filled capacitance and filling-factor ratios at the pair's strip and
+    planes): the base its own correction multiplies. As the lines part, the pair's modes
+    tend to the corrected single line, as the published formulas tend to the single
+    line's published values."""
+    pub = pair.published_static(dims, er)
+    s_pub = single.published_static(single_dims, er)["single"]
+    s_cor = single.corrected_static(single_dims, er)["single"]
+    fa = s_cor[0] / s_pub[0]
+    den = np.asarray(s_pub[1], float) - 1.0
+    safe = np.abs(den) > 1e-12
+    fq = np.where(safe, (np.asarray(s_cor[1], float) - 1.0) / np.where(safe, den, 1.0), 1.0)
+    return {m: (z * fa, 1.0 + (np.asarray(e, float) - 1.0) * fq) for m, (z, e) in pub.items()}
+
+
+def pair_coupling(pair: type[CrossSection], dims: Mapping[str, ArrayLike]) -> np.ndarray:
+    """ln(Z_even / Z_odd) of the published air-filled pair: the weight of a pair's own
+    correction (0 for lines far apart)."""
+    z = pair.published_static(dims, 1.0)
+    return np.log(np.asarray(z["even"][0], float) / np.asarray(z["odd"][0], float))
+
+
 #: the modal transform of a symmetric pair: columns even (1, 1) and odd (1, -1), normalised
 PAIR_MODES = ("even", "odd")
 PAIR_TRANSFORM = np.array([[1.0, 1.0], [1.0, -1.0]]) / np.sqrt(2.0)
@@ -350,15 +379,30 @@ class CrossSection:
     ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
         """{mode: (Z_air, eps_eff)}, quasi-static: the published formulas times the
         field-solver correction (Z0 = Z_air / sqrt(eps_eff))."""
-        out = cls.published_static(dims, er)
         corr = cls.correction
         if corr is None:
-            return out
+            return cls.published_static(dims, er)
+        out = cls.base_static(dims, er)
         params = cls.static_parameters(dims)
+        k = cls.correction_weight(dims)
         return {
-            m: (corr.z_air(m, params, z), corr.eps_eff(m, params, e, er))
+            m: (corr.z_air(m, params, z, k), corr.eps_eff(m, params, e, er, k))
             for m, (z, e) in out.items()
         }
+
+    @classmethod
+    def base_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """What the correction's series multiply: the published formulas (a pair: with the
+        single line's correction, see ``pair_base``)."""
+        return cls.published_static(dims, er)
+
+    @classmethod
+    def correction_weight(cls, dims: Mapping[str, ArrayLike]) -> ArrayLike:
+        """The factor on the correction's series (1; a pair's coupling, so that its own
+        correction vanishes as the lines part and the single line's remains)."""
+        return 1.0
 
     @classmethod
     def published(cls) -> type[CrossSection]:
@@ -372,9 +416,11 @@ class CrossSection:
     def corrected_z_air(cls, mode: str, dims: Mapping[str, ArrayLike]) -> np.ndarray:
         """The corrected air-filled impedance of ``mode`` (Wheeler's rule differentiates
         it)."""
-        z = cls.published_static(dims, 1.0)[mode][0]
         corr = cls.correction
-        return z if corr is None else corr.z_air(mode, cls.static_parameters(dims), z)
+        if corr is None:
+            return cls.published_static(dims, 1.0)[mode][0]
+        z = cls.base_static(dims, 1.0)[mode][0]
+        return corr.z_air(mode, cls.static_parameters(dims), z, cls.correction_weight(dims))
 
     # -- the model interface ------------------------------------------------------------
     def modes(self, f: np.ndarray) -> dict[str, Mode]:

@@ -164,18 +164,26 @@ class StaticCorrection:
         fill = {m: np.zeros((1,) * (len(axes) + 1)) for m in modes} if dk is not None else {}
         return cls.of(axes, dk, {m: zero for m in modes}, fill, "not fitted")
 
-    def z_air(self, mode: str, params: tuple[ArrayLike, ...], z_air: ArrayLike) -> np.ndarray:
-        """The corrected air-filled impedance of ``mode`` at the geometry ``params``."""
-        return np.asarray(z_air, float) * np.exp(-self.air[mode](*params))
+    def z_air(
+        self, mode: str, params: tuple[ArrayLike, ...], z_air: ArrayLike, weight: ArrayLike = 1.0
+    ) -> np.ndarray:
+        """The corrected air-filled impedance of ``mode`` at the geometry ``params``; the
+        series is multiplied by ``weight`` (a pair's coupling, see ``CrossSection``)."""
+        return np.asarray(z_air, float) * np.exp(-np.asarray(weight) * self.air[mode](*params))
 
     def eps_eff(
-        self, mode: str, params: tuple[ArrayLike, ...], eps_eff: ArrayLike, er: ArrayLike
+        self,
+        mode: str,
+        params: tuple[ArrayLike, ...],
+        eps_eff: ArrayLike,
+        er: ArrayLike,
+        weight: ArrayLike = 1.0,
     ) -> np.ndarray:
         """The corrected quasi-static effective permittivity of ``mode``."""
         eps_eff = np.asarray(eps_eff, float)
         if mode not in self.fill:
             return eps_eff
-        return 1.0 + (eps_eff - 1.0) * np.exp(self.fill[mode](*params, er))
+        return 1.0 + (eps_eff - 1.0) * np.exp(np.asarray(weight) * self.fill[mode](*params, er))
 
 
 __all__ = ["Axis", "Series", "StaticCorrection", "chebyshev"]

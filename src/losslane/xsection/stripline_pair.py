@@ -43,13 +43,22 @@ from losslane.xsection.base import (
     PAIR_MODES,
     CrossSection,
     Metal,
+    pair_base,
+    pair_coupling,
     strip_and_planes,
     strip_loss_modelled,
 )
 from losslane.xsection.elliptic import k_ratio
 from losslane.xsection.fitted import Axis, StaticCorrection
 from losslane.xsection.rlgc import ETA0, ConductorGroup, Mode, assemble_mode
-from losslane.xsection.stripline import centred_z_air, centring, cohn_z_air, nearer_plane
+from losslane.xsection.stripline import (
+    Stripline,
+    centred_z_air,
+    centring,
+    cohn_z_air,
+    exactness_weight,
+    nearer_plane,
+)
 from losslane.xsection.validity import Limit, Quantities
 
 if TYPE_CHECKING:
@@ -222,6 +231,19 @@ class StriplinePair(CrossSection):
         p = tuple(dims[k] for k in cls.dimensions)
         er = np.asarray(er, float)
         return {m: (stripline_pair_z_air(m, *p), er) for m in PAIR_MODES}
+
+    @classmethod
+    def base_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        single = {k: dims[k] for k in ("width", "below", "above", "thickness")}
+        return pair_base(cls, Stripline, single, dims, er)
+
+    @classmethod
+    def correction_weight(cls, dims: Mapping[str, ArrayLike]) -> np.ndarray:
+        """The coupling ln(Z_even/Z_odd) times the single stripline's weight: zero where
+        Cohn's zero-thickness centred pair is exact, and for lines far apart."""
+        return pair_coupling(cls, dims) * exactness_weight(dims)
 
     def mode_arrays(
         self,
