@@ -89,3 +89,25 @@ def test_roughness_multiplies_the_smooth_surface_loss() -> None:
     # at 10 GHz the strip's excess and the plane both carry K: (R_rough - R_dc) = K (R - R_dc)
     # up to the planes' own DC-free share (exactly K times too), so the ratio is K
     assert (r_r[2] - r_dc) / (r_s[2] - r_dc) == pytest.approx(k[2], rel=1e-3)
+
+
+def test_a_field_solved_section_gives_its_eddy_current_solution() -> None:
+    # the eddy-current mode reached from a field-solved section uses the section's own
+    # conductors: at DC its R is the strip's 1/(sigma w t) plus the planes' (hand
+    # calculation; the eddy solver's planes are 100 structure sizes wide)
+    from losslane.xsection.fieldsolve.layouts import FieldOptions
+    from losslane.xsection.fieldsolve.section import FieldSection
+
+    dims = {"width": 6 * MIL, "height": 3.5 * MIL, "thickness": 1.4 * MIL}
+    metal = Metal(plane_thickness=0.5 * OZ_COPPER)
+    sec = FieldSection.from_model(Microstrip, dims, FieldOptions(AIR), metal)
+    res = sec.eddy(np.array([0.0, 1e9]), estimate=False)
+    sigma = metal.conductor.sigma
+    strip = 1 / (sigma * dims["width"] * dims["thickness"])
+    plane = 1 / (sigma * res.plane_thickness * res.plane_width)
+    assert res.plane_thickness == 0.5 * OZ_COPPER
+    assert res.r[0, 0, 0] == pytest.approx(strip + plane, rel=1e-9)
+    # and at 1 GHz it agrees with the section's own conductor model (Wheeler's rule on
+    # the field solver's surface current, within the 1.5 % of the corner effect)
+    closed = sec.rlgc(np.array([1e9])).r[0, 0, 0]
+    assert closed == pytest.approx(res.r[1, 0, 0], rel=0.02)

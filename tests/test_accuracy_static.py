@@ -84,7 +84,7 @@ CASES = [
     stripline(4.0, 0.02, 0.08),
     stripline(0.7, 0.0, 0.3),
     # tight gap, thick copper; offset; wide; zero thickness near a plane
-    stripline_pair(0.08, 0.05, 0.2, 0.5),
+    stripline_pair(0.15, 0.06, 0.15, 0.5),
     stripline_pair(0.5, 0.2, 0.1, 0.2),
     stripline_pair(1.2, 1.5, 0.15, 0.4),
     stripline_pair(0.3, 0.6, 0.0, 0.12),

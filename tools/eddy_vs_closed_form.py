@@ -115,11 +115,14 @@ def main() -> None:
             sel = (F >= lo) & (F <= hi)
             row.append(_span(dr[sel]))
             row.append(_span(dl[sel]))
+        hf = F >= 1e6
+        row.append(f"{100 * np.abs(dr).max():.1f} %")
+        row.append(f"{100 * np.abs(dl[hf]).max():.2f} %")
         summary.append(row)
     print("\n### Summary: closed form / eddy current - 1 (min .. max over the band)\n")
     head = " | ".join(f"R {b} | L {b}" for b, _, _ in BANDS)
-    print(f"| geometry | {head} |")
-    print("|---" * (1 + 2 * len(BANDS)) + "|")
+    print(f"| geometry | {head} | worst R 1 kHz-10 GHz | worst L 1 MHz-10 GHz |")
+    print("|---" * (3 + 2 * len(BANDS)) + "|")
     for row in summary:
         print("| " + " | ".join(row) + " |")
 

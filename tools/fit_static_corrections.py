@@ -57,10 +57,22 @@ PLAN: dict[str, dict] = {
         "nodes": (9, 9, 6),
         "dk_nodes": 7,
     },
-    "cpw": {"air": (7, 7, 4), "fill": (7, 7, 4, 4), "nodes": (9, 9, 6), "dk_nodes": 7},
-    "gcpw": {"air": (7, 7, 4), "fill": (7, 7, 4, 4), "nodes": (9, 9, 6), "dk_nodes": 7},
+    "cpw": {
+        "air": (7, 7, 4),
+        "fill": (7, 7, 4, 4),
+        "loss": (7, 7, 4),
+        "nodes": (9, 9, 6),
+        "dk_nodes": 7,
+    },
+    "gcpw": {
+        "air": (7, 7, 4),
+        "fill": (7, 7, 4, 4),
+        "loss": (7, 7, 4),
+        "nodes": (9, 9, 6),
+        "dk_nodes": 7,
+    },
     "stripline": {"air": (8, 5, 4), "nodes": (11, 7, 6)},
-    "stripline-pair": {"air": (6, 6, 4, 3), "nodes": (8, 8, 6, 5)},
+    "stripline-pair": {"air": (8, 8, 5, 3), "nodes": (11, 11, 7, 5)},
 }
 
 
@@ -76,10 +88,11 @@ def nodes(axis: Axis, count: int) -> np.ndarray:
 
 
 def mode_values(sol, eps_regions: np.ndarray, modes: tuple[str, ...]) -> dict:
-    """{mode: (C0, C(dk) over the dk list)} from one solve."""
+    """{mode: (C0, C(dk) over the dk list)} from one solve, and under "groups" each
+    conductor group's Wheeler factor (1/m, its first diagonal entry)."""
     cc = complex_capacitance(sol, eps_regions).real  # (K, n, n)
     c0 = sol.c0
-    out = {}
+    out: dict = {"groups": {g.name: float(g.matrix[0, 0]) for g in sol.groups}}
     for m in modes:
         if m == "single":
             out[m] = (c0[0, 0], cc[:, 0, 0])
@@ -108,6 +121,23 @@ def solve_point(args):
 
 def modes_of(cls) -> tuple[str, ...]:
     return tuple(cls.correction.air)
+
+
+def loss_targets(cls, points: list, solved: list) -> dict:
+    """{model group: ln(G_field * length) (P,)} for a kind with ``loss_groups``: the
+    field solver's Wheeler factor of each conductor group made dimensionless by the
+    kind's ``loss_length`` (the model uses these instead of its own recession)."""
+    mapping = getattr(cls, "loss_groups", None)
+    if not mapping:
+        return {}
+    out: dict = {g: [] for g in mapping}
+    for p, res in zip(points, solved, strict=True):
+        dims = cls.static_dimensions(p)
+        length = float(dims[cls.loss_length])
+        for g, name in mapping.items():
+            if name in res["groups"]:
+                out[g].append(np.log(res["groups"][name] * length))
+    return {g: np.array(v) for g, v in out.items() if len(v) == len(points)}
 
 
 def solve_all(
@@ -187,11 +217,20 @@ def design(axes: tuple[Axis, ...], degrees: tuple[int, ...], values: list[np.nda
     return cols
 
 
+#: ridge on the coefficients of a weighted fit: where a pair's weight (its coupling) is
+#: tiny the data leave the series free; this keeps it small there
+RIDGE = 1e-3
+
+
 def fit(axes, degrees, values, y, weight=None) -> np.ndarray:
-    """Least squares of weight * series = y (weight 1: the series itself)."""
+    """Least squares of weight * series = y (weight 1: the series itself; with weights,
+    a small ridge on the coefficients)."""
     a = design(axes, degrees, values)
     if weight is not None:
         a = a * weight[:, None]
+        ridge = RIDGE * np.sqrt(len(y) / a.shape[1]) * np.max(np.abs(weight))
+        a = np.vstack([a, ridge * np.eye(a.shape[1])])
+        y = np.concatenate([y, np.zeros(a.shape[1])])
     coef, *_ = np.linalg.lstsq(a, y, rcond=None)
     return coef.reshape(tuple(d + 1 for d in degrees))
 
@@ -241,7 +280,9 @@ def format_array(a: np.ndarray, indent: int) -> str:
     return f'(\n{pad}{tuple(a.shape)},\n{pad}"""\n{body}\n{pad}""",\n{out})'
 
 
-def block(kind: str, name: str, corr_air: dict, corr_fill: dict, note: str) -> str:
+def block(
+    kind: str, name: str, corr_air: dict, corr_fill: dict, note: str, loss: dict | None = None
+) -> str:
     lines = [
         f"# BEGIN fitted {kind} (written by tools/fit_static_corrections.py; do not edit)",
         f"{name} = StaticCorrection.of(",
@@ -256,6 +297,11 @@ def block(kind: str, name: str, corr_air: dict, corr_fill: dict, note: str) -> s
         lines.append("    fill={")
         for m, c in corr_fill.items():
             lines.append(f'        "{m}": {format_array(c, 12)},')
+        lines.append("    },")
+    if loss:
+        lines.append("    loss={")
+        for g, c in loss.items():
+            lines.append(f'        "{g}": {format_array(c, 12)},')
         lines.append("    },")
     words = note.split()
     text, line = [], ""
@@ -312,7 +358,8 @@ def main() -> None:
     solve_dks = np.array([DK_REF]) if homogeneous else dks
     grid = [nodes(a, n) for a, n in zip(axes, plan["nodes"], strict=True)]
     points = list(itertools.product(*grid))
-    key = zlib.crc32(repr((axes, list(solve_dks))).encode())
+    tag = ("groups",) if "loss" in plan else ()
+    key = zlib.crc32(repr((axes, list(solve_dks)) + tag).encode())
     store = Path(args.cache) / f"{args.kind}-{args.accuracy}-{key:08x}.pickle"
     solved = solve_all(args.kind, points, solve_dks, LEVELS[args.accuracy], args.jobs, store)
     tg, wts = targets(cls, points, solve_dks, solved)
@@ -334,7 +381,14 @@ def main() -> None:
         )
     from losslane.xsection.fitted import StaticCorrection
 
-    new = StaticCorrection.of(axes, corr.dk, air, fill)
+    loss = {}
+    if "loss" in plan:
+        for g, y in loss_targets(cls, points, solved).items():
+            loss[g] = fit(axes, plan["loss"], grid_values(points, None), y)
+            fitted = design(axes, plan["loss"], grid_values(points, None)) @ loss[g].ravel()
+            worst = 100 * np.max(np.abs(np.expm1(fitted - y)))
+            print(f"{g}: Wheeler factor fitted within {worst:.2f} %")
+    new = StaticCorrection.of(axes, corr.dk, air, fill, loss=loss)
     cls.correction = new  # the class reads its correction through this attribute
     train = errors(cls, new, points, solve_dks, solved)
     summary = "; ".join(
@@ -367,7 +421,9 @@ def main() -> None:
         print(f"worst on {len(pts)} random points against 'fine' solves: {line}")
         note += f"; on {len(pts)} random points against 'fine' solves: {line}"
     if args.write:
-        path = write_block(cls, args.kind, lambda name: block(args.kind, name, air, fill, note))
+        path = write_block(
+            cls, args.kind, lambda name: block(args.kind, name, air, fill, note, loss)
+        )
         print(f"wrote {path}")
 
 

@@ -14,6 +14,7 @@ from numpy.typing import ArrayLike
 from losslane.errors import LossLaneError
 
 MU0 = 4e-7 * np.pi * (1 + 5.5e-10)  # CODATA 2018 value of the vacuum permeability
+EULER_GAMMA = 0.5772156649015329
 
 
 @dataclass(frozen=True)
@@ -116,22 +117,40 @@ SPREAD_FLOOR = 0.04
 
 
 def exp_e1(c: ArrayLike) -> np.ndarray:
-    """e^c E1(c) for complex c with Re c >= 0 (E1 the exponential integral), without
-    overflow: the asymptotic series 1/c - 1/c^2 + 2/c^3 - ... where |c| > 40."""
-    from scipy.special import exp1
-
+    """e^c E1(c) for complex c with Re c >= 0 (E1 the exponential integral), to about
+    1e-12 and without overflow: the asymptotic series 1/c - 1/c^2 + 2/c^3 - ... for
+    |c| > 40 (fewer terms the larger |c|), the continued fraction
+    1/(c + 1 - 1/(c + 3 - 4/(c + 5 - ...))) for 2 < |c| <= 40, and the power series
+    E1(c) = -gamma - ln c - sum (-c)^n / (n n!) for |c| <= 2 (Abramowitz and Stegun,
+    5.1.11, 5.1.22, 5.1.51)."""
     c = np.asarray(c, dtype=complex)
     out = np.empty_like(c)
-    big = np.abs(c) > 40.0
-    cb = c[big]
-    acc = np.zeros_like(cb)
-    term = 1.0 / cb
-    for n in range(14):  # the n-th term is n!/|c|^(n+1): below 1e-12 relative at |c| = 40
-        acc += term
-        term = -term * (n + 1) / cb
-    out[big] = acc
-    cs = c[~big]
-    out[~big] = np.exp(cs) * exp1(cs)
+    a = np.abs(c)
+    for lo, hi, terms in ((40.0, 200.0, 14), (200.0, np.inf, 7)):
+        sel = (a > lo) & (a <= hi)
+        if np.any(sel):
+            u = 1.0 / c[sel]
+            acc = np.ones_like(u)
+            for n in range(terms - 1, 0, -1):  # Horner: 1 - u (1 - 2 u (1 - 3 u ...))
+                acc = 1.0 - n * u * acc
+            out[sel] = u * acc
+    for lo, hi, depth in ((2.0, 8.0, 60), (8.0, 40.0, 24)):
+        sel = (a > lo) & (a <= hi)
+        if np.any(sel):
+            cm = c[sel]
+            t = np.zeros_like(cm)
+            for k in range(depth, 0, -1):
+                t = k * k / (cm + (2 * k + 1) - t)
+            out[sel] = 1.0 / (cm + 1.0 - t)
+    sel = a <= 2.0
+    if np.any(sel):
+        cs = c[sel]
+        total = np.zeros_like(cs)
+        term = np.ones_like(cs)
+        for n in range(1, 26):
+            term = -term * cs / n
+            total = total - term / n
+        out[sel] = np.exp(cs) * (-EULER_GAMMA - np.log(cs) + total)
     return out
 
 
@@ -209,8 +228,12 @@ def return_impedance(
     safe = np.where(g_total > 0, g_total, 1.0)
     omega = 2 * np.pi * f
     out = []
+    sheets: dict = {}
     for g, t, k in parts:
-        r, l_int = sheet_return(f, conductor, g_total, t, floor)
+        key = float(t) if np.ndim(t) == 0 else id(t)
+        if key not in sheets:  # parts of one thickness share the sheet's impedance
+            sheets[key] = sheet_return(f, conductor, g_total, t, floor)
+        r, l_int = sheets[key]
         share = np.asarray(g, float) / safe
         # K (complex for a plated stack) scales the impedance: Z / (j w) = L - j R / w
         # -> K (L - j R / w), kept in that form so that DC stays finite

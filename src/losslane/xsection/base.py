@@ -26,12 +26,12 @@ from losslane.materials.roughness import Roughness, Smooth
 from losslane.units import INCH, OZ_COPPER
 from losslane.xsection.fitted import StaticCorrection
 from losslane.xsection.rlgc import (
+    ETA0,
     NP_TO_DB,
     RLGC,
     ConductorGroup,
     Mode,
     attenuation_split,
-    wheeler_factor,
 )
 from losslane.xsection.validity import Limit, Quantities, check_limits
 
@@ -121,27 +121,76 @@ def strip_and_planes(
     (``proximity``); a plane's depth is ``metal.plane_thickness`` with the planes' foil,
     marked wide.
     """
+    groups = modal_strip_and_planes(
+        lambda p: {"mode": z_air(p)}, p0, strip, planes, scale, area, metal, aspect, proximity
+    )
+    return groups["mode"]
+
+
+def modal_strip_and_planes(
+    z_air: Callable[[tuple], dict[str, np.ndarray]],
+    p0: tuple,
+    strip: tuple[str, Recede],
+    planes: list[tuple[str, Recede]],
+    scale: np.ndarray,
+    area: np.ndarray,
+    metal: Metal,
+    aspect: np.ndarray,
+    proximity: np.ndarray,
+    at_p0: Mapping[str, np.ndarray] | None = None,
+) -> dict[str, list[ConductorGroup]]:
+    """``strip_and_planes`` of every mode at once: ``z_air(params)`` returns {mode: Z_air},
+    so each receded geometry is evaluated once for all modes (a pair's even and odd).
+    With ``at_p0`` (the values at ``p0``) the difference is one-sided, step 1e-4 of
+    ``scale``: one evaluation per wall instead of two (its error, of the order of the
+    step, is far below the rule's own)."""
+
+    def factors(recede: Recede) -> dict[str, np.ndarray]:
+        dn = 1e-4 * np.asarray(scale, float)
+        hi = z_air(recede(p0, dn))
+        if at_p0 is not None:
+            return {m: (hi[m] - at_p0[m]) / dn / ETA0 for m in hi}
+        lo = z_air(recede(p0, -dn))
+        return {m: (hi[m] - lo[m]) / (2 * dn) / ETA0 for m in hi}
+
     name, recede = strip
-    g_strip = wheeler_factor(z_air, p0, recede, scale)
-    groups = [
-        ConductorGroup(
-            name,
-            g_strip,
-            g_strip * area,
-            metal.conductor,
-            metal.foil,
-            aspect=aspect,
-            proximity=proximity,
-        )
-    ]
-    for name, recede in planes:
-        g = wheeler_factor(z_air, p0, recede, scale)
-        groups.append(
+    g_strip = factors(recede)
+    out = {
+        m: [
             ConductorGroup(
-                name, g, metal.plane_thickness, metal.conductor, metal.plane_roughness, True
+                name, g, g * area, metal.conductor, metal.foil, aspect=aspect, proximity=proximity
             )
-        )
-    return groups
+        ]
+        for m, g in g_strip.items()
+    }
+    for name, recede in planes:
+        for m, g in factors(recede).items():
+            out[m].append(
+                ConductorGroup(
+                    name, g, metal.plane_thickness, metal.conductor, metal.plane_roughness, True
+                )
+            )
+    return out
+
+
+def air_factor(single: type[CrossSection], dims: Mapping[str, ArrayLike]) -> np.ndarray:
+    """Z_air,corrected / Z_air,published of a single line (1 without a correction)."""
+    corr = single.correction
+    if corr is None:
+        return np.asarray(1.0)
+    k = single.correction_weight(dims)
+    return np.exp(-np.asarray(k) * corr.air["single"](*single.static_parameters(dims)))
+
+
+def fill_factor(
+    single: type[CrossSection], dims: Mapping[str, ArrayLike], er: ArrayLike
+) -> np.ndarray:
+    """q_corrected / q_published of a single line (1 without a filling correction)."""
+    corr = single.correction
+    if corr is None or "single" not in corr.fill:
+        return np.asarray(1.0)
+    k = single.correction_weight(dims)
+    return np.exp(np.asarray(k) * corr.fill["single"](*single.static_parameters(dims), er))
 
 
 def pair_base(
@@ -157,20 +206,23 @@ def pair_base(
     tend to the corrected single line, as the published formulas tend to the single
     line's published values."""
     pub = pair.published_static(dims, er)
-    s_pub = single.published_static(single_dims, er)["single"]
-    s_cor = single.corrected_static(single_dims, er)["single"]
-    fa = s_cor[0] / s_pub[0]
-    den = np.asarray(s_pub[1], float) - 1.0
-    safe = np.abs(den) > 1e-12
-    fq = np.where(safe, (np.asarray(s_cor[1], float) - 1.0) / np.where(safe, den, 1.0), 1.0)
+    fa = air_factor(single, single_dims)
+    fq = fill_factor(single, single_dims, er)
     return {m: (z * fa, 1.0 + (np.asarray(e, float) - 1.0) * fq) for m, (z, e) in pub.items()}
 
 
-def pair_coupling(pair: type[CrossSection], dims: Mapping[str, ArrayLike]) -> np.ndarray:
-    """ln(Z_even / Z_odd) of the published air-filled pair: the weight of a pair's own
-    correction (0 for lines far apart)."""
-    z = pair.published_static(dims, 1.0)
-    return np.log(np.asarray(z["even"][0], float) / np.asarray(z["odd"][0], float))
+def pair_coupling(
+    pair: type[CrossSection],
+    dims: Mapping[str, ArrayLike],
+    base_air: Mapping[str, np.ndarray] | None = None,
+) -> np.ndarray:
+    """ln(Z_even / Z_odd) of the published air-filled pair (from ``base_air``, the base
+    values, when the caller has them: they carry one factor for both modes): the weight of
+    a pair's own correction (0 for lines far apart)."""
+    z = base_air
+    if z is None:
+        z = {m: v[0] for m, v in pair.published_static(dims, 1.0).items()}
+    return np.log(np.asarray(z["even"], float) / np.asarray(z["odd"], float))
 
 
 #: the modal transform of a symmetric pair: columns even (1, 1) and odd (1, -1), normalised
@@ -384,7 +436,7 @@ class CrossSection:
             return cls.published_static(dims, er)
         out = cls.base_static(dims, er)
         params = cls.static_parameters(dims)
-        k = cls.correction_weight(dims)
+        k = cls.correction_weight(dims, {m: z for m, (z, _) in out.items()})
         return {
             m: (corr.z_air(m, params, z, k), corr.eps_eff(m, params, e, er, k))
             for m, (z, e) in out.items()
@@ -399,10 +451,33 @@ class CrossSection:
         return cls.published_static(dims, er)
 
     @classmethod
-    def correction_weight(cls, dims: Mapping[str, ArrayLike]) -> ArrayLike:
+    def base_air(
+        cls, dims: Mapping[str, ArrayLike], published_air: Mapping[str, np.ndarray]
+    ) -> dict[str, np.ndarray]:
+        """The air-filled impedances the correction's series multiply (``base_static`` at
+        Dk = 1, from the published ``published_air``)."""
+        return dict(published_air)
+
+    @classmethod
+    def correction_weight(
+        cls, dims: Mapping[str, ArrayLike], base_air: Mapping[str, np.ndarray] | None = None
+    ) -> ArrayLike:
         """The factor on the correction's series (1; a pair's coupling, so that its own
-        correction vanishes as the lines part and the single line's remains)."""
+        correction vanishes as the lines part and the single line's remains). ``base_air``:
+        the modes' base air-filled impedances where the caller has them."""
         return 1.0
+
+    @classmethod
+    def corrected_air(cls, dims: Mapping[str, ArrayLike]) -> dict[str, np.ndarray]:
+        """{mode: Z_air} with the correction: what Wheeler's rule differentiates."""
+        pub = {m: v[0] for m, v in cls.published_static(dims, 1.0).items()}
+        corr = cls.correction
+        if corr is None:
+            return pub
+        params = cls.static_parameters(dims)
+        base = cls.base_air(dims, pub)
+        k = cls.correction_weight(dims, base)
+        return {m: corr.z_air(m, params, z, k) for m, z in base.items()}
 
     @classmethod
     def published(cls) -> type[CrossSection]:
@@ -414,13 +489,8 @@ class CrossSection:
 
     @classmethod
     def corrected_z_air(cls, mode: str, dims: Mapping[str, ArrayLike]) -> np.ndarray:
-        """The corrected air-filled impedance of ``mode`` (Wheeler's rule differentiates
-        it)."""
-        corr = cls.correction
-        if corr is None:
-            return cls.published_static(dims, 1.0)[mode][0]
-        z = cls.base_static(dims, 1.0)[mode][0]
-        return corr.z_air(mode, cls.static_parameters(dims), z, cls.correction_weight(dims))
+        """The corrected air-filled impedance of ``mode``."""
+        return cls.corrected_air(dims)[mode]
 
     # -- the model interface ------------------------------------------------------------
     def modes(self, f: np.ndarray) -> dict[str, Mode]:

@@ -92,31 +92,33 @@ class Series:
             new = np.broadcast_shapes(shape, v.shape)
             d = res.shape[len(shape)]
             rest = res.shape[len(shape) + 1 :]
-            head = res.reshape(shape + (d, -1))
-            t = chebyshev(ax.unit(v), d - 1)[..., None, :]
-            res = _matmul(t, head).reshape(new + rest)
+            t = chebyshev(ax.unit(v), d - 1)
+            res = _contract(t, res.reshape(shape + (d, -1)), shape, new).reshape(new + rest)
             shape = new
         return res
 
 
-def _matmul(t: np.ndarray, head: np.ndarray) -> np.ndarray:
-    """t @ head over broadcast batch axes (t: (..., 1, d), head: (..., d, r)) -> (..., r),
-    in blocks along the first batch axis when the result would be large."""
-    shape = np.broadcast_shapes(t.shape[:-2], head.shape[:-2])
-    r = head.shape[-1]
-    if not shape or int(np.prod(shape)) * r <= _BLOCK:
-        return np.einsum("...ik,...kr->...r", t, head)
-    out = np.empty(shape + (r,))
-    tb = np.broadcast_to(t, shape + t.shape[-2:])
-    hb = np.broadcast_to(head, shape + head.shape[-2:])
-    step = max(1, _BLOCK // (r * max(1, int(np.prod(shape[1:])))))
-    for lo in range(0, shape[0], step):
-        out[lo : lo + step] = np.einsum("...ik,...kr->...r", tb[lo : lo + step], hb[lo : lo + step])
+def _contract(t: np.ndarray, head: np.ndarray, shape: tuple, new: tuple) -> np.ndarray:
+    """sum_k t[..., k] head[..., k, r] over the broadcast shape ``new`` -> (new..., r):
+    one matrix product where ``head`` has no sample axes yet, a per-sample contraction
+    otherwise (in blocks of samples, which bounds the temporaries of large batches)."""
+    d, r = head.shape[-2:]
+    count = int(np.prod(new, dtype=int))
+    if not shape:
+        return np.broadcast_to(t, new + (d,)).reshape(count, d) @ head
+    if t.shape[:-1] != new or shape != new:
+        # sample axes added here (a per-frequency axis): broadcast, no copies
+        return np.einsum("...k,...kr->...r", t, head).reshape(count, r)
+    tt, hh = t.reshape(count, d), head.reshape(count, d, r)
+    out = np.empty((count, r))
+    step = max(1, _BLOCK // max(d * r, 1))
+    for lo in range(0, count, step):
+        out[lo : lo + step] = np.einsum("pk,pkr->pr", tt[lo : lo + step], hh[lo : lo + step])
     return out
 
 
 #: values per block of an evaluation (bounds the temporary arrays of large sample batches)
-_BLOCK = 1 << 20
+_BLOCK = 1 << 21
 
 
 @dataclass(frozen=True)
@@ -128,7 +130,11 @@ class StaticCorrection:
     * ``fill[mode]``: ln(q_field / q_model) over the geometry axes and the laminate's
       ``dk`` axis, q = (eps_eff - 1)/(eps_r - 1) the dielectric filling factor, so
       eps_eff = 1 + (eps_eff,model - 1) exp(fill) (exactly 1 in air). Absent for a kind
-      in one homogeneous dielectric (eps_eff = eps_r).
+      in one homogeneous dielectric (eps_eff = eps_r);
+    * ``loss[group]`` (optional): ln(G_field * length) of a conductor group's Wheeler
+      factor over the geometry axes (length: the kind's ``loss_length``), for a kind whose
+      own split of the conductor loss between its conductors is poor (the coplanar lines'
+      strip and grounds); the model then takes G from it.
 
     ``note`` records how the coefficients were made and what they achieved.
     """
@@ -138,6 +144,7 @@ class StaticCorrection:
     air: dict[str, Series]
     fill: dict[str, Series]
     note: str = ""
+    loss: dict[str, Series] = field(default_factory=dict)
 
     @classmethod
     def of(
@@ -147,6 +154,7 @@ class StaticCorrection:
         air: dict,
         fill: dict | None = None,
         note: str = "",
+        loss: dict | None = None,
     ) -> StaticCorrection:
         fill_axes = axes + ((dk,) if dk is not None else ())
         return cls(
@@ -155,6 +163,7 @@ class StaticCorrection:
             {m: Series.of(axes, c) for m, c in air.items()},
             {m: Series.of(fill_axes, c) for m, c in (fill or {}).items()},
             note,
+            {g: Series.of(axes, c) for g, c in (loss or {}).items()},
         )
 
     @classmethod
@@ -170,6 +179,10 @@ class StaticCorrection:
         """The corrected air-filled impedance of ``mode`` at the geometry ``params``; the
         series is multiplied by ``weight`` (a pair's coupling, see ``CrossSection``)."""
         return np.asarray(z_air, float) * np.exp(-np.asarray(weight) * self.air[mode](*params))
+
+    def loss_value(self, group: str, params: tuple[ArrayLike, ...]) -> np.ndarray:
+        """G * length of conductor group ``group``: the fitted field-solver value."""
+        return np.exp(self.loss[group](*params))
 
     def eps_eff(
         self,

@@ -10,7 +10,13 @@ Methods and validity (coefficients as published; ranges from the papers, from me
 * eps_eff dispersion: Kirschning & Jansen, Electronics Letters 18(6), 1982 -- within
   0.6 % for 0.1 <= w/h <= 100, 1 <= eps_r <= 20, h/lambda0 <= 0.13;
 * Z0 dispersion: Jansen & Kirschning, AEU 37, 1983 -- for 0.1 <= w/h <= 10,
-  1 <= eps_r <= 18, h/lambda0 <= 0.13.
+  1 <= eps_r <= 18, h/lambda0 <= 0.13;
+* the field-solver correction (``xsection.fitted``): the quasi-static air-filled
+  capacitance and filling factor of Hammerstad-Jensen times fitted functions of w/h, t/h
+  and Dk, so that Z0 and eps_eff agree with the 2-D field solver within 0.1 % over
+  0.05 <= w/h <= 50, t/h <= 0.5, Dk <= 20 (Hammerstad-Jensen's thickness correction alone
+  is up to 4 % off in Z0 and 9 % in eps_eff for narrow strips with t/h = 0.5). The
+  dispersion laws start from the corrected values.
 """
 
 from __future__ import annotations

@@ -303,6 +303,32 @@ class FieldSection(CrossSection):
             )
         return out
 
+    def eddy(
+        self,
+        f: np.ndarray,
+        *,
+        accuracy: str = "normal",
+        plane_width: float | None = None,
+        estimate: bool = True,
+    ):
+        """The eddy-current solution of this cross-section's conductors
+        (``fieldsolve.eddy.eddy_impedance``): R(f) and L(f) (N, n, n) with the strip(s),
+        planes and grounds meshed, the metal's conductivity and plane thickness. The
+        reference for the conductor model where proximity, corners or the DC-to-skin
+        transition matter; smooth copper (roughness is not part of it)."""
+        from losslane.xsection.fieldsolve.eddy import eddy_impedance
+
+        m = self.metal
+        return eddy_impedance(
+            self.geometry,
+            f,
+            conductivity=m.conductor.sigma,
+            plane_thickness=m.plane_thickness,
+            plane_width=plane_width,
+            accuracy=accuracy,
+            estimate=estimate,
+        )
+
     # -- reporting --------------------------------------------------------------------
     def error_estimate(self) -> dict:
         """Relative changes from the next coarser mesh setting (frequency independent,
