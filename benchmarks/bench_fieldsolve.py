@@ -18,15 +18,22 @@ MIL = 25.4e-6
 
 def _sections():
     from losslane.materials.dielectric import WidebandDebye
+    from losslane.xsection import registry
     from losslane.xsection.base import Metal
-    from losslane.xsection.factory import FIELD_BUILDERS
+    from losslane.xsection.fieldsolve.options import field_section
 
     lam = WidebandDebye(3.7, 0.009, 10e9, name="laminate (typical)")
     mask = WidebandDebye(3.5, 0.02, 1e9, name="solder mask (typical)")
-    single = FIELD_BUILDERS["microstrip"](
-        {"width": 6 * MIL, "height": 3.5 * MIL, "thickness": 1.4 * MIL}, lam, Metal(), {}, "bench"
+    single = field_section(
+        registry.model("microstrip"),
+        {"width": 6 * MIL, "height": 3.5 * MIL, "thickness": 1.4 * MIL},
+        lam,
+        Metal(),
+        {},
+        "bench",
     )
-    pair = FIELD_BUILDERS["microstrip-pair"](
+    pair = field_section(
+        registry.model("microstrip-pair"),
         {"width": 5 * MIL, "spacing": 6 * MIL, "height": 4 * MIL, "thickness": 1.4 * MIL},
         lam,
         Metal(),

@@ -111,3 +111,54 @@ def test_a_field_solved_section_gives_its_eddy_current_solution() -> None:
     # the field solver's surface current, within the 1.5 % of the corner effect)
     closed = sec.rlgc(np.array([1e9])).r[0, 0, 0]
     assert closed == pytest.approx(res.r[1, 0, 0], rel=0.02)
+
+
+PAIRS = {
+    "microstrip pair 5/4 mil, 6 mil apart, 1 oz on a 0.5 oz plane": (
+        "microstrip-pair",
+        {"width": 5 * MIL, "spacing": 6 * MIL, "height": 4 * MIL, "thickness": OZ_COPPER},
+        0.5 * OZ_COPPER,
+    ),
+    "stripline pair 4 mil, 8 mil apart, 5/6 mil, 0.5 oz, 1 oz planes": (
+        "stripline-pair",
+        {
+            "width": 4 * MIL,
+            "spacing": 8 * MIL,
+            "below": 5 * MIL,
+            "above": 6 * MIL,
+            "thickness": 0.5 * OZ_COPPER,
+        },
+        OZ_COPPER,
+    ),
+}
+
+
+@pytest.mark.parametrize("name", list(PAIRS))
+def test_pair_modes_against_the_eddy_current_solution(name: str) -> None:
+    # the goals per mode of a symmetric pair (the even and odd modes of the eddy-current
+    # matrices, the transform of xsection.base): R within 3 % from DC to 10 GHz, L within
+    # 1.5 % from 3 MHz and 2 % at 1 MHz (measured: the microstrip pair's even mode is
+    # 1.54 % high at 1 MHz, whatever the eddy-current plane's width, 480-4800 mil; the
+    # single lines meet 1.5 % from 1 MHz). The modes' returns see both lines' currents
+    # (materials.conductor.sheet_return with ``pair``): with one line current per mode
+    # the 0.1-3 MHz band was up to 3.5 % off in R and 2.4 % in L
+    from losslane.xsection import registry
+    from losslane.xsection.fieldsolve.layouts import FieldOptions
+    from losslane.xsection.fieldsolve.section import FieldSection
+
+    kind, dims, tp = PAIRS[name]
+    cls = registry.model(kind)
+    metal = Metal(plane_thickness=tp)
+    eddy = FieldSection.from_model(cls, dims, FieldOptions(AIR), metal).eddy(F, estimate=False)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # dk = 1 is outside some dispersion ranges
+        rl = cls(**dims, dielectric=AIR, metal=metal).rlgc(F)
+    t = np.array([[1.0, 1.0], [1.0, -1.0]]) / np.sqrt(2.0)
+    hf = F >= 1e6
+    for k, mode in enumerate(("even", "odd")):
+        r_cf, r_e = (np.einsum("i,fij,j->f", t[:, k], m, t[:, k]) for m in (rl.r, eddy.r))
+        l_cf, l_e = (np.einsum("i,fij,j->f", t[:, k], m, t[:, k]) for m in (rl.l, eddy.l))
+        dr, dl = r_cf / r_e - 1, l_cf[hf] / l_e[hf] - 1
+        assert np.max(np.abs(dr)) < 0.03, (mode, np.round(dr, 4).tolist())
+        assert np.max(np.abs(dl[F[hf] >= 3e6])) < 0.015, (mode, np.round(dl, 4).tolist())
+        assert np.max(np.abs(dl)) < 0.02, (mode, np.round(dl, 4).tolist())

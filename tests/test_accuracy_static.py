@@ -140,3 +140,26 @@ def test_published_formulas_alone_miss_the_goal_with_thick_copper() -> None:
     fixed = cls(**dims, dielectric=d).modes(f)["single"]
     assert abs(raw.z0[0] / field["single"].z0[0] - 1) > 0.03
     assert abs(fixed.z0[0] / field["single"].z0[0] - 1) < GOAL
+
+
+def test_the_checked_geometries_are_not_fitting_nodes() -> None:
+    # the cases above must test the fit between its data, not on it: each one is off the
+    # grid of tools/fit_static_corrections.py (the product of Chebyshev nodes of every
+    # axis) by at least 2 % of the box's span, in the fit's own mapping of the axes to
+    # [-1, 1] (the nodes near the middle of an axis are about 0.2 apart there)
+    import importlib.util
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parents[1] / "tools" / "fit_static_corrections.py"
+    spec = importlib.util.spec_from_file_location("fit_static_corrections", path)
+    tool = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(tool)
+    for kind, dims, _ in CASES:
+        cls = registry.model(kind)
+        counts = tool.PLAN[kind]["nodes"]
+        params = cls.static_parameters(dims)
+        nearest = [
+            np.min(np.abs(axis.unit(tool.nodes(axis, count)) - axis.unit(value)))
+            for axis, count, value in zip(cls.correction.axes, counts, params, strict=True)
+        ]
+        assert np.hypot.reduce(nearest) > 0.04, (kind, dims, nearest)

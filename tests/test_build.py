@@ -127,8 +127,10 @@ def test_demo_cli_writes_touchstone_and_plots(tmp_path, capsys):
         "sensor-lane-budget.json",
         "sensor-lane-budget.png",
         "sensor-lane-ild.png",
+        "sensor-lane-impedance-profile.png",
         "sensor-lane-insertion-loss.png",
         "sensor-lane-mixed-mode.png",
+        "sensor-lane-pulse.png",
         "sensor-lane-report.html",
         "sensor-lane-return-loss.png",
         "sensor-lane.s4p",
@@ -224,9 +226,11 @@ def test_json_is_one_object_and_nothing_else(tmp_path, capsys):
     assert sorted(Path(p).name for p in data["files"]) == [
         "bench-lane-budget.json",
         "bench-lane-ild.png",
+        "bench-lane-impedance-profile.png",
         "bench-lane-insertion-loss.png",
         "bench-lane-report.html",
         "bench-lane-return-loss.png",
+        "bench-lane-step.png",
         "bench-lane.s2p",
     ]
     assert all(Path(p).is_file() for p in data["files"])

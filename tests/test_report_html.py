@@ -122,7 +122,8 @@ def test_page_is_self_contained(built) -> None:
     p = parse_page(page)
     imgs = [v for t, k, v in p.attrs if t == "img" and k == "src"]
     pngs = [f for f in files if f.suffix == ".png"]
-    assert len(imgs) == len(pngs) == 4  # IL, RL, budget chart, ILD: each one embedded
+    # IL, RL, budget chart, ILD, impedance profile, pulse response: each one embedded
+    assert len(imgs) == len(pngs) == 6
     embedded = set()
     for src in imgs:
         assert src.startswith("data:image/png;base64,")

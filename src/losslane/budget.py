@@ -285,12 +285,15 @@ def _at(f: np.ndarray, y: np.ndarray, x: np.ndarray) -> np.ndarray:
     return y[:, idx - 1] * (1.0 - w) + y[:, idx] * w
 
 
-def _line_db_per_in(segment, fx: np.ndarray) -> np.ndarray | None:
+def _line_db_per_in(segment, fx: np.ndarray, victim: str | None = None) -> np.ndarray | None:
     """A line segment's own attenuation (its main mode) at ``fx``, what a laminate
-    comparison quotes; None for other segments."""
+    comparison quotes -- on a group line the ``victim`` trace's, its neighbours quiet;
+    None for other segments."""
     section = getattr(segment, "section", None)
     if segment.type != "line" or section is None:
         return None
+    if victim is not None and hasattr(section, "trace_db_per_in"):
+        return section.trace_db_per_in(fx, victim)
     return section.attenuation_db_per_in(fx)
 
 
@@ -307,7 +310,7 @@ def evaluate_budget(
         return None
     f = np.asarray(result.f, dtype=float)
     pts = check_points(budget, f) if points is None else points
-    mode = "single-ended" if result.nports == 2 else "differential"
+    mode = "differential" if result.differential else "single-ended"
     if not pts:
         return ChannelBudget(budget.data_rate, budget.modulation, (), mode)
     fx = np.array([p.at for p in pts])
@@ -315,7 +318,8 @@ def evaluate_budget(
     total = _at(f, result.insertion_loss_db, fx)[0]
     rl_in, rl_out = result.return_loss
     rin, rout = _at(f, np.vstack([rl_in, rl_out]), fx)
-    per_in = [_line_db_per_in(s, fx) for s in result.scenario.channel]
+    victim = getattr(result, "victim", None)
+    per_in = [_line_db_per_in(s, fx, victim) for s in result.scenario.channel]
     out = []
     for m, p in enumerate(pts):
         rows = tuple(

@@ -17,6 +17,7 @@ import numpy as np
 from losslane.errors import LossLaneError
 from losslane.network.block import Block
 from losslane.network.cascade import cascade_steps, to_network
+from losslane.network.conductors import sub_network
 from losslane.network.imported import TouchstoneBlock
 from losslane.network.line import LineSegment, UniformLine
 from losslane.network.lumped import SeriesCapacitor, SeriesRL, ShuntCapacitor
@@ -25,6 +26,7 @@ from losslane.network.ports import port_names, to_order
 from losslane.network.scatter import loss_db
 from losslane.network.via import Via
 from losslane.scenario import Scenario, Segment
+from losslane.xsection.group import member, pairs_of
 
 
 def make_block(
@@ -67,6 +69,12 @@ class ChannelResult:
     ``insertion_loss_db``: the whole channel's, (N,). For a differential channel the
     losses are the differential mode. Losses beyond 6000 dB read 6000 dB (|S21| below
     1e-300). What is derived from ``s`` is computed once, when first asked for.
+
+    A channel on group lines (``members``: its traces) is a 2n-port judged on its
+    ``victim`` trace: ``pairs`` are the group's pairs, and the losses, the return loss and
+    ``main_s`` / ``main_mixed_mode`` are the victim's own (its 2- or 4-port with every
+    other port terminated in the reference); ``differential`` says whether the main mode
+    is a pair's differential mode.
     """
 
     scenario: Scenario
@@ -77,6 +85,8 @@ class ChannelResult:
     cumulative_loss_db: np.ndarray = field(repr=False)
     pairs: tuple[tuple[int, int], ...] = ()
     warnings: list[str] = field(default_factory=list)
+    members: tuple = ()
+    victim: str | None = None
 
     @property
     def conductors(self) -> int:
@@ -85,6 +95,47 @@ class ChannelResult:
     @property
     def nports(self) -> int:
         return self.s.shape[1]
+
+    @property
+    def victim_conductors(self) -> tuple[int, ...]:
+        """The conductors of the main mode: the victim's, or every conductor of a plain
+        channel."""
+        if self.victim is None:
+            return tuple(range(self.conductors))
+        return member(self.members, self.victim).conductors
+
+    @property
+    def differential(self) -> bool:
+        """Whether the main mode is a pair's differential mode."""
+        return len(self.victim_conductors) == 2
+
+    @cached_property
+    def main_s(self) -> np.ndarray:
+        """S of the main mode's conductors (the whole S of a plain channel; the victim's
+        2- or 4-port of a group channel), internal port order."""
+        if self.victim is None:
+            return self.s
+        return sub_network(self.s, self.victim_conductors)
+
+    @cached_property
+    def main_mixed_mode(self) -> MixedMode | None:
+        """Mixed-mode S of the main mode's pair (None when it is single-ended)."""
+        if self.victim is None:
+            return self.mixed_mode
+        if not self.differential:
+            return None
+        return mixed_mode_internal(self.main_s, self.scenario.ports.reference, ONE_PAIR)
+
+    @cached_property
+    def victim_network(self):
+        """The victim's own 2- or 4-port as a skrf.Network (in-in-out-out; None for a plain
+        channel)."""
+        if self.victim is None:
+            return None
+        sc = self.scenario
+        n = len(self.victim_conductors)
+        name = f"{sc.name} {self.victim}"
+        return to_network(self.main_s, self.f, sc.ports.reference, name, port_names(n))
 
     @property
     def insertion_loss_db(self) -> np.ndarray:
@@ -122,9 +173,9 @@ class ChannelResult:
     def return_loss(self) -> tuple[np.ndarray, np.ndarray]:
         """Return loss (positive dB) of the main mode at the input and at the output, (N,)
         each: |S11|, |S22| of a single-ended channel, |Sdd11|, |Sdd22| of a pair."""
-        mm = self.mixed_mode
+        mm = self.main_mixed_mode
         if mm is None:
-            s11, s22 = self.s[:, 0, 0], self.s[:, 1, 1]
+            s11, s22 = self.main_s[:, 0, 0], self.main_s[:, 1, 1]
         else:
             s11, s22 = mm.dd[:, 0, 0], mm.dd[:, 1, 1]
         with np.errstate(divide="ignore"):
@@ -138,14 +189,22 @@ def build_channel(scenario: Scenario) -> ChannelResult:
     f = scenario.frequencies()
     n = scenario.conductors
     order = scenario.ports.order
+    members = scenario.members
+    victim = scenario.crosstalk.victim if scenario.crosstalk is not None else None
+    picked = member(members, victim).conductors if victim is not None else None
     used = dict.fromkeys(seg.line for seg in scenario.channel if seg.type == "line")
     lines = {name: UniformLine.from_rlgc(scenario.lines[name].rlgc(f)) for name in used}
     blocks = [make_block(seg, n, order, lines) for seg in scenario.channel]
     seg_loss = np.empty((len(blocks), f.size))
     cum_loss = np.empty((len(blocks), f.size))
-    s = None
-    for k, (s_block, s) in enumerate(cascade_steps(blocks, f, scenario.ports.reference)):
+    total = None
+    for k, (s_block, total) in enumerate(cascade_steps(blocks, f, scenario.ports.reference)):
+        through = total
+        if picked is not None:  # the victim's own loss
+            s_block, through = sub_network(s_block, picked), sub_network(total, picked)
         seg_loss[k] = loss_db(s_block)
-        cum_loss[k] = loss_db(s)
-    pairs = ONE_PAIR if n == 2 else ()
-    return ChannelResult(scenario, f, blocks, s, seg_loss, cum_loss, pairs)
+        cum_loss[k] = loss_db(through)
+    pairs = pairs_of(members) if members else (ONE_PAIR if n == 2 else ())
+    return ChannelResult(
+        scenario, f, blocks, total, seg_loss, cum_loss, pairs, members=members, victim=victim
+    )

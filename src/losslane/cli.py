@@ -9,6 +9,7 @@ imports no numerics. Heavy modules are imported inside the commands.
 from __future__ import annotations
 
 import contextlib
+import os
 import sys
 import warnings
 from collections.abc import Callable, Iterator
@@ -548,6 +549,202 @@ def build_command(
         raise SystemExit(1)
 
 
+# --- measured coupons ------------------------------------------------------------------
+
+
+def _coupon_options(func):
+    """The options shared by `extract` and `fit`: the coupons' lengths, numbering, mode
+    and noise model."""
+    return _options(
+        click.option(
+            "--lengths",
+            required=True,
+            metavar="L1,L2,...",
+            help="each file's line length with a unit, in the order of the files "
+            "(e.g. 2in,6in or 2,5,9in)",
+        ),
+        click.option(
+            "--order",
+            default="in-in-out-out",
+            show_default=True,
+            metavar="ORDER",
+            help="4-port numbering of the files: in-in-out-out or in-out-in-out",
+        ),
+        click.option(
+            "--mode",
+            metavar="MODE",
+            help="single-ended (2-port files), differential (default for 4-port files) or common",
+        ),
+        click.option(
+            "--noise",
+            type=float,
+            help="relative noise of each measured S-parameter (default 1e-3); sets the "
+            "weights, uncertainties and flags",
+        ),
+        click.option(
+            "--noise-floor",
+            type=float,
+            help="absolute noise floor of each S-parameter (default 1e-5)",
+        ),
+    )(func)
+
+
+@cli.command("extract")
+@click.argument("files", nargs=-1, required=True, metavar="FILE FILE [FILE ...]")
+@_coupon_options
+@click.option(
+    "--at",
+    "at",
+    metavar="FREQS",
+    help="frequencies of the headline values (default 1, 10 and 28 GHz, those measured)",
+)
+@click.option("--out", "out", metavar="DIR", help="write the charts and the curves (CSV) into DIR")
+@_NO_PLOTS_OPTION
+@_JSON_OPTION
+def extract_command(
+    files: tuple[str, ...],
+    lengths: str,
+    order: str,
+    mode: str | None,
+    noise: float | None,
+    noise_floor: float | None,
+    at: str | None,
+    out: str | None,
+    no_plots: bool,
+    as_json: bool,
+) -> None:
+    """Loss per inch and eps_eff of a line from coupons of two or more lengths.
+
+    FILE: Touchstone files of the same line at different lengths with identical launches
+    (2-port lines, or 4-port pairs in --order). The launches are removed by the two-line
+    eigenvalue method; with three or more lengths every pair is combined, weighted by its
+    uncertainty. Each point is flagged where the data cannot determine it; the usable band
+    is the longest unflagged run. The files' passivity and reciprocity are reported, never
+    repaired.
+    """
+    from losslane.report.measure import extract_text
+
+    with _warnings_to_stderr():
+        res = api.extract(
+            files,
+            lengths,
+            order=order,
+            mode=mode,
+            at=at,
+            noise=noise,
+            noise_floor=noise_floor,
+            out=out,
+            plots=not no_plots,
+            where=api.cli_where("losslane extract"),
+        )
+        _echo(res.to_json(), as_json, lambda _: extract_text(res))
+
+
+@_section_command("fit", extra=_field_options)
+@click.argument("args", nargs=-1, required=True, metavar="FILE FILE [FILE ...] [KIND]")
+@_coupon_options
+@click.option(
+    "--scenario",
+    "scenario",
+    metavar="FILE",
+    help="take the cross-section from a scenario file's [lines.NAME] (with --line)",
+)
+@click.option("--line", "line_name", metavar="NAME", help="the [lines.NAME] of --scenario")
+@click.option(
+    "--vary",
+    default="dk,df,rq",
+    show_default=True,
+    metavar="P1,P2,...",
+    help="parameters to fit: dk, df, rq, radius, surface_ratio, conductivity "
+    "(the rest are held as given)",
+)
+@click.option(
+    "--band",
+    metavar="START,STOP",
+    help="frequency band of the fit (default: the extraction's usable band)",
+)
+@click.option(
+    "--foil-model",
+    type=click.Choice(["none", "hammerstad", "groiss", "huray"]),
+    help="roughness model to fit (default the line's foil; radius/surface_ratio imply "
+    "huray, rq hammerstad)",
+)
+@click.option(
+    "--write-library",
+    metavar="FILE",
+    help="write the fitted dielectric and foil as a library TOML file",
+)
+@click.option(
+    "--names",
+    default="fitted,fitted-foil",
+    show_default=True,
+    metavar="DIELECTRIC,FOIL",
+    help="entry names in the --write-library file",
+)
+@click.option("--out", "out", metavar="DIR", help="write the charts and the curves (CSV) into DIR")
+@_NO_PLOTS_OPTION
+@_material_options
+@_JSON_OPTION
+def fit_command(
+    args: tuple[str, ...],
+    lengths: str,
+    order: str,
+    mode: str | None,
+    noise: float | None,
+    noise_floor: float | None,
+    scenario: str | None,
+    line_name: str | None,
+    vary: str,
+    band: str | None,
+    foil_model: str | None,
+    write_library: str | None,
+    names: str,
+    out: str | None,
+    no_plots: bool,
+    as_json: bool,
+    **options,
+) -> None:
+    """Fit Dk, Df, roughness and conductivity of a line to measured coupons.
+
+    FILE: coupons as for `losslane extract`. The line they were built on: KIND (one of:
+    {kinds}) with the geometry and material options of `losslane line` (the materials
+    are the starting values and what is held fixed), or --scenario FILE --line NAME.
+    Prints the fitted values with their standard uncertainties from the fit and says when
+    the band cannot separate them; --write-library saves them for scenarios
+    (library = ["FILE"]).
+    """
+    from losslane.report.measure import fit_text
+
+    files, kind = list(args), None
+    kinds = api.kinds()
+    if len(files) > 1 and files[-1] in kinds:
+        kind = files.pop()
+    elif len(files) > 1 and files[0] in kinds and not os.path.exists(files[0]):
+        kind = files.pop(0)  # KIND written first: accepted too
+    with _warnings_to_stderr():
+        res = api.fit(
+            files,
+            lengths,
+            kind,
+            vary=vary,
+            band=band,
+            scenario=scenario,
+            line=line_name,
+            foil_model=foil_model,
+            order=order,
+            mode=mode,
+            noise=noise,
+            noise_floor=noise_floor,
+            write_library=write_library,
+            names=names,
+            out=out,
+            plots=not no_plots,
+            where=api.cli_where("losslane fit"),
+            **_section(options),
+        )
+        _echo(res.to_json(), as_json, lambda _: fit_text(res))
+
+
 @cli.command("demo")
 @click.option(
     "--out",
@@ -573,6 +770,111 @@ def demo_command(out: str, single_ended: bool, no_plots: bool, as_json: bool) ->
         res = api.demo(out, single_ended, plots=not no_plots)
         path = api.demo_scenario_path(single_ended)
         _echo(res.to_json(), as_json, lambda _: f"demo scenario: {path}\n{build_text(res)}")
+
+
+@cli.command("sweep")
+@click.argument("plan", type=click.Path(dir_okay=False))
+@click.option("--out", "out", metavar="FILE", help="the table: .parquet (default) or .csv")
+@click.option(
+    "--workers",
+    type=int,
+    help="worker processes of the local cluster (default: the machine's cores; 0: run here)",
+)
+@click.option("--scheduler", metavar="ADDRESS", help="run on the dask cluster at ADDRESS")
+@_NO_PLOTS_OPTION
+@_JSON_OPTION
+def sweep_command(
+    plan: str,
+    out: str | None,
+    workers: int | None,
+    scheduler: str | None,
+    no_plots: bool,
+    as_json: bool,
+) -> None:
+    """Run a sweep plan on dask.distributed: every combination of the varied keys of a
+    cross-section (a `line` evaluation per case) or a scenario (a build per case), into one
+    table. Exit code 1 when some cases failed (their errors are in the table)."""
+    from losslane.report.sweep import sweep_text
+
+    with _warnings_to_stderr(), _progress_bar("cases") as progress:
+        res = api.run_sweep(
+            plan,
+            out,
+            workers=workers,
+            scheduler=scheduler,
+            charts=not no_plots,
+            progress=progress,
+        )
+        _echo(res.to_json(), as_json, lambda _: sweep_text(res))
+    if res.failed:
+        click.echo(f"{res.failed} of {res.cases} cases failed (see the error column)", err=True)
+        raise SystemExit(1)
+
+
+@cli.command("inspect")
+@click.argument("file", type=click.Path(dir_okay=False))
+@click.option(
+    "--order",
+    type=click.Choice(["in-in-out-out", "in-out-in-out"]),
+    default="in-in-out-out",
+    show_default=True,
+    help="4-port numbering: legs run 1->3 and 2->4, or 1->2 and 3->4",
+)
+@click.option(
+    "--rise-time",
+    metavar="TIME",
+    help="10-90 % rise time of the stimulus edge, e.g. 30ps (default 0.75 / top frequency)",
+)
+@click.option("--data-rate", metavar="RATE", help="bit rate of the pulse response, e.g. 32Gb/s")
+@click.option(
+    "--modulation",
+    type=click.Choice(["nrz", "pam4"]),
+    default="nrz",
+    show_default=True,
+    help="symbols of the pulse response (pam4: one symbol carries 2 bits)",
+)
+@click.option(
+    "--delay-per-in",
+    metavar="TIME",
+    help="one-way delay per inch, e.g. 170ps: adds distances to the impedance profiles",
+)
+@click.option("--z-ref", metavar="OHMS", help="reference impedance (default: the file's)")
+@click.option("--out", "out", metavar="DIR", help="write the charts and a report page into DIR")
+@_JSON_OPTION
+def inspect_command(
+    file: str,
+    order: str,
+    rise_time: str | None,
+    data_rate: str | None,
+    modulation: str,
+    delay_per_in: str | None,
+    z_ref: str | None,
+    out: str | None,
+    as_json: bool,
+) -> None:
+    """Judge a Touchstone file and show it in time.
+
+    Prints the IEEE 370 quality metrics (passivity, reciprocity, causality, with levels
+    and where passivity fails), the impedance profile at each port (and of the pair, for
+    a 4-port) with its peaks and dips, the step responses with delay, rise time and
+    intra-pair skew, and with --data-rate the pulse response and its cursors. The data
+    are judged as they are: nothing is repaired.
+    """
+    from losslane.report.inspect import inspect_text
+
+    with _warnings_to_stderr():
+        res = api.inspect(
+            file,
+            order=order,
+            rise_time=rise_time,
+            data_rate=data_rate,
+            modulation=modulation,
+            delay_per_in=delay_per_in,
+            z_ref=z_ref,
+            out=out,
+            where=api.cli_where("losslane inspect"),
+        )
+        _echo(res.to_json(), as_json, lambda _: inspect_text(res))
 
 
 def main(argv: list[str] | None = None) -> int:

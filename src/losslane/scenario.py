@@ -17,6 +17,7 @@ from typing import Any
 
 import numpy as np
 
+from losslane.crosstalk.settings import CrosstalkSettings, channel_members, parse_crosstalk
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.library import Library, dielectric_from_spec, foil_from_spec, load_library
@@ -24,6 +25,7 @@ from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
 from losslane.spec import check_keys, quantity, suggest, text
+from losslane.timesettings import TimeSettings, parse_time
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
 
@@ -38,6 +40,9 @@ TOP_KEYS = (
     "lines",
     "channel",
     "budget",
+    "compare",
+    "crosstalk",
+    "time",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 MAX_POINTS = 200_001
@@ -96,6 +101,8 @@ class Budget:
     checks: tuple[Check, ...]
     fit_start: float | None = None
     fit_stop: float | None = None
+    #: limit on the integrated crosstalk noise (V), for channels on group lines
+    max_icn: float | None = None
 
     @property
     def baud(self) -> float | None:
@@ -107,6 +114,16 @@ class Budget:
         if self.data_rate is None:
             return None
         return nyquist_frequency(self.data_rate, self.modulation)
+
+
+@dataclass(frozen=True)
+class Comparison:
+    """The [compare] section: a measured Touchstone file of the same channel (``path``,
+    resolved), its 4-port numbering (``order``; None: the scenario's) and a ``label``."""
+
+    path: Path
+    order: str | None = None
+    label: str | None = None
 
 
 @dataclass
@@ -122,17 +139,29 @@ class Scenario:
     dielectrics: dict[str, Dielectric]
     foils: dict[str, Roughness]
     source_text: str = ""
+    compare: Comparison | None = None
+    crosstalk: CrosstalkSettings | None = None
+    time: TimeSettings = field(default_factory=TimeSettings)  # the [time] section
 
     @property
     def conductors(self) -> int:
-        """1 for a single-ended (2-port) channel, 2 for a differential (4-port) one."""
+        """1 for a single-ended (2-port) channel, 2 for a differential (4-port) one, n for a
+        channel on group lines (a 2n-port)."""
         return _conductors(self.channel)
+
+    @property
+    def members(self) -> tuple:
+        """The traces of a channel on group lines (``xsection.group.Member``), else ()."""
+        return channel_members(self.channel)
 
     def frequencies(self) -> np.ndarray:
         return self.sweep.frequencies()
 
 
 def _conductors(channel: list[Segment]) -> int:
+    members = channel_members(channel)
+    if members:
+        return sum(len(m.conductors) for m in members)
     n = None
     first = None
     for seg in channel:
@@ -181,6 +210,14 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
     except tomllib.TOMLDecodeError as exc:
         where = str(path) if path else "scenario"
         raise LossLaneError(f"{where}: not valid TOML: {exc}") from None
+    return scenario_from_data(data, base, path, source)
+
+
+def scenario_from_data(
+    data: Mapping, base: Path | str = ".", path: Path | None = None, source: str = ""
+) -> Scenario:
+    """A scenario from its parsed TOML tables (what a sweep varies); ``source`` is the text
+    echoed in the report."""
     base = Path(base)
     check_keys("scenario", data, TOP_KEYS)
     if "sweep" not in data:
@@ -224,6 +261,8 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
     ports = _ports(data.get("ports", {}))
     channel = _channel(data["channel"], lines, base, resolve_dielectric)
     budget = _budget(data["budget"]) if "budget" in data else None
+    compare = _compare(data["compare"], base) if "compare" in data else None
+    crosstalk = _crosstalk(data, channel, budget)
     sc = Scenario(
         name=name.strip(),
         path=path,
@@ -236,6 +275,9 @@ def parse_scenario(source: str, base: Path | str = ".", path: Path | None = None
         dielectrics=dielectrics,
         foils=foils,
         source_text=source,
+        compare=compare,
+        crosstalk=crosstalk,
+        time=parse_time(data.get("time", {}), sweep.stop),
     )
     _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
     return sc
@@ -452,12 +494,41 @@ def _segment(
     return Segment(i, "shunt", name or "shunt capacitance", vals)
 
 
+def _crosstalk(data: Mapping, channel: list[Segment], budget: Budget | None):
+    """The [crosstalk] table of a channel on group lines (required there, refused
+    elsewhere); such a channel numbers its ports in-in-out-out only."""
+    members = channel_members(channel)
+    if budget is not None and budget.max_icn is not None and not members:
+        raise LossLaneError(
+            "[budget].max_icn: the integrated crosstalk noise needs a channel on group lines "
+            '(kind "stripline-group" or "microstrip-group") and a [crosstalk] victim'
+        )
+    if "crosstalk" not in data:
+        if members:
+            raise LossLaneError(
+                "[crosstalk]: the channel runs on group lines; name the trace judged, e.g. "
+                f"[crosstalk] victim = {members[0].name!r} "
+                f"(traces: {', '.join(m.name for m in members)})"
+            )
+        return None
+    settings = parse_crosstalk(data["crosstalk"], members)
+    order = data.get("ports", {}).get("order") if isinstance(data.get("ports"), Mapping) else None
+    if order is not None and order != DEFAULT_ORDER:
+        raise LossLaneError(
+            f"[ports].order = {order!r}: a channel on group lines numbers its ports "
+            f"{DEFAULT_ORDER!r} only (1..n near ends in the traces' order, n+1..2n far ends)"
+        )
+    return settings
+
+
 def _budget(spec: object) -> Budget:
     where = "[budget]"
     if not isinstance(spec, Mapping):
         raise LossLaneError(f"{where}: expected a table")
     check_keys(
-        where, spec, ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop")
+        where,
+        spec,
+        ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop", "max_icn"),
     )
     rate = quantity(where, spec, "data_rate", "data rate")
     if rate is not None and rate <= 0:
@@ -487,16 +558,58 @@ def _budget(spec: object) -> Budget:
         checks.append(chk)
     fit_start = quantity(where, spec, "fit_start", "frequency")
     fit_stop = quantity(where, spec, "fit_stop", "frequency")
-    return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop)
+    max_icn = quantity(where, spec, "max_icn", "voltage")
+    if max_icn is not None and (max_icn <= 0 or rate is None):
+        raise LossLaneError(
+            f"{where}.max_icn = {spec['max_icn']!r}: the limit on the integrated crosstalk "
+            'noise is > 0 V (e.g. "5 mV") and needs data_rate'
+        )
+    return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop, max_icn)
+
+
+def _compare(spec: object, base: Path) -> Comparison:
+    """[compare]: ``measured`` (a Touchstone file, relative to the scenario file), ``order``
+    (its 4-port numbering) and ``label``. Only the file's existence and name are checked
+    here; its contents are measurement data, read and reported at build time."""
+    where = "[compare]"
+    if not isinstance(spec, Mapping):
+        raise LossLaneError(f'{where}: expected a table, e.g. [compare] measured = "coupon.s4p"')
+    check_keys(where, spec, ("measured", "order", "label"), required=("measured",))
+    fname = spec["measured"]
+    if not isinstance(fname, str) or not fname.strip():
+        raise LossLaneError(
+            f'{where}.measured = {fname!r}: expected a file name, e.g. "coupon.s4p"'
+        )
+    p = (base / fname).resolve()
+    if not p.is_file():
+        raise LossLaneError(
+            f"{where}.measured = {fname!r}: file {str(p)!r} does not exist (paths are "
+            "relative to the scenario file)"
+        )
+    if not re.search(r"\.s\d+p$", p.name, re.IGNORECASE):
+        raise LossLaneError(
+            f"{where}.measured = {fname!r}: expected a Touchstone file (.s2p, .s4p)"
+        )
+    order = spec.get("order")
+    if order is not None and order not in ORDERS:
+        raise LossLaneError(
+            f"{where}.order = {order!r}: valid values are {', '.join(repr(o) for o in ORDERS)}"
+        )
+    label = spec.get("label")
+    if label is not None and (not isinstance(label, str) or not label.strip()):
+        raise LossLaneError(f"{where}.label = {label!r}: expected a non-empty text")
+    return Comparison(p, order, label.strip() if label else None)
 
 
 __all__ = [
     "Budget",
     "Check",
+    "Comparison",
     "Ports",
     "Scenario",
     "Segment",
     "Sweep",
     "load_scenario",
     "parse_scenario",
+    "scenario_from_data",
 ]

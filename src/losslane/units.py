@@ -90,6 +90,7 @@ _TABLES: dict[str, dict[str, float]] = {
     "decibel": {"dB": 1.0, "db": 1.0},
     "conductivity": {"S/m": 1.0, "MS/m": 1e6},
     "time": {"s": 1.0, "ms": 1e-3, "ns": 1e-9, "ps": 1e-12, "fs": 1e-15, **_with_micro("s", 1e-6)},
+    "voltage": {"V": 1.0, "mV": 1e-3, **_with_micro("V", 1e-6)},
 }
 
 # Frequency units are matched without regard to case (nobody means millihertz).
@@ -123,6 +124,7 @@ def _example(kind: str) -> str:
         "decibel": '"28 dB"',
         "conductivity": '"5.8e7 S/m", "58 MS/m"',
         "time": '"10 ps"',
+        "voltage": '"800 mV", "1.2 V"',
     }[kind]
 
 
@@ -130,7 +132,7 @@ def parse_quantity(value: object, kind: str, key: str = "value") -> float:
     """Parse ``value`` (a string with a unit) as a ``kind`` quantity, in SI units.
 
     ``kind`` is one of: length, frequency, resistance, capacitance, inductance,
-    data rate, decibel, conductivity, time. ``key`` names the input in messages.
+    data rate, decibel, conductivity, time, voltage. ``key`` names the input in messages.
     """
     if kind not in _TABLES:
         raise KeyError(kind)

@@ -117,12 +117,14 @@ SPREAD_FLOOR = 0.04
 
 
 def exp_e1(c: ArrayLike) -> np.ndarray:
-    """e^c E1(c) for complex c with Re c >= 0 (E1 the exponential integral), to about
+    """e^c E1(c) for complex c off the negative real axis (E1 the exponential integral,
+    principal branch), to about
     1e-12 and without overflow: the asymptotic series 1/c - 1/c^2 + 2/c^3 - ... for
     |c| > 40 (fewer terms the larger |c|), the continued fraction
     1/(c + 1 - 1/(c + 3 - 4/(c + 5 - ...))) for 2 < |c| <= 40, and the power series
-    E1(c) = -gamma - ln c - sum (-c)^n / (n n!) for |c| <= 2 (Abramowitz and Stegun,
-    5.1.11, 5.1.22, 5.1.51)."""
+    E1(c) = -gamma - ln c - sum (-c)^n / (n n!) for |c| <= 2 and, in the left half-plane,
+    |c| <= 16 (Abramowitz and Stegun, 5.1.11, 5.1.22, 5.1.51). Accurate for
+    |arg c| < 175 degrees (the modal returns of a pair reach about 160)."""
     c = np.asarray(c, dtype=complex)
     out = np.empty_like(c)
     a = np.abs(c)
@@ -142,12 +144,14 @@ def exp_e1(c: ArrayLike) -> np.ndarray:
             for k in range(depth, 0, -1):
                 t = k * k / (cm + (2 * k + 1) - t)
             out[sel] = 1.0 / (cm + 1.0 - t)
-    sel = a <= 2.0
+    # the power series also serves the left half-plane up to |c| = 16, where its terms
+    # do not cancel and the continued fraction converges slowly (near the cut)
+    sel = (a <= 2.0) | ((a <= 16.0) & (c.real < 0))
     if np.any(sel):
         cs = c[sel]
         total = np.zeros_like(cs)
         term = np.ones_like(cs)
-        for n in range(1, 26):
+        for n in range(1, 26 if np.all(np.abs(cs) <= 2.0) else 80):
             term = -term * cs / n
             total = total - term / n
         out[sel] = np.exp(cs) * (-EULER_GAMMA - np.log(cs) + total)
@@ -160,6 +164,7 @@ def sheet_return(
     geometry_factor: ArrayLike,
     thickness: ArrayLike,
     floor: float = SPREAD_FLOOR,
+    pair: tuple[ArrayLike, ArrayLike, float] | None = None,
 ) -> tuple[np.ndarray, np.ndarray]:
     """Internal resistance and inductance per unit length (R, L_int) of a wide return
     conductor of ``thickness`` whose Wheeler factor is G = ``geometry_factor``, from DC to
@@ -182,6 +187,19 @@ def sheet_return(
     independent of the metal). The spreading is capped by ``floor`` (c1 -> c1 + floor),
     which keeps the inductance finite at DC; R(0) = 0.
     Where G = 0 the result is 0.
+
+    ``pair`` = (h, d, sign): the return of one mode of a symmetric pair, two line currents
+    at the height h, d apart, in phase (sign +1, even) or opposed (-1, odd); the result is
+    per line. The spectrum of the two currents carries the factor 1 + sign cos(kappa d),
+    and cos(kappa d) e^(-2 kappa h) = Re e^(-kappa (2h - j d)), so
+
+        S_pair = S(2h) + (sign / 2) (S(2h - j d) + S(2h + j d)),
+
+    S(H) the sum above with c1, c2 scaled by H / 2h (the floor with them: the odd mode's
+    spreading terms cancel, leaving the loop of the two lines, mu/(4 pi) ln(1 + d^2/4h^2)
+    at DC). At high frequency its factor is (1 + sign 4h^2/(4h^2 + d^2)) / (2 pi h),
+    the image solution of two filaments (``pair_return_shape`` picks h and d to match the
+    modes' Wheeler factors). G then only marks where the group is live.
     """
     f = np.asarray(f, dtype=float)
     gf = np.asarray(geometry_factor, dtype=float)
@@ -189,7 +207,10 @@ def sheet_return(
     mu = MU0 * conductor.mu_r
     omega = 2 * np.pi * f
     live = gf > 0
-    h = 1.0 / (2 * np.pi * np.where(live, gf, 1.0))
+    if pair is None:
+        h = 1.0 / (2 * np.pi * np.where(live, gf, 1.0))
+    else:
+        h = np.asarray(pair[0], float)
     k = np.sqrt(1j * omega * mu * conductor.sigma)
     x = 0.5 * k * tp
     small = np.abs(x) < 1e-6
@@ -199,8 +220,25 @@ def sheet_return(
     c1 = 2 * h * k * th + floor
     c2 = np.where(small, 4 * h / tp + 2 * h * k * x / 3, 2 * h * k / np.where(small, 1.0, th))
     c1, c2 = np.broadcast_arrays(c1, c2)
-    y = mu / (2 * np.pi) * live * (exp_e1(c1) + exp_e1(c2))  # Z / (j w)
+    total = exp_e1(c1) + exp_e1(c2)
+    if pair is not None:
+        ratio = np.asarray(pair[1], float) / (2 * h)
+        for q in (1 - 1j * ratio, 1 + 1j * ratio):
+            total = total + 0.5 * pair[2] * (exp_e1(c1 * q) + exp_e1(c2 * q))
+    y = mu / (2 * np.pi) * live * total  # Z / (j w)
     return -omega * y.imag, y.real
+
+
+def pair_return_shape(g_even: ArrayLike, g_odd: ArrayLike) -> tuple[np.ndarray, np.ndarray]:
+    """(h, d) of two line currents over a plane whose per-line Wheeler factors are the
+    return path's ``g_even`` and ``g_odd`` (the sums over its parts): by the image
+    solution G_even + G_odd = 1 / (pi h) and (G_even - G_odd)/(G_even + G_odd) =
+    4h^2/(4h^2 + d^2). Modes that the returns cannot tell apart get d far beyond h."""
+    ge, go = np.asarray(g_even, float), np.asarray(g_odd, float)
+    total = np.where(ge + go > 0, ge + go, 1.0)
+    h = 1.0 / (np.pi * total)
+    rho = np.clip((ge - go) / total, 1e-9, 1.0 - 1e-9)
+    return h, 2 * h * np.sqrt((1.0 - rho) / rho)
 
 
 def return_impedance(
@@ -208,6 +246,7 @@ def return_impedance(
     conductor: Conductor,
     parts: list[tuple[ArrayLike, ArrayLike, ArrayLike]],
     floor: float = SPREAD_FLOOR,
+    pair: tuple[ArrayLike, ArrayLike, float] | None = None,
 ) -> list[tuple[np.ndarray, np.ndarray]]:
     """Resistance and internal inductance per unit length (R_i, L_i) of each part of a
     line's return path, ``parts`` = [(G_i, thickness_i, roughness K_i)]: its planes and
@@ -219,7 +258,8 @@ def return_impedance(
     the return as one sheet of factor G = sum G_i (``sheet_return``) whose impedance each
     part takes in the proportion G_i / G, with its own thickness and roughness:
     Z_i = K_i (G_i / G) Z_sheet(G, t_i). One part: Z = K Z_sheet(G, t). K may be complex
-    (a plated stack).
+    (a plated stack). ``pair``: (h, d, sign) of one mode of a symmetric pair (see
+    ``sheet_return``); each part then takes its share of that mode's return.
     """
     f = np.asarray(f, dtype=float)
     if not parts:
@@ -232,7 +272,7 @@ def return_impedance(
     for g, t, k in parts:
         key = float(t) if np.ndim(t) == 0 else id(t)
         if key not in sheets:  # parts of one thickness share the sheet's impedance
-            sheets[key] = sheet_return(f, conductor, g_total, t, floor)
+            sheets[key] = sheet_return(f, conductor, g_total, t, floor, pair)
         r, l_int = sheets[key]
         share = np.asarray(g, float) / safe
         # K (complex for a plated stack) scales the impedance: Z / (j w) = L - j R / w

@@ -78,7 +78,9 @@ class TouchstoneBlock(Block):
         self.order = check_order(order, f"touchstone '{self.path}': order")
         net = read_touchstone(self.path)
         if net.nports != 2 * self.n:
-            what = "single-ended (2-port)" if self.n == 1 else "differential (4-port)"
+            what = {1: "single-ended (2-port)", 2: "differential (4-port)"}.get(
+                self.n, f"{2 * self.n}-port (group of traces)"
+            )
             raise LossLaneError(
                 f"touchstone file '{self.path}' has {net.nports} ports but this {what} "
                 f"channel needs {2 * self.n}"

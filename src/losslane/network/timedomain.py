@@ -244,6 +244,26 @@ def _rise_time(rise_time: float | None, f_max: float) -> float:
     return v
 
 
+def fast_length(n: int) -> int:
+    """The smallest 5-smooth number (2^a 3^b 5^c) >= ``n``: a length the FFT factors into
+    small radices. (numpy's FFT is used rather than scipy's: importing ``scipy.fft`` costs
+    about half a second of a command's start, numpy's comes with numpy.)"""
+    n = max(int(n), 1)
+    best = 1 << (n - 1).bit_length()  # a power of two always qualifies
+    p5 = 1
+    while p5 < best:
+        p35 = p5
+        while p35 < best:
+            m = p35 * (1 << max(0, math.ceil(math.log2(n / p35))))
+            while m // 2 >= n and m % 2 == 0:
+                m //= 2
+            if n <= m < best:
+                best = m
+            p35 *= 3
+        p5 *= 5
+    return best
+
+
 def _inverse(
     f: np.ndarray, spectra: np.ndarray, n: int, pre: int, is_step: np.ndarray
 ) -> tuple[np.ndarray, np.ndarray]:
@@ -255,14 +275,12 @@ def _inverse(
     window's start, H_0 df (t - t_0) + sum_k>0 of H_k / (j 2 pi f_k) e^{j 2 pi f_k t}
     (a running sum of samples would be off by dt^2 h'/12: 0.7 % of a rise time sampled
     8 times). Returns (t (n,), values (n, M))."""
-    from scipy.fft import irfft
-
     df = float(f[1] - f[0])
     work = np.array(spectra, dtype=complex)
     dc = work[0, is_step].real
     work[1:, is_step] /= (2j * np.pi * f[1:])[:, None]
     work[0, is_step] = 0.0
-    out = np.roll(irfft(work, n, axis=0) * (n * df), pre, axis=0)
+    out = np.roll(np.fft.irfft(work, n, axis=0) * (n * df), pre, axis=0)
     t = (np.arange(n) - pre) / (n * df)
     if np.any(is_step):
         out[:, is_step] += dc * (df * (t - t[0]))[:, None] - out[0, is_step]
@@ -323,8 +341,6 @@ def _transform(
 ) -> _Transform:
     """Filtered inverse transform of ``columns`` (K, M) on ``spec``'s grid: step responses
     where ``is_step`` (per column, or one flag), impulse responses elsewhere."""
-    from scipy.fft import next_fast_len
-
     tr = _rise_time(rise_time, spec.f_max)
     sigma = stimulus_sigma(tr, spec.f_max)
     spr = int(samples_per_rise)
@@ -335,7 +351,7 @@ def _transform(
     df = spec.step
     k = spec.f.size
     m = columns.shape[1]
-    n = next_fast_len(max(2 * k, math.ceil(spr / (tr * df))), real=True)
+    n = fast_length(max(2 * k, math.ceil(spr / (tr * df))))
     n += n % 2
     dt = 1.0 / (n * df)
     g = rise_filter(spec.f, sigma * GAUSSIAN_RISE)
@@ -883,8 +899,9 @@ def _port_refs(z_ref, nports: int) -> np.ndarray:
     return z
 
 
-def _network_columns(s: np.ndarray, z: np.ndarray, order: str):
-    """The reflections and through paths of a 2- or 4-port as columns, with labels."""
+def _network_columns(s: np.ndarray, z: np.ndarray, order: str, mixed=None):
+    """The reflections and through paths of a 2- or 4-port as columns, with labels
+    (``mixed``: the 4-port's mixed-mode S if already known, else converted here)."""
     p = s.shape[1]
     cols, refl, thru = [], [], []
     for k in range(p):
@@ -901,7 +918,7 @@ def _network_columns(s: np.ndarray, z: np.ndarray, order: str):
             f"z_ref = {z.tolist()} ohm: the differential views need one reference impedance "
             "for all four ports"
         )
-    mm = mixed_mode(s, float(z[0]), order)
+    mm = mixed if mixed is not None else mixed_mode(s, float(z[0]), order)
     for k in range(2):
         cols.append(mm.dd[:, k, k])
         refl.append((k + 1, "differential", 2.0 * float(z[0])))
@@ -928,6 +945,7 @@ def time_domain(
     amplitude: float = 1.0,
     duration: float | None = None,
     samples_per_rise: int = SAMPLES_PER_RISE,
+    mixed=None,
 ) -> TimeDomainReport:
     """Every time-domain view of a 2-port or differential 4-port S (N, P, P) on ``f`` (Hz),
     ports numbered as in the data (4-ports in ``order``), from one inverse transform:
@@ -941,7 +959,8 @@ def time_domain(
 
     The profiles run to 1.25 round trips of the longest through delay plus 10 rise times
     (every feature of the channel and its far end lie within), or to ``duration`` (s,
-    round-trip time).
+    round-trip time). ``mixed``: the 4-port's ``MixedMode`` (pair 1 = the near ends,
+    differential reference 2 z_ref) when the caller has it already.
     """
     check_order(order)
     s = np.asarray(s)
@@ -952,7 +971,7 @@ def time_domain(
     z = _port_refs(z_ref, s.shape[1])
     dpm = None if delay_per_m is None else _positive("delay_per_m", delay_per_m, "s/m")
     ui = None if data_rate is None else _unit_interval(data_rate, modulation)
-    cols, refl, thru, legs = _network_columns(np.asarray(s, complex), z, order)
+    cols, refl, thru, legs = _network_columns(np.asarray(s, complex), z, order, mixed)
     n_refl = len(refl)
     spec = uniform_spectrum(f, np.stack(cols, axis=1), "frequencies")
     values = spec.values

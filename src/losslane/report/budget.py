@@ -234,7 +234,7 @@ def budget_document(result, budget, fit) -> dict:
     return {
         "scenario": result.scenario.name,
         "losslane_version": __version__,
-        "mode": "single-ended" if result.nports == 2 else "differential",
+        "mode": "differential" if result.differential else "single-ended",
         "budget": None if budget is None else budget.to_json(),
         "fit": None if fit is None else fit.to_json(ny),
         "warnings": list(result.warnings),
@@ -242,7 +242,7 @@ def budget_document(result, budget, fit) -> dict:
 
 
 def _mode(result) -> str:
-    return "" if result.nports == 2 else " (differential mode)"
+    return " (differential mode)" if result.differential else ""
 
 
 def write_budget_files(
@@ -281,7 +281,7 @@ def write_budget_files(
                 fit,
                 f"{name}: fitted insertion loss and deviation (ILD){_mode(result)}",
                 ny,
-                ylabel="20 log10 |S21| (dB)" if result.nports == 2 else "Sdd21 (dB)",
+                ylabel="Sdd21 (dB)" if result.differential else "20 log10 |S21| (dB)",
             )
             files.append(p)
             charts.append((p, "Fitted insertion loss and insertion-loss deviation"))

@@ -22,6 +22,7 @@ from losslane.report.budget import budget_text, write_budget_files
 from losslane.report.charts import Curve, Marker, db_plot, to_db
 from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
+from losslane.report.timeviews import build_summary_lines, build_view_files
 
 
 def slug(name: str) -> str:
@@ -65,7 +66,7 @@ def _at(f: np.ndarray, y: np.ndarray, x: float) -> float:
 
 def summary_rows(result: ChannelResult) -> list[dict]:
     rl_in, rl_out = result.return_loss
-    mm = result.mixed_mode
+    mm = result.main_mixed_mode
     rows = []
     for x in summary_frequencies(result):
         row = {
@@ -81,16 +82,27 @@ def summary_rows(result: ChannelResult) -> list[dict]:
     return rows
 
 
-def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
+def check_markers(result: ChannelResult) -> list[Marker]:
+    """The budget's Nyquist and check points as chart markers (with their loss limits)."""
     sc = result.scenario
-    f = result.f
-    mode = "" if result.nports == 2 else " (differential mode)"
     markers = []
     if sc.budget is not None:
         if sc.budget.nyquist is not None:
             markers.append(Marker(sc.budget.nyquist, "Nyquist", sc.budget.max_loss))
         for c in sc.budget.checks:
             markers.append(Marker(c.at, f"check {c.at / 1e9:g} GHz", c.max_loss))
+    return markers
+
+
+def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> list[Path]:
+    """The channel's charts; ``overlay`` (a measure.overlay.MeasuredOverlay or None) adds
+    the measured curves to the insertion- and return-loss charts."""
+    from losslane.report.overlay import measured_il_curves, measured_rl_curves
+
+    sc = result.scenario
+    f = result.f
+    mode = " (differential mode)" if result.differential else ""
+    markers = check_markers(result)
     import matplotlib
 
     cmap = matplotlib.colormaps["viridis"]
@@ -105,12 +117,13 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
             )
         )
     curves.append(Curve("whole channel", -result.insertion_loss_db, "-", 2.2, "black"))
+    curves += measured_il_curves(overlay)
     il = db_plot(
         stage / f"{stem}-insertion-loss.png",
         f,
         curves,
         f"{sc.name}: insertion loss{mode}, cumulative through each segment",
-        ("Sdd21" if result.nports == 4 else "S21") + " (dB), insertion loss below 0",
+        ("Sdd21" if result.differential else "S21") + " (dB), insertion loss below 0",
         markers,
         floor_db=-200,
     )
@@ -125,6 +138,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         [
             Curve("input (port 1)" if not mode else "input", -rl_in, "-", 1.4),
             Curve("output (port 2)" if not mode else "output", -rl_out, "--", 1.4),
+            *measured_rl_curves(overlay),
         ],
         f"{sc.name}: return loss{mode}",
         "20 log10 |S11|, |S22| (dB)",
@@ -132,7 +146,7 @@ def plot_files(result: ChannelResult, stage: Path, stem: str) -> list[Path]:
         floor_db=-80,
     )
     files = [il, rl]
-    mm = result.mixed_mode
+    mm = result.main_mixed_mode
     if mm is not None:
         files.append(
             db_plot(
@@ -175,12 +189,21 @@ def write_build(
     version: int = 1,
     form: str = "ri",
     plots: bool = True,
+    overlay=None,
+    crosstalk=None,
+    views=None,
 ) -> list[Path]:
     """Write the build's files into ``out_dir`` (checked with ``prepare_out_dir``): the
     Touchstone file, the channel charts, the budget's files and the report page; returns
     their final paths. ``budget``/``fit``: a ChannelBudget/LossFit or None; ``summary``:
-    the rows of ``summary_rows``."""
+    the rows of ``summary_rows``; ``overlay``: a measurement to show beside the model
+    (``measure.overlay.MeasuredOverlay``) or None; ``crosstalk``: a CrosstalkResult of a
+    channel on group lines (its victim's own file and charts are written too); ``views``
+    the quality and time-domain views of the written S-parameters (an Inspection, charted
+    and on the page; None: left out)."""
     from losslane.network.touchstone import write_touchstone
+    from losslane.report.crosstalk import port_lines, write_crosstalk_files
+    from losslane.report.overlay import write_overlay_files
 
     out = Path(out_dir)
     stem = slug(result.scenario.name)
@@ -200,17 +223,40 @@ def write_build(
                     f"{result.scenario.path.name if result.scenario.path else 'a scenario'}",
                     "estimate: confirm against the fabricator's stackup and measured test coupons",
                     *guarantee_lines(result),
+                    *port_lines(result),
                 ],
             )
         ]
+        xt_files, xt_charts = write_crosstalk_files(
+            result, crosstalk, stage, stem, version, form, plots
+        )
+        files += xt_files
         if plots:
-            files += plot_files(result, stage, stem)
+            files += plot_files(result, stage, stem, overlay)
         budget_files, charts = write_budget_files(result, budget, fit, stage, stem, plots)
         files += budget_files
+        files += write_overlay_files(
+            overlay, result.scenario.name, stage, stem, plots, check_markers(result)
+        )
+        view_files, view_charts = build_view_files(views, stage, stem, result.scenario.name, plots)
+        files += view_files
+        charts = charts + xt_charts + view_charts
         page = stage / f"{stem}-report.html"
         names = sorted({p.name for p in files} | {page.name})
         page.write_text(
-            report_html(result, budget, fit, stage, stem, charts, names, summary),
+            report_html(
+                result,
+                budget,
+                fit,
+                stage,
+                stem,
+                charts,
+                names,
+                summary,
+                overlay,
+                crosstalk,
+                views,
+            ),
             encoding="utf-8",
         )
         files.append(page)
@@ -234,7 +280,7 @@ def summary_text(
     """The terminal summary (``summary``: the rows of ``summary_rows``); ``sections``
     (e.g. the loss budget) go before the file list."""
     sc = result.scenario
-    four = result.nports == 4
+    four = result.differential
     mode = " (differential mode)" if four else ""
     heads = ["frequency", "insertion loss", "return loss in", "return loss out"]
     units = ["GHz", "dB", "dB", "dB"]
@@ -255,7 +301,9 @@ def summary_text(
     head = (
         f"{sc.name}: {len(result.blocks)} segments, {result.nports}-port, "
         f"{result.f.size} points {result.f[0] / 1e9:g}..{result.f[-1] / 1e9:g} GHz, "
-        f"reference {sc.ports.reference:g} ohm" + (f", port order {sc.ports.order}" if four else "")
+        f"reference {sc.ports.reference:g} ohm"
+        + (f", port order {sc.ports.order}" if result.nports >= 4 else "")
+        + (f", victim {result.victim}" if result.victim else "")
     )
     out = [head, "", f"insertion and return loss{mode}", table(heads, units, rows)]
     if result.imports:
@@ -272,13 +320,13 @@ def summary_text(
 
 
 def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) -> dict:
-    touch = next((str(p) for p in files if re.search(r"\.s\dp$", p.name)), None)
+    touch = next((str(p) for p in files if re.search(r"\.s\d+p$", p.name)), None)
     return {
         "touchstone": touch,
         "ports": result.nports,
         "points": int(result.f.size),
         "files": [str(p) for p in files],
-        "port_order": result.scenario.ports.order if result.nports == 4 else None,
+        "port_order": result.scenario.ports.order if result.nports >= 4 else None,
         "reference_ohm": result.scenario.ports.reference,
         "summary": summary,
         "imports": [c.to_json() for c in result.imports],
@@ -288,7 +336,15 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
 
 def build_text(build) -> str:
     """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
-    budget and the fit, the files written."""
-    return summary_text(
-        build.channel, build.summary, build.files, sections=[budget_text(build.budget, build.fit)]
-    )
+    budget and the fit, the time-domain views and quality, the measurement beside the
+    model, the crosstalk, the files written."""
+    from losslane.report.crosstalk import crosstalk_text
+    from losslane.report.overlay import overlay_text
+
+    sections = [
+        "\n".join(build_summary_lines(getattr(build, "views", None))),
+        budget_text(build.budget, build.fit),
+        overlay_text(getattr(build, "overlay", None)),
+        crosstalk_text(getattr(build, "crosstalk", None)),
+    ]
+    return summary_text(build.channel, build.summary, build.files, sections=sections)

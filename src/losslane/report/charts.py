@@ -18,11 +18,15 @@ from losslane.atomic import write_atomic
 
 @dataclass(frozen=True)
 class Curve:
+    """A dB curve; ``f`` (Hz) when it has its own frequencies (a measurement), else the
+    chart's."""
+
     label: str
     db: np.ndarray
     style: str = "-"
     width: float = 1.6
     color: str | None = None
+    f: np.ndarray | None = None
 
 
 @dataclass(frozen=True)
@@ -79,7 +83,8 @@ def db_plot(
     plt, fig, ax = _figure()
     ghz = np.asarray(f) / 1e9
     for c in curves:
-        ax.plot(ghz, c.db, c.style, lw=c.width, label=c.label, color=c.color)
+        x = ghz if c.f is None else np.asarray(c.f) / 1e9
+        ax.plot(x, c.db, c.style, lw=c.width, label=c.label, color=c.color)
     lo = min(float(np.nanmin(c.db[np.isfinite(c.db)])) for c in curves)
     hi = max(float(np.nanmax(c.db[np.isfinite(c.db)])) for c in curves)
     if floor_db is not None:

@@ -7,7 +7,7 @@ import numpy as np
 
 from losslane.report.text import CAUTION, table
 from losslane.units import INCH, MIL
-from losslane.xsection.base import LineValues, ModeValues
+from losslane.xsection.base import LineValues
 
 #: the order in which headings list dimensions
 HEADING_ORDER = ("width", "spacing", "gap", "height", "below", "above", "thickness")
@@ -17,18 +17,62 @@ def _finite(a: np.ndarray) -> list:
     return [float(v) if np.isfinite(v) else None for v in a]
 
 
-def _mode_json(m: ModeValues) -> dict:
+#: the per-frequency keys of `line --json`, in order (main mode, then a pair's)
+MAIN_KEYS = (
+    "z0_ohm",
+    "zc_real_ohm",
+    "zc_imag_ohm",
+    "eps_eff",
+    "delay_ps_per_in",
+    "loss_db_per_in",
+    "conductor_db_per_in",
+    "dielectric_db_per_in",
+)
+PAIR_KEYS = (
+    "z_odd_ohm",
+    "z_even_ohm",
+    "z_diff_ohm",
+    "z_common_ohm",
+    "eps_eff_odd",
+    "eps_eff_even",
+)
+
+
+def line_arrays(values: LineValues) -> dict[str, np.ndarray]:
+    """The per-frequency quantities of `line --json` as arrays (frequency last; any
+    leading axis of geometry samples kept): the one place their arithmetic lives."""
+    out: dict[str, np.ndarray] = {}
+    m = values.main
+    if m is None:
+        return out
     total, conductor, dielectric = m.db_per_in()
-    return {
-        "z0_ohm": m.z0.tolist(),
-        "zc_real_ohm": _finite(m.zc.real),
-        "zc_imag_ohm": _finite(m.zc.imag),
-        "eps_eff": m.eps_eff.tolist(),
-        "delay_ps_per_in": (m.delay * INCH * 1e12).tolist(),
-        "loss_db_per_in": total.tolist(),
-        "conductor_db_per_in": conductor.tolist(),
-        "dielectric_db_per_in": dielectric.tolist(),
-    }
+    out.update(
+        zip(
+            MAIN_KEYS,
+            (
+                m.z0,
+                m.zc.real,
+                m.zc.imag,
+                m.eps_eff,
+                m.delay * INCH * 1e12,
+                total,
+                conductor,
+                dielectric,
+            ),
+            strict=True,
+        )
+    )
+    e = values.even
+    if e is not None:
+        # differential-mode loss equals the odd-mode loss of one line (same dB)
+        out.update(
+            zip(
+                PAIR_KEYS,
+                (m.z0, e.z0, 2 * m.z0, e.z0 / 2, m.eps_eff, e.eps_eff),
+                strict=True,
+            )
+        )
+    return out
 
 
 def _matrix_list(a: np.ndarray) -> list:
@@ -44,24 +88,22 @@ def line_json(
     differential mode). ``solver_report``: a field-solved section's report;
     ``model_report``: a closed-form section's (its methods and corrections)."""
     out: dict = {"kind": values.kind, "frequencies_hz": values.f.tolist()}
-    if values.main is not None:
-        out.update(_mode_json(values.main))
+    arrays = line_arrays(values)
+    for key in MAIN_KEYS:
+        if key in arrays:
+            a = arrays[key]
+            out[key] = _finite(a) if key.startswith("zc_") else a.tolist()
     rl = values.rlgc
-    out["rlgc"] = {
-        "r_ohm_per_m": _matrix_list(rl.r),
-        "l_h_per_m": _matrix_list(rl.l),
-        "g_s_per_m": _matrix_list(rl.g),
-        "c_f_per_m": _matrix_list(rl.c),
-    }
-    if values.even is not None:
-        even = _mode_json(values.even)
-        out["z_odd_ohm"] = out["z0_ohm"]
-        out["z_even_ohm"] = even["z0_ohm"]
-        out["z_diff_ohm"] = [2 * z for z in out["z0_ohm"]]
-        out["z_common_ohm"] = [z / 2 for z in even["z0_ohm"]]
-        out["eps_eff_odd"] = out["eps_eff"]
-        out["eps_eff_even"] = even["eps_eff"]
-        # differential-mode loss equals the odd-mode loss of one line (same dB)
+    if rl is not None:
+        out["rlgc"] = {
+            "r_ohm_per_m": _matrix_list(rl.r),
+            "l_h_per_m": _matrix_list(rl.l),
+            "g_s_per_m": _matrix_list(rl.g),
+            "c_f_per_m": _matrix_list(rl.c),
+        }
+    for key in PAIR_KEYS:
+        if key in arrays:
+            out[key] = arrays[key].tolist()
     if values.eps_eff_modes is not None:
         out["eps_eff_modes"] = values.eps_eff_modes.tolist()
     if solver_report is not None:
@@ -174,5 +216,21 @@ def line_table(props: dict, title: str) -> str:
         "per-unit-length line constants" + (" (self terms, line 1)" if pair else ""),
         table(["frequency", "R", "L", "G", "C"], ["GHz", "ohm/m", "nH/m", "mS/m", "pF/m"], rrows),
     ]
+    model = props.get("model")
+    if model:
+        out += ["", model_note(model)]
     out += ["", CAUTION]
     return "\n".join(out)
+
+
+def model_note(model: dict) -> str:
+    """Which models produced a closed-form table's numbers (from the ``model`` object of
+    the JSON), wrapped to the tables' width."""
+    import textwrap
+
+    text = "models: " + "; ".join(model["methods"])
+    fit = model.get("static_correction")
+    if fit is not None:
+        text += f"; quasi-static Z0 and eps_eff {fit['method']}"
+    text += f"; R and L: {model['conductor']}"
+    return "\n".join(textwrap.wrap(text, 92, subsequent_indent="  "))

@@ -18,6 +18,7 @@ from pathlib import Path
 from losslane import __version__
 from losslane.report.budget import budget_rows, point_title
 from losslane.report.text import CAUTION, verdict
+from losslane.report.timeviews import build_section_html
 
 STYLE = """
 body { font-family: sans-serif; margin: 1.5em auto; max-width: 70em; color: #222;
@@ -159,10 +160,12 @@ def render_report(
     scenario_text: str,
     files: Sequence[str],
     mode: str = "",
+    sections: Sequence[str] = (),
 ) -> str:
     """The page as text. ``budget`` a ChannelBudget or None, ``fit`` a LossFit or None,
     ``summary`` the rows of the terminal summary (at_hz, insertion_loss_db,
-    return_loss_in_db, return_loss_out_db)."""
+    return_loss_in_db, return_loss_out_db); ``sections``: more HTML sections (crosstalk),
+    placed before the charts."""
     parts = [
         "<!DOCTYPE html>",
         '<html lang="en">',
@@ -217,6 +220,7 @@ def render_report(
         "<table><tr><th>frequency (GHz)</th><th>insertion loss (dB)</th>"
         "<th>return loss in (dB)</th><th>return loss out (dB)</th></tr>" + srows + "</table>"
     )
+    parts += [sec for sec in sections if sec]  # e.g. the time-domain views, the measurement
     parts.append('<h2 id="charts">Charts</h2>')
     if figures:
         for fig in figures:
@@ -265,14 +269,23 @@ def report_html(
     charts: Sequence[tuple[Path, str]],
     names: Sequence[str],
     summary: Sequence[dict],
+    overlay=None,
+    crosstalk=None,
+    views=None,
 ) -> str:
     """The self-contained page: the channel plots already staged (insertion and return
-    loss) and the budget charts, embedded."""
+    loss, with a measurement and its difference chart when ``overlay`` is given) and the
+    budget charts, embedded; ``crosstalk`` a CrosstalkResult or None; with ``views`` (an
+    Inspection) its section."""
+    from losslane.report.crosstalk import crosstalk_html
+    from losslane.report.overlay import overlay_html
+
     sc = result.scenario
     figures = []
     for suffix, caption in (
         ("insertion-loss", "Insertion loss, cumulative through each segment"),
         ("return-loss", "Return loss at both ends"),
+        ("measured-difference", "Model minus measurement: insertion and return loss"),
     ):
         p = Path(stage) / f"{stem}-{suffix}.png"
         if p.is_file():
@@ -281,9 +294,10 @@ def report_html(
     f = result.f
     meta = [
         f"{len(result.blocks)} segments, {result.nports}-port"
-        + (" (differential pair)" if result.nports == 4 else "")
+        + (" (differential pair)" if result.nports == 4 and not result.victim else "")
+        + (f" (group of traces, victim {result.victim})" if result.victim else "")
         + f", reference {sc.ports.reference:g} ohm per port"
-        + (f", port order {sc.ports.order}" if result.nports == 4 else ""),
+        + (f", port order {sc.ports.order}" if result.nports >= 4 else ""),
         f"sweep {f[0] / 1e9:g}..{f[-1] / 1e9:g} GHz, {f.size} points",
         f"built by losslane {__version__} from "
         + (sc.path.name if sc.path is not None else "a scenario"),
@@ -302,5 +316,6 @@ def report_html(
         scenario_name=sc.path.name if sc.path is not None else "scenario",
         scenario_text=sc.source_text,
         files=names,
-        mode="" if result.nports == 2 else " (differential mode)",
+        mode=" (differential mode)" if result.differential else "",
+        sections=[build_section_html(views), overlay_html(overlay), crosstalk_html(crosstalk)],
     )

@@ -20,7 +20,7 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from losslane.errors import LossLaneError, warn
-from losslane.materials.conductor import COPPER, Conductor
+from losslane.materials.conductor import COPPER, Conductor, pair_return_shape
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness, Smooth
 from losslane.units import INCH, OZ_COPPER
@@ -170,6 +170,13 @@ def modal_strip_and_planes(
                     name, g, metal.plane_thickness, metal.conductor, metal.plane_roughness, True
                 )
             )
+    if set(out) == {"even", "odd"} and planes:
+        # a symmetric pair: each mode's return sees both lines' currents
+        # (``materials.conductor.sheet_return``), placed to match the modes' factors
+        total = {m: sum(g.geometry_factor for g in out[m] if g.wide) for m in out}
+        h, d = pair_return_shape(total["even"], total["odd"])
+        for m, sign in (("even", 1.0), ("odd", -1.0)):
+            out[m] = [dataclasses.replace(g, pair=(h, d, sign)) if g.wide else g for g in out[m]]
     return out
 
 
@@ -274,14 +281,16 @@ class LineValues:
 
     kind: str
     f: np.ndarray
-    rlgc: RLGC
+    rlgc: RLGC | None
     main: ModeValues | None
     even: ModeValues | None = None
     eps_eff_modes: np.ndarray | None = None
 
     @property
     def n_conductors(self) -> int:
-        return self.rlgc.n
+        if self.rlgc is not None:
+            return self.rlgc.n
+        return 2 if self.even is not None else 1
 
     @property
     def impedance(self) -> np.ndarray:

@@ -51,8 +51,13 @@ def section_from_spec(
     """
     kind = text(where, spec, "kind", required=True)
     cls = registry.model(kind, key_name(where, "kind"))
-    solver = text(where, spec, "solver", SOLVERS, "closed-form")
+    solver = text(where, spec, "solver", SOLVERS, getattr(cls, "default_solver", "closed-form"))
     cli = isinstance(where, Where) and where.cli
+    if cli and not getattr(cls, "command_line", True):
+        raise LossLaneError(
+            f"{where}: kind {kind!r} is described in a scenario file ([lines.NAME]); its "
+            "keys have no command-line options"
+        )
     allowed = spec_keys(cls, solver) + (() if cli else (NOTE_KEY,))
     check_keys(where, spec, allowed, required=cls.spec_keys() + ("dielectric",))
     geometry = cls.dimensions_from_spec(spec, where)
@@ -63,6 +68,9 @@ def section_from_spec(
         else dielectric(_name(where, spec, "dielectric"), key_name(where, "dielectric"))
     )
     metal = metal_from_spec(spec, where, foil)
+    own = getattr(cls, "from_spec_parts", None)
+    if own is not None:  # kinds that make their own section (groups of traces)
+        return own(geometry, d, metal, _field_dielectrics(spec, where, dielectric), where, solver)
     if solver == "field":
         if not cls.solvable():
             raise LossLaneError(

@@ -16,6 +16,7 @@ from losslane.errors import LossLaneError
 from losslane.spec import suggest
 from losslane.xsection.base import CrossSection
 from losslane.xsection.coplanar import Cpw, Gcpw
+from losslane.xsection.group import MicrostripGroup, StriplineGroup
 from losslane.xsection.microstrip import Microstrip
 from losslane.xsection.microstrip_pair import MicrostripPair
 from losslane.xsection.stripline import Stripline
@@ -29,6 +30,8 @@ MODELS: tuple[type[CrossSection], ...] = (
     Gcpw,
     MicrostripPair,
     StriplinePair,
+    MicrostripGroup,
+    StriplineGroup,
 )
 
 

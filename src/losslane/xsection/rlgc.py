@@ -119,6 +119,9 @@ class ConductorGroup:
     wide: bool = False
     aspect: float | np.ndarray = 4.0
     proximity: float | np.ndarray = 1.5
+    #: a return group of one mode of a symmetric pair: (h, d, sign) of the two line
+    #: currents its return sees (``materials.conductor.pair_return_shape``)
+    pair: tuple | None = None
 
 
 @dataclass(frozen=True)
@@ -224,7 +227,8 @@ def group_impedances(
             )
             for i in returns
         ]
-        for i, z in zip(returns, return_impedance(f, cond, parts), strict=True):
+        pair = groups[returns[0]].pair
+        for i, z in zip(returns, return_impedance(f, cond, parts, pair=pair), strict=True):
             out[i] = z
     return out
 

@@ -1,0 +1,145 @@
+"""A sweep's outputs besides its table: the terminal summary (how many cases, the range of
+each result column, the best and worst cases by a chosen column) and the charts (a result
+against one varied parameter, grouped by another; a histogram for random sweeps)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+
+from losslane.report.charts import pyplot, save_figure
+from losslane.report.text import CAUTION, table
+
+
+def numeric_columns(tbl, skip: set[str]) -> list[str]:
+    import pyarrow as pa
+
+    out = []
+    for name, col in zip(tbl.column_names, tbl.columns, strict=True):
+        if name in skip or name == "error":
+            continue
+        if pa.types.is_floating(col.type) or pa.types.is_integer(col.type):
+            out.append(name)
+    return out
+
+
+def rank_column(result) -> str | None:
+    """The column the summary ranks by: the plan's ``rank``, else the loss at the highest
+    frequency of a cross-section sweep, else a build's margin."""
+    plan, tbl = result.plan, result.table
+    if plan.rank:
+        return plan.rank if plan.rank in tbl.column_names else None
+    if plan.base is not None and plan.at:
+        top = max(range(len(plan.at)), key=lambda i: plan.at_hz[i])
+        name = "loss_db_per_in_" + "".join(plan.at[top].split())
+        return name if name in tbl.column_names else None
+    return "margin_db" if "margin_db" in tbl.column_names else None
+
+
+def summary(result) -> dict:
+    """Ranges of the result columns and the best/worst cases by the rank column."""
+    tbl = result.table
+    varied = set(result.varied_columns)
+    ranges = {}
+    for name in numeric_columns(tbl, varied):
+        v = np.asarray(tbl.column(name).to_numpy(zero_copy_only=False), float)
+        v = v[np.isfinite(v)]
+        if v.size:
+            ranges[name] = {"min": float(v.min()), "max": float(v.max())}
+    out: dict = {"ranges": ranges, "rank": rank_column(result), "best": None, "worst": None}
+    col = out["rank"]
+    if col is not None:
+        v = np.asarray(tbl.column(col).to_numpy(zero_copy_only=False), float)
+        ok = np.flatnonzero(np.isfinite(v))
+        if ok.size:
+            lower_better = not col.startswith("margin")
+            order = ok[np.argsort(v[ok])]
+            best, worst = (order[0], order[-1]) if lower_better else (order[-1], order[0])
+            keys = [c for c in result.varied_columns if not c.endswith("_m")]
+            for label, i in (("best", best), ("worst", worst)):
+                out[label] = {
+                    "case": int(i) + 1,
+                    col: float(v[i]),
+                    **{k: tbl.column(k)[int(i)].as_py() for k in keys},
+                }
+    return out
+
+
+def sweep_text(result) -> str:
+    s = summary(result)
+    lines = [
+        f"{result.plan.name}: {result.cases} cases, {result.failed} failed; table {result.out}"
+    ]
+    rows = [[k, f"{v['min']:.6g}", f"{v['max']:.6g}"] for k, v in s["ranges"].items()]
+    if rows:
+        lines += ["", table(["column", "min", "max"], ["", "", ""], rows, left=1)]
+    if s["rank"] and s["best"]:
+        lines += ["", f"ranked by {s['rank']}"]
+        for label in ("best", "worst"):
+            r = s[label]
+            vals = ", ".join(f"{k} {v}" for k, v in r.items() if k not in ("case", s["rank"]))
+            lines.append(f"  {label}: case {r['case']} ({vals}): {r[s['rank']]:.6g}")
+    if result.warnings:
+        lines += ["", "warnings met (the models' validity ranges):"]
+        lines += [f"  {w}" for w in result.warnings[:10]]
+        if len(result.warnings) > 10:
+            lines.append(f"  ... and {len(result.warnings) - 10} more")
+    if result.charts:
+        lines += ["", "charts:"] + [f"  {p}" for p in result.charts]
+    lines += ["", CAUTION]
+    return "\n".join(lines)
+
+
+def sweep_charts(result, stem: Path) -> list[Path]:
+    """A result against one varied parameter grouped by another (the plan's ``chart``, or
+    the rank column against the first varied parameter), and for random sweeps a
+    histogram of the rank column. Written next to the table."""
+    plan, tbl = result.plan, result.table
+    out: list[Path] = []
+    col = rank_column(result)
+    spec = plan.chart or {}
+    y = spec.get("y") or col
+    x = spec.get("x") or next((p.key for p in plan.parameters if p.kind != "random"), None)
+    group = spec.get("group")
+    plt = pyplot()
+    if y in tbl.column_names and x is not None and x in tbl.column_names:
+        xs = tbl.column(f"{x}_m" if f"{x}_m" in tbl.column_names else x).to_pylist()
+        ys = tbl.column(y).to_pylist()
+        gs = tbl.column(group).to_pylist() if group in (tbl.column_names if group else []) else None
+        fig, ax = plt.subplots(figsize=(8.0, 4.6), dpi=110)
+        try:
+            keys = list(dict.fromkeys(gs)) if gs else [None]
+            for g in keys:
+                pts = [
+                    (a, b)
+                    for a, b, c in zip(xs, ys, gs or [None] * len(xs), strict=True)
+                    if c == g and a is not None and b is not None
+                ]
+                pts.sort(key=lambda p: p[0])
+                if pts:
+                    ax.plot(*zip(*pts, strict=True), "o-", ms=3, label=str(g) if g else y)
+            ax.set_xlabel(f"{x} (m)" if f"{x}_m" in tbl.column_names else x)
+            ax.set_ylabel(y)
+            ax.grid(True, alpha=0.3)
+            ax.legend(fontsize=7, title=group)
+            ax.set_title(f"{plan.name}: {y} against {x}", fontsize=10)
+            fig.tight_layout()
+            out.append(save_figure(fig, stem.with_name(stem.name + f"-{y}.png")))
+        finally:
+            plt.close(fig)
+    if plan.random and col in tbl.column_names:
+        v = np.asarray(tbl.column(col).to_numpy(zero_copy_only=False), float)
+        v = v[np.isfinite(v)]
+        if v.size:
+            fig, ax = plt.subplots(figsize=(7.0, 4.0), dpi=110)
+            try:
+                ax.hist(v, bins=min(60, max(10, int(np.sqrt(v.size)))), color="#4a7fb5")
+                ax.set_xlabel(col)
+                ax.set_ylabel("cases")
+                ax.grid(True, alpha=0.3)
+                fig.tight_layout()
+                out.append(save_figure(fig, stem.with_name(stem.name + f"-{col}-histogram.png")))
+            finally:
+                plt.close(fig)
+    return out
