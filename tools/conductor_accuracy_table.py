@@ -3,8 +3,8 @@ random typical smooth-copper geometries (seeded; none of them in the fitting set
 tools/fit_strip_transition.py, which has 1 oz planes and a fixed grid of widths), the
 worst deviation of R from DC to 10 GHz and of L from 1 MHz to 10 GHz, per mode. Prints a
 Markdown table. Run from the repository root:
-``python tools/conductor_accuracy_table.py [N]`` (N geometries per kind, default 6;
-about 5 minutes on two cores).
+``python tools/conductor_accuracy_table.py [N [KIND ...]]`` (N geometries per kind,
+default 6; about 10 minutes; KINDs: only those, same geometries).
 
 Both sides see the same cross-section in air (dk = 1), so the conductor model and the
 quasi-static external inductance are compared, not the closed forms' dispersion. The
@@ -12,7 +12,8 @@ eddy-current planes are 100 structure sizes wide (the closed forms' are unbounde
 DC resistance, which the accuracy goal allows). Typical geometries: strips 0.5-2 oz,
 3-20 mil wide, planes 0.5 or 1 oz, the dielectric to the nearer plane between a third
 and twice the strip's width (microstrip and stripline: the conductor model's verified
-box asks w/h <= 2); pairs spaced 0.5-3 widths; coplanar gaps 0.5-2 widths.
+box asks w/h <= 2); pairs spaced 0.5-3 widths; coplanar gaps 0.5-2 widths and at least
+twice the copper's thickness.
 """
 
 from __future__ import annotations
@@ -47,7 +48,9 @@ def sample(kind: str, rng) -> tuple[dict, float]:
         lo = h
         dims = {"width": w, "below": lo, "above": lo * rng.uniform(1.0, 2.0), "thickness": t}
     else:
-        dims = {"width": w, "gap": w * rng.uniform(0.5, 2.0), "height": h, "thickness": t}
+        # the gap at least twice the copper (the correction's box, t/gap <= 0.5)
+        gap = max(w * rng.uniform(0.5, 2.0), 2 * t)
+        dims = {"width": w, "gap": gap, "height": h, "thickness": t}
     if kind.endswith("pair"):
         dims["spacing"] = w * rng.uniform(0.5, 3.0)
     return dims, tp
@@ -84,6 +87,7 @@ def deviations(kind: str, dims: dict, tp: float) -> dict[str, tuple[float, float
 
 def main() -> None:
     n = int(sys.argv[1]) if len(sys.argv) > 1 else 6
+    only = set(sys.argv[2:])  # kinds to solve (the others' samples are still drawn)
     rng = np.random.default_rng(1212)
     print("| kind | mode | worst R, DC-10 GHz | worst L, 1 MHz-10 GHz |")
     print("|---|---|---|---|")
@@ -91,6 +95,8 @@ def main() -> None:
         worst: dict[str, np.ndarray] = {}
         for _ in range(n):
             dims, tp = sample(cls.kind, rng)
+            if only and cls.kind not in only:
+                continue
             for m, v in deviations(cls.kind, dims, tp).items():
                 worst[m] = np.maximum(worst.get(m, 0.0), v)
         for m, (dr, dl) in worst.items():
