@@ -530,6 +530,7 @@ class BuildResult:
     def to_json(self) -> dict:
         """The `losslane build --json` object."""
         from losslane.report.channel import summary_json
+        from losslane.report.models import lines_json, skews_json, vias_json
 
         data = summary_json(self.channel, self.summary, self.files)
         budget = self.budget
@@ -542,6 +543,9 @@ class BuildResult:
         from losslane.report.timeviews import build_json
 
         data.update(build_json(self.views))
+        data["lines"] = lines_json(self.channel)
+        data["vias"] = vias_json(self.channel)
+        data["skews"] = skews_json(self.channel)
         return data
 
 

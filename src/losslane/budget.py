@@ -135,6 +135,8 @@ class SegmentRow:
     loss_db: float
     db_per_in: float | None = None
     length_m: float | None = None
+    #: a pair segment's own mode conversion |Scd21| in dB (negative; None: single-ended)
+    conversion_db: float | None = None
 
 
 @dataclass(frozen=True)
@@ -146,6 +148,10 @@ class PointBudget:
     total_db: float
     return_loss_in_db: float
     return_loss_out_db: float
+    #: a differential channel's mode conversion at the point, dB (negative): |Scd21|
+    #: (common mode out for differential in) and |Sdc21| (the reverse); None: single-ended
+    scd21_db: float | None = None
+    sdc21_db: float | None = None
 
     @property
     def at(self) -> float:
@@ -214,6 +220,8 @@ class PointBudget:
             "passed": self.passed,
             "segments": [_segment_json(r, self) for r in self.segments],
             "reflections_db": self.reflections_db,
+            "mode_conversion_db": self.scd21_db,
+            "sdc21_db": self.sdc21_db,
         }
 
 
@@ -225,6 +233,7 @@ def _segment_json(r: SegmentRow, pb: PointBudget) -> dict:
         "db_per_in": r.db_per_in,
         "length_m": r.length_m,
         "share_of_allowance": pb.share(r.loss_db),
+        "mode_conversion_db": r.conversion_db,
     }
 
 
@@ -320,6 +329,14 @@ def evaluate_budget(
     rin, rout = _at(f, np.vstack([rl_in, rl_out]), fx)
     victim = getattr(result, "victim", None)
     per_in = [_line_db_per_in(s, fx, victim) for s in result.scenario.channel]
+    conv = getattr(result, "segment_conversion_db", None)
+    seg_conv = None if conv is None else _at(f, conv, fx)  # (K, M)
+    mm = result.mixed_mode
+    scd = sdc = None
+    if mm is not None:
+        floor = 1e-300
+        scd = _at(f, 20 * np.log10(np.maximum(np.abs(mm.cd[:, 1, 0]), floor)), fx)[0]
+        sdc = _at(f, 20 * np.log10(np.maximum(np.abs(mm.dc[:, 1, 0]), floor)), fx)[0]
     out = []
     for m, p in enumerate(pts):
         rows = tuple(
@@ -329,10 +346,21 @@ def evaluate_budget(
                 float(seg[k, m]),
                 None if per_in[k] is None else float(per_in[k][m]),
                 getattr(blk, "length", None) if per_in[k] is not None else None,
+                None if seg_conv is None else float(seg_conv[k, m]),
             )
             for k, blk in enumerate(result.blocks)
         )
-        out.append(PointBudget(p, rows, float(total[m]), float(rin[m]), float(rout[m])))
+        out.append(
+            PointBudget(
+                p,
+                rows,
+                float(total[m]),
+                float(rin[m]),
+                float(rout[m]),
+                None if scd is None else float(scd[m]),
+                None if sdc is None else float(sdc[m]),
+            )
+        )
     return ChannelBudget(budget.data_rate, budget.modulation, tuple(out), mode)
 
 

@@ -24,21 +24,29 @@ from losslane.network.lumped import SeriesCapacitor, SeriesRL, ShuntCapacitor
 from losslane.network.mixedmode import ONE_PAIR, MixedMode, mixed_mode_internal
 from losslane.network.ports import port_names, to_order
 from losslane.network.scatter import loss_db
-from losslane.network.via import Via
+from losslane.network.skew import SkewedPair
+from losslane.network.via import DrilledVia, Via
 from losslane.scenario import Scenario, Segment
 from losslane.xsection.group import member, pairs_of
 
 
 def make_block(
-    seg: Segment, n: int, default_order: str, lines: dict[str, UniformLine] | None = None
+    seg: Segment,
+    n: int,
+    default_order: str,
+    lines: dict[str, UniformLine] | None = None,
+    memo: dict | None = None,
 ) -> Block:
     """The network block of one scenario segment, for an n-conductor channel; a line
-    segment takes its section's constants from ``lines`` (by [lines.*] name) when given."""
+    segment takes its section's constants from ``lines`` (by [lines.*] name) when given;
+    ``memo`` (a dict kept for one build) lets identical vias share their field solutions."""
     v = seg.values
     if seg.type == "line":
         line = lines[seg.line] if lines is not None else seg.section
         return LineSegment(line, v["length"], name=seg.name, section=seg.section)
     if seg.type == "via":
+        if seg.drill is not None:
+            return DrilledVia(seg.drill, n=n, name=seg.name, memo=memo)
         return Via(v["barrel"], v["stub"], v["impedance"], seg.dielectric, n=n, name=seg.name)
     if seg.type == "capacitor":
         return SeriesCapacitor(v["value"], v["esl"], v["esr"], n=n, name=seg.name)
@@ -87,6 +95,8 @@ class ChannelResult:
     warnings: list[str] = field(default_factory=list)
     members: tuple = ()
     victim: str | None = None
+    #: a differential channel's per-segment |Scd21| in dB, (K, N) (None: single-ended)
+    segment_conversion_db: np.ndarray | None = field(default=None, repr=False)
 
     @property
     def conductors(self) -> int:
@@ -194,9 +204,16 @@ def build_channel(scenario: Scenario) -> ChannelResult:
     picked = member(members, victim).conductors if victim is not None else None
     used = dict.fromkeys(seg.line for seg in scenario.channel if seg.type == "line")
     lines = {name: UniformLine.from_rlgc(scenario.lines[name].rlgc(f)) for name in used}
-    blocks = [make_block(seg, n, order, lines) for seg in scenario.channel]
+    f_skew = skew_frequency(scenario)
+    memo: dict = {}  # this build's via field solutions, shared by identical vias
+    blocks = [
+        skewed(make_block(seg, n, order, lines, memo), seg, f_skew) for seg in scenario.channel
+    ]
     seg_loss = np.empty((len(blocks), f.size))
     cum_loss = np.empty((len(blocks), f.size))
+    # mode conversion of each segment: a pair channel's, or a pair victim's on group lines
+    pair_view = member(members, victim).pair if victim is not None else (n == 2 and not members)
+    seg_conv = np.empty((len(blocks), f.size)) if pair_view else None
     total = None
     for k, (s_block, total) in enumerate(cascade_steps(blocks, f, scenario.ports.reference)):
         through = total
@@ -204,7 +221,58 @@ def build_channel(scenario: Scenario) -> ChannelResult:
             s_block, through = sub_network(s_block, picked), sub_network(total, picked)
         seg_loss[k] = loss_db(s_block)
         cum_loss[k] = loss_db(through)
+        if seg_conv is not None:
+            seg_conv[k] = conversion_db(s_block)
     pairs = pairs_of(members) if members else (ONE_PAIR if n == 2 else ())
-    return ChannelResult(
+    result = ChannelResult(
         scenario, f, blocks, total, seg_loss, cum_loss, pairs, members=members, victim=victim
     )
+    result.segment_conversion_db = seg_conv
+    return result
+
+
+def conversion_db(s: np.ndarray) -> np.ndarray:
+    """|Scd21| in dB (negative; -6000 dB floor) of a pair's (N, 4, 4) S in the internal port
+    order: the common-mode wave leaving the far end for a differential wave entering the
+    near end, (S31 + S41 - S32 - S42) / 2 (Bockelman-Eisenstadt)."""
+    x = s[:, 2:, :2]
+    scd = 0.5 * (x[:, 0, 0] + x[:, 1, 0] - x[:, 0, 1] - x[:, 1, 1])
+    return 20.0 * np.log10(np.maximum(np.abs(scd), 1e-300))
+
+
+def skew_frequency(scenario: Scenario) -> float:
+    """Where a skew given as a time becomes a length (at the leg's phase velocity there):
+    the budget's Nyquist frequency, else the middle of the sweep."""
+    b = scenario.budget
+    if b is not None and b.nyquist is not None:
+        return float(b.nyquist)
+    return 0.5 * (scenario.sweep.start + scenario.sweep.stop)
+
+
+def skewed(block: Block, seg: Segment, f_ref: float) -> Block:
+    """``block`` with the segment's skew (an extra uncoupled length on one leg; see
+    ``network.skew``), or ``block`` itself without one."""
+    if seg.skew is None:
+        return block
+    what, value = seg.skew
+    if block.kind == "line":
+        from losslane.network.line import line_scaled_abcd
+        from losslane.xsection.leg import leg_section
+
+        leg = leg_section(seg.section)
+
+        def leg_abcd(fq: np.ndarray, length: float):
+            return line_scaled_abcd(leg.rlgc(fq), length)
+
+        def delay() -> float:
+            return float(leg.line_values(np.array([f_ref])).main.delay[0])
+
+    else:
+        leg_abcd = block.leg
+
+        def delay() -> float:
+            return block.leg_delay(f_ref)
+
+    if what == "time":
+        return SkewedPair(block, value / delay(), leg_abcd, skew_time=value)
+    return SkewedPair(block, value, leg_abcd)

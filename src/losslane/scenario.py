@@ -25,9 +25,13 @@ from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
 from losslane.spec import check_keys, quantity, suggest, text
+from losslane.stackup import Stackup, parse_stackup, parse_stackups
 from losslane.timesettings import TimeSettings, parse_time
+from losslane.units import parse_quantity
+from losslane.via_geometry import DrillVia, drill_via, is_drill_form
 from losslane.xsection.base import CrossSection
 from losslane.xsection.factory import section_from_spec
+from losslane.xsection.on_layer import LineModel, line_model, on_layer, section_on_layer
 
 TOP_KEYS = (
     "name",
@@ -43,6 +47,8 @@ TOP_KEYS = (
     "compare",
     "crosstalk",
     "time",
+    "stackup",
+    "stackups",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 MAX_POINTS = 200_001
@@ -80,6 +86,10 @@ class Segment:
     path: Path | None = None
     order: str | None = None
     as_is: bool = False
+    #: a via from its drill geometry on a stackup (None: the explicit form)
+    drill: DrillVia | None = None
+    #: a pair segment's skew: ("length", m) or ("time", s); leg P longer when > 0
+    skew: tuple[str, float] | None = None
 
     @property
     def where(self) -> str:
@@ -142,6 +152,10 @@ class Scenario:
     compare: Comparison | None = None
     crosstalk: CrosstalkSettings | None = None
     time: TimeSettings = field(default_factory=TimeSettings)  # the [time] section
+    #: the boards (``losslane.stackup``): "" is the unnamed [stackup]
+    stackups: dict[str, Stackup] = field(default_factory=dict)
+    #: per [lines.*] name: its kind, the model used and where it sits
+    line_models: dict[str, LineModel] = field(default_factory=dict)
 
     @property
     def conductors(self) -> int:
@@ -253,13 +267,12 @@ def scenario_from_data(
     resolve_dielectric = _resolver("dielectric", dielectrics, library.dielectrics)
     resolve_foil = _resolver("foil", foils, library.foils)
 
-    lines: dict[str, CrossSection] = {}
-    for lname, spec in _tables(data, "lines").items():
-        lines[lname] = section_from_spec(spec, f"[lines.{lname}]", resolve_dielectric, resolve_foil)
+    stackups = _stackups(data, library, resolve_dielectric, resolve_foil)
+    lines, line_models = _lines(data, stackups, resolve_dielectric, resolve_foil)
 
     sweep = _sweep(data["sweep"])
     ports = _ports(data.get("ports", {}))
-    channel = _channel(data["channel"], lines, base, resolve_dielectric)
+    channel = _channel(data["channel"], lines, base, resolve_dielectric, stackups)
     budget = _budget(data["budget"]) if "budget" in data else None
     compare = _compare(data["compare"], base) if "compare" in data else None
     crosstalk = _crosstalk(data, channel, budget)
@@ -278,9 +291,42 @@ def scenario_from_data(
         compare=compare,
         crosstalk=crosstalk,
         time=parse_time(data.get("time", {}), sweep.stop),
+        stackups=stackups,
+        line_models=line_models,
     )
-    _ = sc.conductors  # mixing single-ended and pairs is an error now, not at build time
+    _check_pair_keys(channel, sc.conductors)  # also: mixing single-ended and pairs
     return sc
+
+
+def _stackups(
+    data: Mapping, library: Library, resolve_dielectric, resolve_foil
+) -> dict[str, Stackup]:
+    """The library files' stackups, overridden by the scenario's own of the same name."""
+    out = {
+        name: parse_stackup(name, spec, resolve_dielectric, resolve_foil, source)
+        for name, (spec, source) in library.stackups.items()
+    }
+    out.update(parse_stackups(data, "scenario", resolve_dielectric, resolve_foil))
+    return out
+
+
+def _lines(
+    data: Mapping, stackups: dict[str, Stackup], resolve_dielectric, resolve_foil
+) -> tuple[dict[str, CrossSection], dict[str, LineModel]]:
+    """Each [lines.*] section's cross-section (explicit heights, or a stackup layer) and
+    its report (kind, model used, placement)."""
+    lines: dict[str, CrossSection] = {}
+    models: dict[str, LineModel] = {}
+    for lname, spec in _tables(data, "lines").items():
+        where = f"[lines.{lname}]"
+        if on_layer(spec):
+            lines[lname], models[lname] = section_on_layer(
+                lname, spec, where, stackups, resolve_dielectric, resolve_foil
+            )
+        else:
+            lines[lname] = section_from_spec(spec, where, resolve_dielectric, resolve_foil)
+            models[lname] = line_model(lname, lines[lname])
+    return lines, models
 
 
 def _tables(data: Mapping, key: str) -> dict[str, Mapping]:
@@ -349,7 +395,7 @@ def _ports(spec: object) -> Ports:
 
 
 _SEGMENT_KEYS = {
-    "line": ("line", "length", "name"),
+    "line": ("line", "length", "name", "skew"),
     "via": ("via", "name"),
     "capacitor": ("capacitor", "name"),
     "series": ("series", "name"),
@@ -359,7 +405,11 @@ _SEGMENT_KEYS = {
 
 
 def _channel(
-    entries: object, lines: dict[str, CrossSection], base: Path, resolve_dielectric
+    entries: object,
+    lines: dict[str, CrossSection],
+    base: Path,
+    resolve_dielectric,
+    stackups: Mapping[str, Stackup] | None = None,
 ) -> list[Segment]:
     if not isinstance(entries, list) or not entries:
         raise LossLaneError(
@@ -383,7 +433,9 @@ def _channel(
         name = entry.get("name")
         if name is not None and (not isinstance(name, str) or not name.strip()):
             raise LossLaneError(f"{where}.name = {name!r}: expected a non-empty text")
-        out.append(_segment(i, kind, entry, where, name, lines, base, resolve_dielectric))
+        out.append(
+            _segment(i, kind, entry, where, name, lines, base, resolve_dielectric, stackups or {})
+        )
     # repeated labels would make the budget ambiguous: number them
     names = [s.name for s in out]
     return [
@@ -403,6 +455,7 @@ def _segment(
     lines: dict[str, CrossSection],
     base: Path,
     resolve_dielectric,
+    stackups: Mapping[str, Stackup] | None = None,
 ) -> Segment:
     if kind == "line":
         lname = entry["line"]
@@ -413,8 +466,15 @@ def _segment(
         length = quantity(where, entry, "length", "length", required=True)
         if length <= 0:
             raise LossLaneError(f"{where}.length = {entry['length']!r}: must be > 0")
+        skew = _skew(where, entry) if "skew" in entry else None
         return Segment(
-            i, "line", name or lname, {"length": length}, section=lines[lname], line=lname
+            i,
+            "line",
+            name or lname,
+            {"length": length},
+            section=lines[lname],
+            line=lname,
+            skew=skew,
         )
     body = entry[kind]
     w = f"{where}.{kind}"
@@ -447,27 +507,7 @@ def _segment(
     if not isinstance(body, Mapping):
         raise LossLaneError(f"{w} = {body!r}: expected an inline table, e.g. {kind} = {{ ... }}")
     if kind == "via":
-        check_keys(
-            w,
-            body,
-            ("barrel", "stub", "impedance", "dielectric"),
-            required=("barrel", "impedance", "dielectric"),
-        )
-        vals = {
-            "barrel": quantity(w, body, "barrel", "length", required=True),
-            "stub": quantity(w, body, "stub", "length", default=0.0),
-            "impedance": quantity(w, body, "impedance", "resistance", required=True),
-        }
-        if vals["barrel"] <= 0 or vals["stub"] < 0 or vals["impedance"] <= 0:
-            raise LossLaneError(
-                f"{w}: barrel and impedance must be > 0 and stub >= 0 (got {dict(body)})"
-            )
-        d = body["dielectric"]
-        if not isinstance(d, str):
-            raise LossLaneError(f"{w}.dielectric = {d!r}: expected a dielectric name")
-        return Segment(
-            i, "via", name or "via", vals, dielectric=resolve_dielectric(d, f"{w}.dielectric")
-        )
+        return _via_segment(i, body, w, name, resolve_dielectric, stackups)
     if kind == "capacitor":
         check_keys(w, body, ("value", "esl", "esr"), required=("value",))
         vals = {
@@ -519,6 +559,75 @@ def _crosstalk(data: Mapping, channel: list[Segment], budget: Budget | None):
             f"{DEFAULT_ORDER!r} only (1..n near ends in the traces' order, n+1..2n far ends)"
         )
     return settings
+
+
+def _via_segment(
+    i: int, body: Mapping, w: str, name: str | None, resolve_dielectric, stackups
+) -> Segment:
+    """A via: the drill form on a stackup (``via_geometry``) or the explicit form."""
+    skew = _skew(w, body) if "skew" in body else None
+    if is_drill_form(body):
+        drill = drill_via(body, w, stackups)
+        vals = {"barrel": drill.barrel_length, "stub": drill.stub_below_length}
+        return Segment(i, "via", name or "via", vals, drill=drill, skew=skew)
+    check_keys(
+        w,
+        body,
+        ("barrel", "stub", "impedance", "dielectric", "skew"),
+        required=("barrel", "impedance", "dielectric"),
+    )
+    vals = {
+        "barrel": quantity(w, body, "barrel", "length", required=True),
+        "stub": quantity(w, body, "stub", "length", default=0.0),
+        "impedance": quantity(w, body, "impedance", "resistance", required=True),
+    }
+    if vals["barrel"] <= 0 or vals["stub"] < 0 or vals["impedance"] <= 0:
+        raise LossLaneError(
+            f"{w}: barrel and impedance must be > 0 and stub >= 0 (got {dict(body)})"
+        )
+    d = body["dielectric"]
+    if not isinstance(d, str):
+        raise LossLaneError(f"{w}.dielectric = {d!r}: expected a dielectric name")
+    return Segment(
+        i,
+        "via",
+        name or "via",
+        vals,
+        dielectric=resolve_dielectric(d, f"{w}.dielectric"),
+        skew=skew,
+    )
+
+
+def _skew(where: str, table: Mapping) -> tuple[str, float]:
+    """``skew``: a length ("5 mil") or a time ("1 ps"); leg P longer, negative: leg N."""
+    value = table["skew"]
+    for kind in ("length", "time"):
+        try:
+            return kind, parse_quantity(value, kind, f"{where}.skew")
+        except LossLaneError:
+            continue
+    raise LossLaneError(
+        f'{where}.skew = {value!r}: expected a length ("5 mil") or a time ("1 ps"); leg P is '
+        "longer by that much, a negative value makes leg N longer"
+    )
+
+
+def _check_pair_keys(channel: list[Segment], n: int) -> None:
+    """Keys that only pairs (or only single-ended channels) take."""
+    for seg in channel:
+        if seg.skew is not None and n != 2:
+            raise LossLaneError(
+                f"{seg.where}: skew is the length difference between the legs of a pair; this "
+                "channel is single-ended"
+            )
+        if seg.drill is not None and (seg.drill.pitch is not None) != (n == 2):
+            need = (
+                "a via pair needs pitch (centre to centre of its barrels)"
+                if n == 2
+                else "pitch is for the via pairs of a differential channel; this one is "
+                "single-ended"
+            )
+            raise LossLaneError(f"{seg.where}: {need}")
 
 
 def _budget(spec: object) -> Budget:

@@ -171,6 +171,9 @@ class Library:
     foils: dict[str, Roughness] = field(default_factory=dict)
     notes: dict[str, str] = field(default_factory=dict)
     classes: dict[str, str] = field(default_factory=dict)
+    #: a library file's ``[stackup]`` / ``[stackups.*]`` tables as written, with the file
+    #: they came from; ``losslane.stackup`` reads them when a scenario uses them
+    stackups: dict[str, tuple[Mapping, str]] = field(default_factory=dict)
 
     def dielectric(self, name: str, where: str = "dielectric") -> Dielectric:
         if name not in self.dielectrics:
@@ -190,7 +193,14 @@ class Library:
         self._load(read_toml(path, "library file"), str(path))
 
     def _load(self, data: Mapping, source: str) -> None:
-        check_keys(source, data, ("dielectrics", "foils"))
+        check_keys(source, data, ("dielectrics", "foils", "stackup", "stackups"))
+        if "stackup" in data:
+            self.stackups[""] = (data["stackup"], source)
+        named = data.get("stackups", {})
+        if not isinstance(named, Mapping):
+            raise LossLaneError(f"{source}: [stackups] expects named tables, e.g. [stackups.host]")
+        for name, spec in named.items():
+            self.stackups[name] = (spec, source)
         for name, spec in data.get("dielectrics", {}).items():
             where = f"{source} [dielectrics.{name}]"
             self.dielectrics[name] = dielectric_from_spec(name, spec, where)

@@ -77,6 +77,7 @@ def budget_rows(pb) -> list[dict]:
         }
     )
     lim = pb.point.min_return_loss
+    conversion = [("mode conversion Scd21", pb.scd21_db), ("mode conversion Sdc21", pb.sdc21_db)]
     for end, value in (("input", pb.return_loss_in_db), ("output", pb.return_loss_out_db)):
         rows.append(
             {
@@ -91,11 +92,33 @@ def budget_rows(pb) -> list[dict]:
                 "result": None if lim is None else bool(value >= lim),
             }
         )
+    for label, value in conversion:
+        if value is not None:
+            rows.append(
+                {
+                    "row": label,
+                    "kind": "",
+                    "quantity": "mode conversion",
+                    "value_db": value,
+                    "db_per_in": None,
+                    "share": None,
+                    "limit_db": None,
+                    "margin_db": None,
+                    "result": None,
+                }
+            )
     return rows
 
 
 def _f(v: float | None, fmt: str) -> str:
     return "-" if v is None else format(v, fmt)
+
+
+def _conversion(v: float | None) -> str:
+    """A mode conversion in dB ("-" when absent, "none" at the -6000 dB floor)."""
+    if v is None:
+        return "-"
+    return "none" if v <= -1000 else f"{v:.1f}"
 
 
 def budget_text(budget, fit=None) -> str:
@@ -111,19 +134,25 @@ def budget_text(budget, fit=None) -> str:
         for k, pb in enumerate(pts):
             out.append(f"  [{k + 1}] {point_title(pb, budget)}")
         heads, units = ["segment", "kind"], ["", ""]
+        pair = pts[0].scd21_db is not None
         for k, _ in enumerate(pts):
-            heads += [f"[{k + 1}] loss", "per in", "share"]
-            units += ["dB", "dB/in", "of max"]
+            heads += [f"[{k + 1}] loss", "per in", "share"] + (["Scd21"] if pair else [])
+            units += ["dB", "dB/in", "of max"] + (["dB"] if pair else [])
         per_point = [budget_rows(pb) for pb in pts]
         n_ins = len(pts[0].segments) + 2  # segments, reflections, total
         rows = []
         for i in range(n_ins):
             base = per_point[0][i]
             row = [base["row"], base["kind"]]
-            for pr in per_point:
+            for pb, pr in zip(pts, per_point, strict=True):
                 r = pr[i]
                 share = "-" if r["share"] is None else f"{100 * r['share']:.1f}%"
                 row += [f"{r['value_db']:.2f}", _f(r["db_per_in"], ".3f"), share]
+                if pair:
+                    conv = pb.segments[i].conversion_db if i < len(pb.segments) else None
+                    if r["row"] == "total":
+                        conv = pb.scd21_db
+                    row.append(_conversion(conv))
             rows.append(row)
         extra = [
             ("max loss", lambda pb: _f(pb.allowance_db, ".2f")),
@@ -132,10 +161,13 @@ def budget_text(budget, fit=None) -> str:
             ("min return loss", lambda pb: _f(pb.point.min_return_loss, ".1f")),
             ("result", lambda pb: verdict(pb.passed)),
         ]
+        if pair:
+            extra.insert(4, ("mode conversion Sdc21", lambda pb: _conversion(pb.sdc21_db)))
+            extra.insert(4, ("mode conversion Scd21", lambda pb: _conversion(pb.scd21_db)))
         for label, get in extra:
             row = [label, ""]
             for pb in pts:
-                row += [get(pb), "", ""]
+                row += [get(pb), "", ""] + ([""] if pair else [])
             rows.append(row)
         out.append(table(heads, units, rows, left=2))
         ny = budget.nyquist

@@ -20,6 +20,7 @@ from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
 from losslane.report.budget import budget_text, write_budget_files
 from losslane.report.charts import Curve, Marker, db_plot, to_db
+from losslane.report.models import models_text
 from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
 from losslane.report.timeviews import build_summary_lines, build_view_files
@@ -336,12 +337,13 @@ def summary_json(result: ChannelResult, summary: list[dict], files: list[Path]) 
 
 def build_text(build) -> str:
     """The terminal summary of a build (an ``api.BuildResult``): the channel's losses, the
-    budget and the fit, the time-domain views and quality, the measurement beside the
-    model, the crosstalk, the files written."""
+    budget and the fit, the models used, the time-domain views and quality, the measurement
+    beside the model, the crosstalk, the files written."""
     from losslane.report.crosstalk import crosstalk_text
     from losslane.report.overlay import overlay_text
 
     sections = [
+        models_text(build.channel),
         "\n".join(build_summary_lines(getattr(build, "views", None))),
         budget_text(build.budget, build.fit),
         overlay_text(getattr(build, "overlay", None)),

@@ -112,6 +112,8 @@ def line_json(
     elif model_report is not None:
         out["solver"] = model_report["solver"]
         out["model"] = model_report
+    else:
+        out["solver"] = "closed-form"
     return out
 
 

@@ -17,6 +17,7 @@ from pathlib import Path
 
 from losslane import __version__
 from losslane.report.budget import budget_rows, point_title
+from losslane.report.models import models_lines
 from losslane.report.text import CAUTION, verdict
 from losslane.report.timeviews import build_section_html
 
@@ -304,6 +305,7 @@ def report_html(
     ]
     for check in result.imports:
         meta.append("imported model " + check.summary())
+    meta += models_lines(result)
     meta += guarantee_lines(result)
     return render_report(
         title=f"{sc.name}: channel report",

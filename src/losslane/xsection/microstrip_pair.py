@@ -1071,6 +1071,9 @@ class MicrostripPair(CrossSection):
     ) -> np.ndarray:
         return pair_coupling(cls, dims, base_air)
 
+    #: the model of one leg alone (a skewed leg's extra length)
+    leg_model: ClassVar[type[CrossSection]] = Microstrip
+
     def mode_arrays(
         self,
         f: np.ndarray,

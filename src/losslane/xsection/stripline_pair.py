@@ -857,6 +857,9 @@ class StriplinePair(CrossSection):
         Cohn's zero-thickness centred pair is exact, and for lines far apart."""
         return pair_coupling(cls, dims, base_air) * exactness_weight(dims)
 
+    #: the model of one leg alone (a skewed leg's extra length)
+    leg_model: ClassVar[type[CrossSection]] = Stripline
+
     def mode_arrays(
         self,
         f: np.ndarray,

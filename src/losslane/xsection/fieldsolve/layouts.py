@@ -13,7 +13,13 @@ solver's own options travel in :class:`FieldOptions`:
 * ``coating``: a conformal solder mask over the top face and the traces on it (layouts
   with an outer face);
 * ``dielectric_above``: stripline between a core (``dielectric``, under the trace, of
-  ``below``) and a prepreg that embeds the trace (``thickness + above``).
+  ``below``) and a prepreg that embeds the trace (``thickness + above``);
+* ``stack``: a :class:`LayerStack`, the list of dielectric layers between the trace and
+  its plane(s) when a line is placed on a stackup layer (several sheets of different
+  laminates; another copper layer in between, filled with its adjacent dielectric). It
+  replaces ``dielectric`` and ``dielectric_above`` in the layout; the layers are scaled to
+  the dimensions' ``height`` (or ``below`` and ``above``), so a design helper that varies
+  a height scales every sheet alike.
 
 Light module (numpy and the geometry description only): the model classes import it
 inside ``field_geometry``, the solver is not imported.
@@ -30,6 +36,19 @@ from losslane.xsection.fieldsolve.geometry import Coating, Geometry, Layer, Trac
 
 
 @dataclass(frozen=True)
+class LayerStack:
+    """The layers between a trace and its reference plane(s), nearest the trace first:
+    ``below`` down to the lower plane, ``above`` up to the upper plane (empty over an
+    outer layer: air or the coating). The trace's own thickness sits in the nearest layer
+    above (``fill_below`` False: the trace lies on the sheet below and the one above
+    flows around it) or in the nearest layer below."""
+
+    below: tuple[Layer, ...]
+    above: tuple[Layer, ...] = ()
+    fill_below: bool = False
+
+
+@dataclass(frozen=True)
 class FieldOptions:
     """The field solver's options of one cross-section (see the module docstring)."""
 
@@ -38,6 +57,7 @@ class FieldOptions:
     etch_factor: float | None = None
     coating: Coating | None = None
     dielectric_above: Dielectric | None = None
+    stack: LayerStack | None = None
 
     def top(self, dims: Mapping[str, float], key: str = "etch_factor") -> float | None:
         """The top width of a trace of ``dims`` (None: rectangular)."""
@@ -70,16 +90,52 @@ def over_plane(dims: Mapping[str, float], options: FieldOptions, pair: bool) -> 
     coating above."""
     h = dims["height"]
     traces = strips(dims, h, options.top(dims), pair)
-    return Geometry((Layer(h, options.dielectric),), traces, True, False, options.coating)
+    layers: tuple[Layer, ...] = (Layer(h, options.dielectric),)
+    if options.stack is not None:
+        layers = merged(scaled(options.stack.below, h)[::-1])
+    return Geometry(layers, traces, True, False, options.coating)
 
 
 def between_planes(dims: Mapping[str, float], options: FieldOptions, pair: bool) -> Geometry:
     """Stripline (pair): the core of ``below`` under the strip(s), the prepreg of
     ``thickness + above`` embedding them, a plane under and over the stack."""
     lo, hi, t = dims["below"], dims["above"], dims["thickness"]
+    traces = strips(dims, lo, options.top(dims), pair)
+    if options.stack is not None:
+        st = options.stack
+        down, up = list(scaled(st.below, lo)), list(scaled(st.above, hi))
+        near = down if st.fill_below else up
+        near[0] = Layer(near[0].thickness + t, near[0].dielectric, near[0].name)
+        return Geometry(merged(tuple(down[::-1] + up)), traces, True, True)
     above = options.dielectric_above or options.dielectric
     layers = (Layer(lo, options.dielectric, "core"), Layer(t + hi, above, "prepreg"))
-    return Geometry(layers, strips(dims, lo, options.top(dims), pair), True, True)
+    return Geometry(layers, traces, True, True)
+
+
+def scaled(layers: tuple[Layer, ...], total: float) -> tuple[Layer, ...]:
+    """``layers`` with their thicknesses scaled to sum to ``total`` (unchanged when they
+    already do, up to rounding)."""
+    s = sum(ly.thickness for ly in layers)
+    if not layers or not s > 0:
+        raise LossLaneError(f"field solver: no layers to fill a height of {total:g} m")
+    k = total / s
+    if abs(k - 1.0) < 1e-12:
+        return tuple(layers)
+    return tuple(Layer(ly.thickness * k, ly.dielectric, ly.name) for ly in layers)
+
+
+def merged(layers: tuple[Layer, ...]) -> tuple[Layer, ...]:
+    """Adjacent layers of the same dielectric joined into one (bottom first), named by
+    their names joined with '+'."""
+    out: list[Layer] = []
+    for ly in layers:
+        if out and out[-1].dielectric == ly.dielectric:
+            prev = out[-1]
+            name = "+".join(n for n in (prev.name, ly.name) if n)
+            out[-1] = Layer(prev.thickness + ly.thickness, ly.dielectric, name)
+        else:
+            out.append(ly)
+    return tuple(out)
 
 
 def coplanar(dims: Mapping[str, float], options: FieldOptions, grounded: bool) -> Geometry:
@@ -96,4 +152,13 @@ def coplanar(dims: Mapping[str, float], options: FieldOptions, grounded: bool) -
     return Geometry((Layer(h, options.dielectric),), traces, grounded, False, options.coating)
 
 
-__all__ = ["FieldOptions", "between_planes", "coplanar", "over_plane", "strips"]
+__all__ = [
+    "FieldOptions",
+    "LayerStack",
+    "between_planes",
+    "coplanar",
+    "merged",
+    "over_plane",
+    "scaled",
+    "strips",
+]
