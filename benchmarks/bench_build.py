@@ -8,7 +8,8 @@ Rows ``(name, measured, target, unit)``; times are medians of a few runs.
   channel from scikit-rf's microstrip media and ``cascade_list``, also in a new process,
   also writing the Touchstone file). Goal: losslane at most 1/3 of the scikit-rf script's
   wall time (the ratio row);
-* ``losslane demo --no-plots``: goal 1.5 s; ``losslane demo`` with its two plots: goal 3 s.
+* ``losslane demo --no-plots``: goal 1.5 s; ``losslane demo`` with all its charts: goal 5 s
+  (bench_charts.py times the builds with the RF views).
 
 The CPU-time ratio (user + system time of the child processes) is reported beside the
 wall-time ratio: it is less sensitive to other work on a shared machine. Both programs'
@@ -38,7 +39,7 @@ SKRF_SCRIPT = HERE / "skrf_equivalent.py"
 RUNS = 5
 RATIO_TARGET = 1 / 3
 DEMO_TARGET_S = 1.5
-DEMO_PLOTS_TARGET_S = 3.0
+DEMO_PLOTS_TARGET_S = 5.0
 
 
 def _env() -> dict[str, str]:
@@ -119,7 +120,7 @@ def run() -> list[tuple[str, float, float | None, str]]:
         (f"losslane build --no-plots, wall ({label})", t_ours[0], None, "s"),
         (f"skrf MLine + cascade_list script, wall ({label})", t_skrf[0], None, "s"),
         ("losslane demo --no-plots, wall (new process)", t_demo[0], DEMO_TARGET_S, "s"),
-        ("losslane demo with plots, wall (new process)", t_plots[0], DEMO_PLOTS_TARGET_S, "s"),
+        ("losslane demo with all charts, wall (new process)", t_plots[0], DEMO_PLOTS_TARGET_S, "s"),
         ("insertion loss at 50 GHz, losslane (20 segments)", il_ours, None, "dB"),
         ("insertion loss at 50 GHz, skrf MLine (20 segments)", il_skrf, None, "dB"),
     ]

@@ -223,14 +223,18 @@ def test_json_is_one_object_and_nothing_else(tmp_path, capsys):
     assert data["ports"] == 2 and data["points"] == 401
     assert data["touchstone"] == str(tmp_path / "o" / "bench-lane.s2p")
     # no [budget] section: the fit, the budget JSON and the report are still written
+    # (a 2-port also gets its RF views: phase and group delay, VSWR, Smith chart)
     assert sorted(Path(p).name for p in data["files"]) == [
         "bench-lane-budget.json",
         "bench-lane-ild.png",
         "bench-lane-impedance-profile.png",
         "bench-lane-insertion-loss.png",
+        "bench-lane-phase-delay.png",
         "bench-lane-report.html",
         "bench-lane-return-loss.png",
+        "bench-lane-smith.png",
         "bench-lane-step.png",
+        "bench-lane-vswr.png",
         "bench-lane.s2p",
     ]
     assert all(Path(p).is_file() for p in data["files"])

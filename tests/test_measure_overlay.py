@@ -170,8 +170,9 @@ def test_own_output_as_measurement_shows_zero_difference(capsys, single):
     assert "itself &lt;as&gt; &amp; measured" in page  # the label, escaped
     imgs = [v for t, k, v in parsed.attrs if t == "img" and k == "src"]
     pngs = [p for p in data["files"] if p.endswith(".png")]
-    # IL, RL, budget, ILD, the difference chart, the impedance profile and the step response
-    assert len(imgs) == len(pngs) == 7
+    # IL, RL, the focused band, a 2-port's phase/delay, VSWR and Smith charts, budget, ILD,
+    # the difference chart, the impedance profile and the pulse response
+    assert len(imgs) == len(pngs) == 11
     assert any(p.endswith("-measured-difference.png") for p in pngs)
     assert "Model minus measurement: insertion and return loss" in page
     # the api result is what the command printed

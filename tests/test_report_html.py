@@ -122,8 +122,20 @@ def test_page_is_self_contained(built) -> None:
     p = parse_page(page)
     imgs = [v for t, k, v in p.attrs if t == "img" and k == "src"]
     pngs = [f for f in files if f.suffix == ".png"]
-    # IL, RL, budget chart, ILD, impedance profile, pulse response: each one embedded
-    assert len(imgs) == len(pngs) == 6
+    # IL, RL, a 2-port's phase/delay, VSWR and Smith charts, budget chart, ILD, impedance
+    # profile, pulse response: each one embedded
+    assert len(imgs) == len(pngs) == 9
+    assert sorted(f.name[len("report-lane-co-") :] for f in pngs) == [
+        "budget.png",
+        "ild.png",
+        "impedance-profile.png",
+        "insertion-loss.png",
+        "phase-delay.png",
+        "pulse.png",
+        "return-loss.png",
+        "smith.png",
+        "vswr.png",
+    ]
     embedded = set()
     for src in imgs:
         assert src.startswith("data:image/png;base64,")

@@ -51,7 +51,7 @@ __all__ = [
 ]
 
 if TYPE_CHECKING:
-    from losslane.budget import ChannelBudget, LossFit
+    from losslane.budget import ChannelBudget, FitOff, LossFit
     from losslane.channel import ChannelResult
     from losslane.design.compare import CompareResult
     from losslane.design.sizing import SizeResult
@@ -504,7 +504,7 @@ class BuildResult:
 
     channel: ChannelResult
     budget: ChannelBudget | None
-    fit: LossFit | None
+    fit: LossFit | FitOff | None
     summary: list[dict]
     files: list[Path] = field(default_factory=list)
     overlay: MeasuredOverlay | None = None
@@ -563,17 +563,21 @@ def build(
     version: int = 1,
     form: str = "ri",
     plots: bool = True,
+    skip_fit: bool = False,
 ) -> BuildResult:
     """Build a scenario file: the Touchstone file, charts, the loss budget, the report
-    page, written into ``out`` (default ``./<scenario name>``).
+    page, written into ``out`` (default ``./<scenario name>``). ``skip_fit`` turns the
+    fitted insertion loss off (as ``[budget] fit = false`` does, also without a [budget]).
 
     Model warnings raised on the way are kept in ``BuildResult.warnings`` (and listed in
     the report) and then re-issued, so callers still see them.
     """
     import warnings
 
+    from losslane.bands import validate_limits
     from losslane.budget import validate
     from losslane.errors import LossLaneWarning
+    from losslane.plotspec import check_plots
     from losslane.report.channel import prepare_out_dir, slug, write_build
     from losslane.scenario import load_scenario
 
@@ -583,8 +587,10 @@ def build(
             warnings.simplefilter("always", LossLaneWarning)
             sc = load_scenario(scenario)
             points = validate(sc)  # budget frequencies against the sweep, before any work
+            validate_limits(sc)  # bands and masks likewise
+            check_plots(sc.plots, sc.frequencies())
             out_dir = prepare_out_dir(out if out is not None else slug(sc.name))
-            result = build_result(sc, points)
+            result = build_result(sc, points, skip_fit=skip_fit)
     finally:
         # outside the recording block, so the caller's own filters see them again
         messages = _reissue(caught, LossLaneWarning)
@@ -605,11 +611,12 @@ def build(
     return result
 
 
-def build_result(scenario, points=None) -> BuildResult:
+def build_result(scenario, points=None, skip_fit: bool = False) -> BuildResult:
     """The channel, budget, fit and summary of a loaded scenario
     (``scenario.Scenario``), without writing files: what ``build`` writes out, and what a
-    sweep evaluates per case. ``points``: the budget's check points if already found."""
-    from losslane.budget import evaluate_budget, fit_channel, validate
+    sweep evaluates per case. ``points``: the budget's check points if already found;
+    ``skip_fit``: no fitted insertion loss."""
+    from losslane.budget import FitOff, evaluate_budget, fit_channel, validate
     from losslane.channel import build_channel
     from losslane.channel_views import channel_inspection
     from losslane.crosstalk.evaluate import evaluate_crosstalk
@@ -617,10 +624,15 @@ def build_result(scenario, points=None) -> BuildResult:
     from losslane.report.channel import summary_frequencies, summary_rows
 
     if points is None:
+        from losslane.bands import validate_limits
+
         points = validate(scenario)
+        validate_limits(scenario)
     channel = build_channel(scenario)
     budget = evaluate_budget(channel, points=points)
-    fit = fit_channel(channel)
+    fit = fit_channel(channel, enabled=not skip_fit)
+    if fit is None:
+        fit = FitOff("the sweep is too coarse for the four-term fit")
     overlay = measured_overlay(channel, summary_frequencies(channel))
     crosstalk = evaluate_crosstalk(channel)
     views = channel_inspection(channel)
@@ -636,10 +648,13 @@ def build_result(scenario, points=None) -> BuildResult:
 
 
 def demo(
-    out: str | Path = "losslane-demo", single_ended: bool = False, plots: bool = True
+    out: str | Path = "losslane-demo",
+    single_ended: bool = False,
+    plots: bool = True,
+    skip_fit: bool = False,
 ) -> BuildResult:
     """Build the bundled example channel (see :func:`demo_scenario_path`)."""
-    return build(demo_scenario_path(single_ended), out=out, plots=plots)
+    return build(demo_scenario_path(single_ended), out=out, plots=plots, skip_fit=skip_fit)
 
 
 def _reissue(caught: list, category: type) -> list[str]:

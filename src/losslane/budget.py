@@ -28,7 +28,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from losslane.bands import judge
 from losslane.errors import LossLaneError, warn
+from losslane.fit_check import assess
 from losslane.signalling import baud_rate, nyquist_frequency
 
 # low edge of the default fit band: 50 MHz, IEEE 802.3's f_min for the fitted insertion
@@ -240,12 +242,17 @@ def _segment_json(r: SegmentRow, pb: PointBudget) -> dict:
 @dataclass(frozen=True)
 class ChannelBudget:
     """The budget of a channel: the Nyquist point (if a data rate is given) and the
-    extra check points, all judged; ``mode`` names what is budgeted."""
+    extra check points, all judged; ``mode`` names what is budgeted. ``bands``, ``masks``
+    (``losslane.bands`` results) are judged at every sweep point they cover; ``ripples``
+    holds one ``bands.RippleNote`` per point, in the order of ``points``."""
 
     data_rate: float | None
     modulation: str
     points: tuple[PointBudget, ...]
     mode: str = "single-ended"
+    bands: tuple = ()
+    masks: tuple = ()
+    ripples: tuple = ()
 
     @property
     def nyquist(self) -> PointBudget | None:
@@ -260,9 +267,31 @@ class ChannelBudget:
         return None if self.data_rate is None else baud_rate(self.data_rate, self.modulation)
 
     @property
+    def judged(self) -> bool:
+        """Whether anything is judged (a point, a band or a mask)."""
+        return bool(self.points or self.bands or self.masks)
+
+    @property
     def passed(self) -> bool:
-        """Every limit at every point holds (True when no limit is given)."""
-        return all(p.passed for p in self.points)
+        """Every limit at every point, band and mask holds (True when no limit is given)."""
+        return (
+            all(p.passed for p in self.points)
+            and all(b.passed for b in self.bands)
+            and all(m.passed for m in self.masks)
+        )
+
+    def ripple_of(self, pb: PointBudget):
+        """The ripple note of a point (None when not evaluated)."""
+        for p, note in zip(self.points, self.ripples, strict=False):
+            if p is pb:
+                return note
+        return None
+
+    def _point_json(self, pb: PointBudget) -> dict:
+        out = pb.to_json()
+        note = self.ripple_of(pb)
+        out["ripple"] = None if note is None else note.to_json()
+        return out
 
     def to_json(self) -> dict:
         """The ``budget`` object of ``losslane build --json`` (DESIGN.md keys first)."""
@@ -275,12 +304,14 @@ class ChannelBudget:
             "passed": self.passed,
             "segments": [] if ny is None else [_segment_json(r, ny) for r in ny.segments],
             "reflections_db": None if ny is None else ny.reflections_db,
-            "checks": [p.to_json() for p in self.checks],
+            "checks": [self._point_json(p) for p in self.checks],
+            "bands": [b.to_json() for b in self.bands],
+            "masks": [m.to_json() for m in self.masks],
             "data_rate_bps": self.data_rate,
             "modulation": self.modulation if self.data_rate is not None else None,
             "baud_hz": self.baud,
             "mode": self.mode,
-            "nyquist": None if ny is None else ny.to_json(),
+            "nyquist": None if ny is None else self._point_json(ny),
         }
 
 
@@ -321,7 +352,8 @@ def evaluate_budget(
     pts = check_points(budget, f) if points is None else points
     mode = "differential" if result.differential else "single-ended"
     if not pts:
-        return ChannelBudget(budget.data_rate, budget.modulation, (), mode)
+        bands, masks, _ = judge(result, budget, ())
+        return ChannelBudget(budget.data_rate, budget.modulation, (), mode, bands, masks)
     fx = np.array([p.at for p in pts])
     seg = _at(f, result.segment_loss_db, fx)  # (K, M)
     total = _at(f, result.insertion_loss_db, fx)[0]
@@ -361,7 +393,8 @@ def evaluate_budget(
                 None if sdc is None else float(sdc[m]),
             )
         )
-    return ChannelBudget(budget.data_rate, budget.modulation, tuple(out), mode)
+    bands, masks, notes = judge(result, budget, out)
+    return ChannelBudget(budget.data_rate, budget.modulation, tuple(out), mode, bands, masks, notes)
 
 
 # ----------------------------------------------------------------- fitted insertion loss
@@ -458,6 +491,10 @@ class LossFit:
     coefficients: tuple[float, float, float, float]  # a0 dB, a1 dB/sqrt(GHz), a2, a4
     f: np.ndarray  # sweep points in the band (Hz)
     il_db: np.ndarray  # channel insertion loss there (positive dB)
+    # whether the four-term form describes the channel (losslane.fit_check); when it does
+    # not, the coefficients are kept for a Python caller but no output quotes them
+    applies: bool = True
+    reason: str | None = None
 
     def fitted_db(self, f_hz) -> np.ndarray:
         return fit_basis(np.atleast_1d(f_hz)) @ np.asarray(self.coefficients)
@@ -486,6 +523,8 @@ class LossFit:
     def to_json(self, nyquist_hz: float | None = None) -> dict:
         a = self.coefficients
         out = {
+            "applies": self.applies,
+            "reason": self.reason,
             "start_hz": self.band.start,
             "stop_hz": self.band.stop,
             "band_rule": self.band.rule,
@@ -504,7 +543,35 @@ class LossFit:
         if nyquist_hz is not None:
             out["fitted_loss_at_nyquist_db"] = float(self.fitted_db(nyquist_hz)[0])
             out["nyquist_in_band"] = bool(self.band.start <= nyquist_hz <= self.band.stop)
+        if not self.applies:  # the numbers would describe a notch or a band edge: not quoted
+            for key in FIT_NUMBERS:
+                out[key] = None
         return out
+
+
+#: the keys of a fit's JSON that are left null when the fit does not apply
+FIT_NUMBERS = (
+    "a0_db",
+    "a1_db_per_sqrt_ghz",
+    "a2_db_per_ghz",
+    "a4_db_per_ghz2",
+    "ild_peak_db",
+    "ild_peak_hz",
+    "ild_rms_db",
+    "fitted_loss_at_nyquist_db",
+)
+
+
+@dataclass(frozen=True)
+class FitOff:
+    """No fitted insertion loss for this build, and why (turned off, or a sweep too coarse
+    for it)."""
+
+    reason: str
+    applies: bool = False
+
+    def to_json(self, nyquist_hz: float | None = None) -> dict:
+        return {"applies": False, "reason": self.reason}
 
 
 def fit_insertion_loss(f: np.ndarray, il_db: np.ndarray, start: float, stop: float) -> LossFit:
@@ -528,13 +595,19 @@ def fit_insertion_loss(f: np.ndarray, il_db: np.ndarray, start: float, stop: flo
     return LossFit(FitBand(start, stop, ""), tuple(float(c) for c in coef), f[m], il[m])
 
 
-def fit_channel(result, budget=None) -> LossFit | None:
-    """The fitted insertion loss of a built channel over its fit band (see ``fit_band``).
+def fit_channel(result, budget=None, enabled: bool = True) -> LossFit | FitOff | None:
+    """The fitted insertion loss of a built channel over its fit band (see ``fit_band``),
+    with whether it applies (``fit_check.assess``).
 
     None (with a warning) when the default band is too narrow for a fit; an explicit
-    ``fit_start``/``fit_stop`` that does not work is an error.
+    ``fit_start``/``fit_stop`` that does not work is an error. A ``FitOff`` when turned off
+    by ``[budget] fit = false`` or by ``enabled`` = False (the build's ``skip_fit``).
     """
     budget = result.scenario.budget if budget is None else budget
+    if budget is not None and not getattr(budget, "fit", True):
+        return FitOff("turned off by [budget] fit = false")
+    if not enabled:
+        return FitOff("turned off by the build option skip_fit (--skip-fit)")
     f = np.asarray(result.f, dtype=float)
     try:
         band = fit_band(budget, f)
@@ -547,7 +620,8 @@ def fit_channel(result, budget=None) -> LossFit | None:
         )
         return None
     fit = fit_insertion_loss(f, result.insertion_loss_db, band.start, band.stop)
-    return LossFit(band, fit.coefficients, fit.f, fit.il_db)
+    applies, reason = assess(fit.f, fit.il_db, fit.ild_db)
+    return LossFit(band, fit.coefficients, fit.f, fit.il_db, applies, reason)
 
 
 def validate(scenario) -> list[CheckPoint]:
@@ -566,6 +640,7 @@ __all__ = [
     "ChannelBudget",
     "CheckPoint",
     "FitBand",
+    "FitOff",
     "LossFit",
     "PointBudget",
     "SegmentRow",

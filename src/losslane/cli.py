@@ -72,6 +72,11 @@ _LIBRARY_OPTION = click.option(
     help="extra library file(s) with [dielectrics.*] / [foils.*] entries",
 )
 _NO_PLOTS_OPTION = click.option("--no-plots", is_flag=True, help="skip the PNG plots")
+_SKIP_FIT_OPTION = click.option(
+    "--skip-fit",
+    is_flag=True,
+    help="no fitted insertion loss / ILD (as [budget] fit = false; also without a [budget])",
+)
 
 
 def _at_option(help: str, default: str = "1GHz,10GHz,28GHz", metavar: str = "FREQS"):
@@ -520,11 +525,12 @@ def materials_command(
     help="number form in the Touchstone file: real/imag, magnitude/angle, dB/angle",
 )
 @_NO_PLOTS_OPTION
+@_SKIP_FIT_OPTION
 @_JSON_OPTION
 @click.option(
     "--strict",
     is_flag=True,
-    help="exit with code 1 when a budget check fails (files are still written)",
+    help="exit with code 1 when a budget check, band or mask fails (files are still written)",
 )
 def build_command(
     scenario: str,
@@ -532,6 +538,7 @@ def build_command(
     touchstone_version: str,
     form: str,
     no_plots: bool,
+    skip_fit: bool,
     as_json: bool,
     strict: bool,
 ) -> None:
@@ -541,11 +548,16 @@ def build_command(
 
     with _warnings_to_stderr():
         res = api.build(
-            scenario, out=out, version=int(touchstone_version), form=form, plots=not no_plots
+            scenario,
+            out=out,
+            version=int(touchstone_version),
+            form=form,
+            plots=not no_plots,
+            skip_fit=skip_fit,
         )
         _echo(res.to_json(), as_json, lambda _: build_text(res))
     if strict and res.passed is False:
-        click.echo("budget check failed (--strict): exit code 1", err=True)
+        click.echo("budget check, band or mask failed (--strict): exit code 1", err=True)
         raise SystemExit(1)
 
 
@@ -760,14 +772,17 @@ def fit_command(
     help="the single-ended (2-port) variant instead of the differential pair",
 )
 @_NO_PLOTS_OPTION
+@_SKIP_FIT_OPTION
 @_JSON_OPTION
-def demo_command(out: str, single_ended: bool, no_plots: bool, as_json: bool) -> None:
+def demo_command(
+    out: str, single_ended: bool, no_plots: bool, skip_fit: bool, as_json: bool
+) -> None:
     """Build the bundled example channel end to end: a differential sensor-to-processor
     lane over two boards and a mezzanine connector (.s4p and mixed-mode plots)."""
     from losslane.report.channel import build_text
 
     with _warnings_to_stderr():
-        res = api.demo(out, single_ended, plots=not no_plots)
+        res = api.demo(out, single_ended, plots=not no_plots, skip_fit=skip_fit)
         path = api.demo_scenario_path(single_ended)
         _echo(res.to_json(), as_json, lambda _: f"demo scenario: {path}\n{build_text(res)}")
 

@@ -17,12 +17,14 @@ from typing import Any
 
 import numpy as np
 
+from losslane.bandspec import Band, Mask, parse_bands, parse_masks, parse_min_return_loss
 from losslane.crosstalk.settings import CrosstalkSettings, channel_members, parse_crosstalk
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.library import Library, dielectric_from_spec, foil_from_spec, load_library
 from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
+from losslane.plotspec import PlotOptions, parse_plots
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
 from losslane.spec import check_keys, quantity, suggest, text
 from losslane.stackup import Stackup, parse_stackup, parse_stackups
@@ -49,6 +51,7 @@ TOP_KEYS = (
     "time",
     "stackup",
     "stackups",
+    "plots",
 )
 SEGMENT_TYPES = ("line", "via", "capacitor", "series", "shunt", "touchstone")
 MAX_POINTS = 200_001
@@ -113,6 +116,11 @@ class Budget:
     fit_stop: float | None = None
     #: limit on the integrated crosstalk noise (V), for channels on group lines
     max_icn: float | None = None
+    # bands and limit masks (losslane.bandspec); min_return_loss holds over a default band
+    bands: tuple[Band, ...] = ()
+    masks: tuple[Mask, ...] = ()
+    min_return_loss: float | None = None
+    fit: bool = True  # False: no fitted insertion loss ([budget] fit = false)
 
     @property
     def baud(self) -> float | None:
@@ -156,6 +164,7 @@ class Scenario:
     stackups: dict[str, Stackup] = field(default_factory=dict)
     #: per [lines.*] name: its kind, the model used and where it sits
     line_models: dict[str, LineModel] = field(default_factory=dict)
+    plots: PlotOptions = field(default_factory=PlotOptions)
 
     @property
     def conductors(self) -> int:
@@ -293,6 +302,7 @@ def scenario_from_data(
         time=parse_time(data.get("time", {}), sweep.stop),
         stackups=stackups,
         line_models=line_models,
+        plots=parse_plots(data["plots"]) if "plots" in data else PlotOptions(),
     )
     _check_pair_keys(channel, sc.conductors)  # also: mixing single-ended and pairs
     return sc
@@ -637,7 +647,8 @@ def _budget(spec: object) -> Budget:
     check_keys(
         where,
         spec,
-        ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop", "max_icn"),
+        ("data_rate", "modulation", "max_loss", "check", "fit_start", "fit_stop", "max_icn")
+        + ("band", "mask", "min_return_loss", "fit"),
     )
     rate = quantity(where, spec, "data_rate", "data rate")
     if rate is not None and rate <= 0:
@@ -673,7 +684,24 @@ def _budget(spec: object) -> Budget:
             f"{where}.max_icn = {spec['max_icn']!r}: the limit on the integrated crosstalk "
             'noise is > 0 V (e.g. "5 mV") and needs data_rate'
         )
-    return Budget(rate, modulation, max_loss, tuple(checks), fit_start, fit_stop, max_icn)
+    fit = spec.get("fit", True)
+    if not isinstance(fit, bool):
+        raise LossLaneError(
+            f"{where}.fit = {fit!r}: expected true or false (false: no fitted insertion loss)"
+        )
+    return Budget(
+        rate,
+        modulation,
+        max_loss,
+        tuple(checks),
+        fit_start,
+        fit_stop,
+        max_icn,
+        parse_bands(spec),
+        parse_masks(spec),
+        parse_min_return_loss(spec),
+        fit,
+    )
 
 
 def _compare(spec: object, base: Path) -> Comparison:

@@ -15,8 +15,16 @@ from pathlib import Path
 import numpy as np
 
 from losslane import __version__
-from losslane.budget import REFLECTIONS_ROW
-from losslane.report.charts import label_vline, pyplot, save_figure
+from losslane.bands import band_list, in_range
+from losslane.budget import REFLECTIONS_ROW, FitOff
+from losslane.report.charts import (
+    LimitLine,
+    Marker,
+    db_text,
+    finish,
+    label_vline,
+    pyplot,
+)
 from losslane.report.text import table, verdict
 
 
@@ -121,88 +129,212 @@ def _conversion(v: float | None) -> str:
     return "none" if v <= -1000 else f"{v:.1f}"
 
 
+def _points_text(budget) -> list[str]:
+    out: list[str] = []
+    pts = budget.points
+    mode = "" if budget.mode == "single-ended" else f" ({budget.mode} mode)"
+    out.append(f"loss budget{mode}: each segment alone between matched references")
+    for k, pb in enumerate(pts):
+        out.append(f"  [{k + 1}] {point_title(pb, budget)}")
+    heads, units = ["segment", "kind"], ["", ""]
+    pair = pts[0].scd21_db is not None
+    for k, _ in enumerate(pts):
+        heads += [f"[{k + 1}] loss", "per in", "share"] + (["Scd21"] if pair else [])
+        units += ["dB", "dB/in", "of max"] + (["dB"] if pair else [])
+    per_point = [budget_rows(pb) for pb in pts]
+    n_ins = len(pts[0].segments) + 2  # segments, reflections, total
+    rows = []
+    for i in range(n_ins):
+        base = per_point[0][i]
+        row = [base["row"], base["kind"]]
+        for pb, pr in zip(pts, per_point, strict=True):
+            r = pr[i]
+            share = "-" if r["share"] is None else f"{100 * r['share']:.1f}%"
+            row += [f"{r['value_db']:.2f}", _f(r["db_per_in"], ".3f"), share]
+            if pair:
+                conv = pb.segments[i].conversion_db if i < len(pb.segments) else None
+                if r["row"] == "total":
+                    conv = pb.scd21_db
+                row.append(_conversion(conv))
+        rows.append(row)
+    extra = [
+        ("max loss", lambda pb: _f(pb.allowance_db, ".2f")),
+        ("margin", lambda pb: _f(pb.margin_db, "+.2f")),
+        ("return loss, worse end", lambda pb: f"{pb.return_loss_db:.1f}"),
+        ("min return loss", lambda pb: _f(pb.point.min_return_loss, ".1f")),
+        ("result", lambda pb: verdict(pb.passed)),
+    ]
+    if pair:
+        extra.insert(4, ("mode conversion Sdc21", lambda pb: _conversion(pb.sdc21_db)))
+        extra.insert(4, ("mode conversion Scd21", lambda pb: _conversion(pb.scd21_db)))
+    for label, get in extra:
+        row = [label, ""]
+        for pb in pts:
+            row += [get(pb), "", ""] + ([""] if pair else [])
+        rows.append(row)
+    out.append(table(heads, units, rows, left=2))
+    notes = [n.text() for n in budget.ripples if n.on_ripple]
+    if notes:
+        out.append(
+            "point checks on a ripple (within +/-5 % of the point, or 2 sweep steps, the "
+            "curve is worse than at the point):"
+        )
+        out += [f"  {n}" for n in notes]
+    return out
+
+
+def _db(v: float | None, fmt: str = ".2f") -> str:
+    return db_text(v, fmt, "")
+
+
+def band_rows(budget) -> list[list[str]]:
+    """The bands as table rows (text), worst values and where they occur."""
+    rows = []
+    for b in budget.bands:
+        band = b.band
+        rows.append(
+            [
+                band.name,
+                f"{band.start / 1e9:.6g}..{band.stop / 1e9:.6g}",
+                f"{b.points}",
+                f"{_db(b.loss.value_db)} @ {b.loss.at_hz / 1e9:.6g}",
+                _f(band.max_loss, ".2f"),
+                f"{_db(b.return_loss.value_db)} @ {b.return_loss.at_hz / 1e9:.6g}"
+                + (f" {b.return_loss.end}" if b.return_loss.end else ""),
+                _f(band.min_return_loss, ".2f"),
+                verdict(b.passed),
+            ]
+        )
+    return rows
+
+
+BAND_HEADS = (
+    ["band", "GHz", "points", "worst loss @ GHz", "max loss", "worst return loss @ GHz"]
+    + ["min return loss", "result"],
+    ["", "", "", "dB", "dB", "dB", "dB", ""],
+)
+
+
+def mode_band_rows(budget) -> list[list[str]]:
+    """For a differential channel: each band's worst common-mode loss and largest mode
+    conversion (Scd21, Scd11/Scd22 as S-parameters in dB) with where they occur."""
+    rows = []
+    for b in budget.bands:
+        if b.common_mode_loss is None:
+            continue
+        rows.append(
+            [
+                b.band.name,
+                f"{_db(b.common_mode_loss.value_db)} @ {b.common_mode_loss.at_hz / 1e9:.6g}",
+                f"{_db(-b.far_conversion.value_db, '.1f')} @ {b.far_conversion.at_hz / 1e9:.6g}",
+                f"{_db(-b.near_conversion.value_db, '.1f')} @ "
+                f"{b.near_conversion.at_hz / 1e9:.6g} {b.near_conversion.end}",
+            ]
+        )
+    return rows
+
+
+MODE_BAND_HEADS = (
+    ["band", "worst common-mode loss @ GHz", "largest Scd21 @ GHz", "largest Scd11/Scd22 @ GHz"],
+    ["", "dB", "dB", "dB"],
+)
+
+
+def mask_rows(budget) -> list[list[str]]:
+    rows = []
+    for m in budget.masks:
+        mk = m.mask
+        rows.append(
+            [
+                mk.name,
+                mk.quantity,
+                "maximum" if mk.kind == "max" else "minimum",
+                f"{mk.start / 1e9:.6g}..{mk.stop / 1e9:.6g}"
+                + (" (log f)" if mk.log_frequency else ""),
+                f"{_db(m.worst_margin_db, '+.3f')} @ {m.worst_margin_hz / 1e9:.6g}"
+                + (f" {m.end}" if m.end else ""),
+                _db(m.value_db),
+                f"{m.limit_db:.2f}",
+                verdict(m.passed),
+            ]
+        )
+    return rows
+
+
+MASK_HEADS = (
+    ["mask", "quantity", "limit", "GHz", "worst margin @ GHz", "value", "limit", "result"],
+    ["", "", "", "", "dB", "dB", "dB", ""],
+)
+
+
+def fit_lines(fit, budget=None) -> list[str]:
+    """The fitted insertion loss for the terminal: its coefficients and ILD when the fit
+    applies, else why there is none."""
+    if fit is None:
+        return []
+    if isinstance(fit, FitOff):
+        return [f"fitted insertion loss: none ({fit.reason})"]
+    out = [
+        "fitted insertion loss a0 + a1*sqrt(f) + a2*f + a4*f^2 (f in GHz), least squares "
+        f"over {fit.band.start / 1e9:.6g}..{fit.band.stop / 1e9:.6g} GHz",
+        f"  band: {fit.band.rule}",
+    ]
+    if not fit.applies:
+        out.append(f"  does not apply, no coefficients or ILD quoted: {fit.reason}")
+        return out
+    a0, a1, a2, a4 = fit.coefficients
+    out.append(
+        f"  a0 = {a0:.4g} dB, a1 = {a1:.4g} dB/sqrt(GHz), a2 = {a2:.4g} dB/GHz, "
+        f"a4 = {a4:.4g} dB/GHz^2"
+    )
+    ny = budget.nyquist if budget is not None else None
+    if ny is not None:
+        out.append(
+            f"  fitted loss at Nyquist {float(fit.fitted_db(ny.at)[0]):.2f} dB "
+            f"(channel {ny.total_db:.2f} dB)"
+        )
+    out.append(
+        f"  ILD (channel minus fit): peak {fit.ild_peak_db:+.2f} dB at "
+        f"{fit.ild_peak_hz / 1e9:.4g} GHz, rms {fit.ild_rms_db:.2f} dB"
+    )
+    return out
+
+
 def budget_text(budget, fit=None) -> str:
     """The budget and the fit for the terminal (``budget``: a ChannelBudget or None;
-    ``fit``: a LossFit or None)."""
+    ``fit``: a LossFit, a FitOff or None)."""
     out: list[str] = []
-    if budget is None or not budget.points:
-        out.append("no [budget] check points: nothing is judged (--strict passes)")
+    if budget is None or not budget.judged:
+        out.append("no [budget] limits: nothing is judged (--strict passes)")
     else:
-        pts = budget.points
-        mode = "" if budget.mode == "single-ended" else f" ({budget.mode} mode)"
-        out.append(f"loss budget{mode}: each segment alone between matched references")
-        for k, pb in enumerate(pts):
-            out.append(f"  [{k + 1}] {point_title(pb, budget)}")
-        heads, units = ["segment", "kind"], ["", ""]
-        pair = pts[0].scd21_db is not None
-        for k, _ in enumerate(pts):
-            heads += [f"[{k + 1}] loss", "per in", "share"] + (["Scd21"] if pair else [])
-            units += ["dB", "dB/in", "of max"] + (["dB"] if pair else [])
-        per_point = [budget_rows(pb) for pb in pts]
-        n_ins = len(pts[0].segments) + 2  # segments, reflections, total
-        rows = []
-        for i in range(n_ins):
-            base = per_point[0][i]
-            row = [base["row"], base["kind"]]
-            for pb, pr in zip(pts, per_point, strict=True):
-                r = pr[i]
-                share = "-" if r["share"] is None else f"{100 * r['share']:.1f}%"
-                row += [f"{r['value_db']:.2f}", _f(r["db_per_in"], ".3f"), share]
-                if pair:
-                    conv = pb.segments[i].conversion_db if i < len(pb.segments) else None
-                    if r["row"] == "total":
-                        conv = pb.scd21_db
-                    row.append(_conversion(conv))
-            rows.append(row)
-        extra = [
-            ("max loss", lambda pb: _f(pb.allowance_db, ".2f")),
-            ("margin", lambda pb: _f(pb.margin_db, "+.2f")),
-            ("return loss, worse end", lambda pb: f"{pb.return_loss_db:.1f}"),
-            ("min return loss", lambda pb: _f(pb.point.min_return_loss, ".1f")),
-            ("result", lambda pb: verdict(pb.passed)),
-        ]
-        if pair:
-            extra.insert(4, ("mode conversion Sdc21", lambda pb: _conversion(pb.sdc21_db)))
-            extra.insert(4, ("mode conversion Scd21", lambda pb: _conversion(pb.scd21_db)))
-        for label, get in extra:
-            row = [label, ""]
-            for pb in pts:
-                row += [get(pb), "", ""] + ([""] if pair else [])
-            rows.append(row)
-        out.append(table(heads, units, rows, left=2))
+        if budget.points:
+            out += _points_text(budget)
+        if budget.bands:
+            out.append("bands: judged at every sweep point inside (worst value and where)")
+            out.append(table(*BAND_HEADS, band_rows(budget), left=1))
+            modes = mode_band_rows(budget)
+            if modes:
+                out.append(table(*MODE_BAND_HEADS, modes, left=1))
+        if budget.masks:
+            out.append("limit masks: judged at every sweep point of their span")
+            out.append(table(*MASK_HEADS, mask_rows(budget), left=3))
         ny = budget.nyquist
         overall = "PASS" if budget.passed else "FAIL"
         if ny is not None and ny.margin_db is not None:
             head = f"budget: {overall}, margin {ny.margin_db:+.2f} dB at Nyquist"
         else:
             head = f"budget: {overall}"
-        failed = [pb.point.label for pb in pts if not pb.passed]
+        failed = [pb.point.label for pb in budget.points if not pb.passed]
+        failed += [b.band.name for b in budget.bands if not b.passed]
+        failed += [m.mask.name for m in budget.masks if not m.passed]
         if failed:
             head += f"; failing: {', '.join(failed)}"
         out.append(head)
-    if fit is not None:
+    lines = fit_lines(fit, budget)
+    if lines:
         if out:
             out.append("")
-        a0, a1, a2, a4 = fit.coefficients
-        out.append(
-            "fitted insertion loss a0 + a1*sqrt(f) + a2*f + a4*f^2 (f in GHz), least squares "
-            f"over {fit.band.start / 1e9:.6g}..{fit.band.stop / 1e9:.6g} GHz"
-        )
-        out.append(f"  band: {fit.band.rule}")
-        out.append(
-            f"  a0 = {a0:.4g} dB, a1 = {a1:.4g} dB/sqrt(GHz), a2 = {a2:.4g} dB/GHz, "
-            f"a4 = {a4:.4g} dB/GHz^2"
-        )
-        ny = budget.nyquist if budget is not None else None
-        if ny is not None:
-            out.append(
-                f"  fitted loss at Nyquist {float(fit.fitted_db(ny.at)[0]):.2f} dB "
-                f"(channel {ny.total_db:.2f} dB)"
-            )
-        out.append(
-            f"  ILD (channel minus fit): peak {fit.ild_peak_db:+.2f} dB at "
-            f"{fit.ild_peak_hz / 1e9:.4g} GHz, rms {fit.ild_rms_db:.2f} dB"
-        )
+        out += lines
     return "\n".join(out)
 
 
@@ -234,8 +366,38 @@ def _cell(v) -> str:
     return str(v)
 
 
+def _finite(v):
+    return v if v is None or np.isfinite(v) else None
+
+
+def limit_csv_rows(budget) -> list[list]:
+    """The bands' and masks' lines of the CSV: a band's worst insertion and return loss
+    (frequency = where it occurs), a mask's worst margin."""
+    rows = []
+    for b in budget.bands:
+        band = b.band
+        rows.append(
+            [b.band.name, b.loss.at_hz / 1e9, "worst in band", "", "insertion loss"]
+            + [_finite(b.loss.value_db), None, None, band.max_loss]
+            + [_finite(b.loss_margin_db), b.loss_passed]
+        )
+        rows.append(
+            [b.band.name, b.return_loss.at_hz / 1e9, "worst in band", b.return_loss.end]
+            + ["return loss", _finite(b.return_loss.value_db), None, None, band.min_return_loss]
+            + [_finite(b.return_loss_margin_db), b.return_loss_passed]
+        )
+    for m in budget.masks:
+        rows.append(
+            [m.mask.name, m.worst_margin_hz / 1e9, "worst margin on mask", m.end]
+            + [m.mask.quantity.replace("-", " "), _finite(m.value_db), None, None, m.limit_db]
+            + [_finite(m.worst_margin_db), m.passed]
+        )
+    return rows
+
+
 def budget_csv(budget) -> str:
-    """The budget as one tidy table: a line per (check point, row)."""
+    """The budget as one tidy table: a line per (check point, row), then the bands' and
+    masks' worst values (``kind`` holds the end of a return loss)."""
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(CSV_COLUMNS)
@@ -257,6 +419,8 @@ def budget_csv(budget) -> str:
                     _cell(r["result"]),
                 ]
             )
+    for row in limit_csv_rows(budget):
+        w.writerow([_cell(v) for v in row])
     return buf.getvalue()
 
 
@@ -286,7 +450,7 @@ def write_budget_files(
     stage = Path(stage)
     files: list[Path] = []
     has_points = budget is not None and bool(budget.points)
-    if has_points:
+    if budget is not None and budget.judged:
         p = stage / f"{stem}-budget.csv"
         p.write_text(budget_csv(budget), encoding="utf-8")
         files.append(p)
@@ -304,7 +468,7 @@ def write_budget_files(
             )
             files.append(p)
             charts.append((p, "Where the loss goes: each segment's own loss, stacked"))
-        if fit is not None:
+        if fit is not None and not isinstance(fit, FitOff) and fit.applies:
             ny = budget.nyquist.at if has_points and budget.nyquist is not None else None
             p = ild_plot(
                 stage / f"{stem}-ild.png",
@@ -395,22 +559,18 @@ def budget_chart(path: Path, budget, title: str) -> Path:
                 fontsize=8,
             )
         ax.set_xlim(min(0.0, start + refl) - 0.02 * top, 1.12 * top if top > 0 else 1.0)
-        ax.set_title(point_title(pb, budget), fontsize=9)
+        ax.set_title(point_title(pb, budget), fontsize=9, y=1.0)
         ax.set_xlabel("insertion loss (dB)")
         ax.grid(True, axis="x", alpha=0.3)
     ax0 = axes[0][0]
     ax0.set_yticks(y)
-    ax0.set_yticklabels(
-        [f"{n} ({kd})" for n, kd in zip(names[:-2], kinds, strict=True)] + names[-2:],
-        fontsize=8,
-    )
+    labels = [f"{n} ({kd})" for n, kd in zip(names[:-2], kinds, strict=True)] + names[-2:]
+    ax0.set_yticklabels(labels, fontsize=8)
     fig.suptitle(title, fontsize=11)
     fig.text(0.995, 0.005, NOTE, ha="right", va="bottom", fontsize=7, color="0.45")
-    fig.tight_layout()
-    try:
-        return save_figure(fig, path)
-    finally:
-        plt.close(fig)
+    # room on the left for the longest row name (8 pt text), no measuring pass
+    left = 0.35 + 0.06 * max(len(t) for t in labels)
+    return finish(plt, fig, path, left=min(left, 0.5 * width), right=0.35, top=0.75, wspace=0.12)
 
 
 def ild_plot(
@@ -471,10 +631,64 @@ def ild_plot(
     a2.set_xlabel(f"frequency (GHz); fit band {lo:.4g}..{hi:.4g} GHz shaded")
     a1.legend(fontsize=8, loc="lower left")
     a2.legend(fontsize=8, loc="lower left")
-    a1.set_title(title, fontsize=11)
+    a1.set_title(title, fontsize=11, y=1.0)
     fig.text(0.995, 0.005, NOTE, ha="right", va="bottom", fontsize=7, color="0.45")
-    fig.tight_layout()
-    try:
-        return save_figure(fig, path)
-    finally:
-        plt.close(fig)
+    return finish(plt, fig, path)
+
+
+# ------------------------------------------------------------ limits drawn on the charts
+
+#: the chart quantities and the mask quantities drawn on them
+CHART_MASKS = {
+    "insertion-loss": ("insertion-loss",),
+    "return-loss": ("return-loss",),
+    "mixed-mode": ("common-mode-loss", "far-end-conversion", "near-end-conversion"),
+}
+
+
+def _mask_line(mask, f: np.ndarray) -> LimitLine:
+    """A mask as a line: its own points when straight in frequency, else its limit at the
+    sweep points of its span (and its ends)."""
+    if mask.log_frequency:
+        inside = f[in_range(f, mask.start, mask.stop)]
+        x = np.unique(np.concatenate([[mask.start], inside, [mask.stop]]))
+        x = x[(x >= mask.start) & (x <= mask.stop)]
+    else:
+        x = np.asarray(mask.freqs)
+    return LimitLine(f"mask: {mask.name}", x, mask.limit_at(x))
+
+
+def chart_limits(scenario, f: np.ndarray, chart: str) -> tuple[list[Marker], list[LimitLine]]:
+    """The markers (Nyquist, check points, with their limit on this chart) and the limit
+    lines (bands, masks) of a chart: ``chart`` is 'insertion-loss', 'return-loss' or
+    'mixed-mode'. Limits are positive dB."""
+    budget = scenario.budget
+    if budget is None:
+        return [], []
+    f = np.asarray(f, dtype=float)
+    rl = chart == "return-loss"
+    markers = []
+    if budget.nyquist is not None and not rl:
+        markers.append(
+            Marker(budget.nyquist, f"Nyquist {budget.nyquist / 1e9:.6g} GHz", budget.max_loss)
+        )
+    for i, c in enumerate(budget.checks):
+        if rl and c.min_return_loss is None:
+            continue
+        markers.append(
+            Marker(
+                c.at, f"check {i + 1} {c.at / 1e9:.6g} GHz", c.min_return_loss if rl else c.max_loss
+            )
+        )
+    lines = []
+    if chart != "mixed-mode":
+        for b in band_list(budget, f):
+            lim = b.min_return_loss if rl else b.max_loss
+            if lim is not None:
+                lines.append(
+                    LimitLine(f"band: {b.name}", np.array([b.start, b.stop]), np.array([lim, lim]))
+                )
+    for m in budget.masks:
+        if m.quantity in CHART_MASKS[chart]:
+            lines.append(_mask_line(m, f))
+    return markers, lines

@@ -19,7 +19,7 @@ from losslane import __version__
 from losslane.channel import ChannelResult
 from losslane.errors import LossLaneError
 from losslane.report.budget import budget_text, write_budget_files
-from losslane.report.charts import Curve, Marker, db_plot, to_db
+from losslane.report.charts import Curve, Marker, db_plot, db_text, to_db
 from losslane.report.models import models_text
 from losslane.report.page import guarantee_lines, report_html
 from losslane.report.text import CAUTION, table
@@ -78,7 +78,8 @@ def summary_rows(result: ChannelResult) -> list[dict]:
         }
         if mm is not None:
             row["common_mode_loss_db"] = _at(result.f, -to_db(mm.cc[:, 1, 0]), x)
-            row["mode_conversion_db"] = _at(result.f, to_db(mm.cd[:, 1, 0]), x)
+            row["mode_conversion_db"] = _at(result.f, to_db(mm.cd[:, 1, 0]), x)  # Scd21
+            row["mode_conversion_near_db"] = _at(result.f, to_db(mm.cd[:, 0, 0]), x)  # Scd11
         rows.append(row)
     return rows
 
@@ -95,15 +96,21 @@ def check_markers(result: ChannelResult) -> list[Marker]:
     return markers
 
 
-def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> list[Path]:
-    """The channel's charts; ``overlay`` (a measure.overlay.MeasuredOverlay or None) adds
-    the measured curves to the insertion- and return-loss charts."""
+def plot_files(
+    result: ChannelResult, stage: Path, stem: str, overlay=None
+) -> list[tuple[Path, str]]:
+    """The channel's charts, written into ``stage``: insertion loss (cumulative through
+    each segment), return loss, mixed mode for a pair, with the budget's limits drawn;
+    then the focus chart and a 2-port's RF views (``report.rf``). ``[(path, caption)]``.
+    ``overlay`` (a measure.overlay.MeasuredOverlay or None) adds the measured curves to
+    the insertion- and return-loss charts."""
+    from losslane.report.budget import chart_limits
     from losslane.report.overlay import measured_il_curves, measured_rl_curves
+    from losslane.report.rf import focus_of, rf_charts
 
     sc = result.scenario
     f = result.f
     mode = " (differential mode)" if result.differential else ""
-    markers = check_markers(result)
     import matplotlib
 
     cmap = matplotlib.colormaps["viridis"]
@@ -119,6 +126,10 @@ def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> l
         )
     curves.append(Curve("whole channel", -result.insertion_loss_db, "-", 2.2, "black"))
     curves += measured_il_curves(overlay)
+    markers, lines = chart_limits(sc, f, "insertion-loss")
+    # [plots] loss_range sets this chart's axis when no focused chart takes it
+    lr = sc.plots.loss_range
+    il_ylim = None if lr is None or focus_of(sc, f) is not None else (-lr[1], -lr[0])
     il = db_plot(
         stage / f"{stem}-insertion-loss.png",
         f,
@@ -127,12 +138,11 @@ def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> l
         ("Sdd21" if result.differential else "S21") + " (dB), insertion loss below 0",
         markers,
         floor_db=-200,
+        limits=lines,
+        ylim=il_ylim,
     )
     rl_in, rl_out = result.return_loss
-    rl_markers = [
-        Marker(c.at, f"check {c.at / 1e9:g} GHz", c.min_return_loss)
-        for c in (sc.budget.checks if sc.budget else ())
-    ]
+    markers, lines = chart_limits(sc, f, "return-loss")
     rl = db_plot(
         stage / f"{stem}-return-loss.png",
         f,
@@ -143,42 +153,53 @@ def plot_files(result: ChannelResult, stage: Path, stem: str, overlay=None) -> l
         ],
         f"{sc.name}: return loss{mode}",
         "20 log10 |S11|, |S22| (dB)",
-        rl_markers,
+        markers,
         floor_db=-80,
+        limits=lines,
     )
-    files = [il, rl]
+    files = [
+        (il, "Insertion loss, cumulative through each segment"),
+        (rl, "Return loss at both ends"),
+    ]
     mm = result.main_mixed_mode
     if mm is not None:
+        markers, lines = chart_limits(sc, f, "mixed-mode")
+        mixed = db_plot(
+            stage / f"{stem}-mixed-mode.png",
+            f,
+            [
+                Curve("Sdd21 differential through", to_db(mm.dd[:, 1, 0]), "-", 2.0, "black"),
+                Curve("Scc21 common-mode through", to_db(mm.cc[:, 1, 0]), "-", 1.3, "tab:blue"),
+                Curve(
+                    "Scd21 differential -> common (far end)",
+                    to_db(mm.cd[:, 1, 0]),
+                    "-",
+                    1.3,
+                    "tab:red",
+                ),
+                Curve(
+                    "Scd11 differential -> common (near end)",
+                    to_db(mm.cd[:, 0, 0]),
+                    "--",
+                    1.1,
+                    "tab:orange",
+                ),
+            ],
+            f"{sc.name}: mixed-mode S-parameters (differential {mm.z_diff:g} ohm, common "
+            f"{mm.z_common:g} ohm)",
+            "dB",
+            markers,
+            floor_db=-120,
+            limits=lines,
+        )
         files.append(
-            db_plot(
-                stage / f"{stem}-mixed-mode.png",
-                f,
-                [
-                    Curve("Sdd21 differential through", to_db(mm.dd[:, 1, 0]), "-", 2.0, "black"),
-                    Curve("Scc21 common-mode through", to_db(mm.cc[:, 1, 0]), "-", 1.3, "tab:blue"),
-                    Curve(
-                        "Scd21 differential -> common (far end)",
-                        to_db(mm.cd[:, 1, 0]),
-                        "-",
-                        1.3,
-                        "tab:red",
-                    ),
-                    Curve(
-                        "Scd11 differential -> common (near end)",
-                        to_db(mm.cd[:, 0, 0]),
-                        "--",
-                        1.1,
-                        "tab:orange",
-                    ),
-                ],
-                f"{sc.name}: mixed-mode S-parameters (differential {mm.z_diff:g} ohm, common "
-                f"{mm.z_common:g} ohm)",
-                "dB",
-                markers,
-                floor_db=-120,
+            (
+                mixed,
+                "Mixed-mode S-parameters: differential and common-mode through, and the "
+                "mode conversion at both ends",
             )
         )
-    return files
+    return files + rf_charts(result, stage, stem)
 
 
 def write_build(
@@ -232,32 +253,26 @@ def write_build(
             result, crosstalk, stage, stem, version, form, plots
         )
         files += xt_files
-        if plots:
-            files += plot_files(result, stage, stem, overlay)
-        budget_files, charts = write_budget_files(result, budget, fit, stage, stem, plots)
-        files += budget_files
-        files += write_overlay_files(
+        charts = plot_files(result, stage, stem, overlay) if plots else []
+        files += [p for p, _ in charts]
+        ov_files = write_overlay_files(
             overlay, result.scenario.name, stage, stem, plots, check_markers(result)
         )
+        files += ov_files
+        charts += [
+            (p, "Model minus measurement: insertion and return loss")
+            for p in ov_files
+            if p.name.endswith("-measured-difference.png")
+        ]
+        budget_files, budget_charts = write_budget_files(result, budget, fit, stage, stem, plots)
+        files += budget_files
         view_files, view_charts = build_view_files(views, stage, stem, result.scenario.name, plots)
         files += view_files
-        charts = charts + xt_charts + view_charts
+        charts += budget_charts + xt_charts + view_charts
         page = stage / f"{stem}-report.html"
         names = sorted({p.name for p in files} | {page.name})
         page.write_text(
-            report_html(
-                result,
-                budget,
-                fit,
-                stage,
-                stem,
-                charts,
-                names,
-                summary,
-                overlay,
-                crosstalk,
-                views,
-            ),
+            report_html(result, budget, fit, charts, names, summary, overlay, crosstalk, views),
             encoding="utf-8",
         )
         files.append(page)
@@ -286,8 +301,8 @@ def summary_text(
     heads = ["frequency", "insertion loss", "return loss in", "return loss out"]
     units = ["GHz", "dB", "dB", "dB"]
     if four:
-        heads += ["common-mode loss", "Scd21"]
-        units += ["dB", "dB"]
+        heads += ["common-mode loss", "Scd21", "Scd11"]
+        units += ["dB", "dB", "dB"]
     rows = []
     for r in summary:
         row = [
@@ -297,7 +312,11 @@ def summary_text(
             f"{r['return_loss_out_db']:.1f}",
         ]
         if four:
-            row += [f"{r['common_mode_loss_db']:.2f}", f"{r['mode_conversion_db']:.1f}"]
+            row += [
+                db_text(r["common_mode_loss_db"], ".2f", ""),
+                db_text(r["mode_conversion_db"], ".1f", ""),
+                db_text(r["mode_conversion_near_db"], ".1f", ""),
+            ]
         rows.append(row)
     head = (
         f"{sc.name}: {len(result.blocks)} segments, {result.nports}-port, "

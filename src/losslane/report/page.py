@@ -16,7 +16,18 @@ from html import escape
 from pathlib import Path
 
 from losslane import __version__
-from losslane.report.budget import budget_rows, point_title
+from losslane.budget import FitOff
+from losslane.report.budget import (
+    BAND_HEADS,
+    MASK_HEADS,
+    MODE_BAND_HEADS,
+    band_rows,
+    budget_rows,
+    mask_rows,
+    mode_band_rows,
+    point_title,
+)
+from losslane.report.charts import db_text
 from losslane.report.models import models_lines
 from losslane.report.text import CAUTION, verdict
 from losslane.report.timeviews import build_section_html
@@ -112,8 +123,16 @@ def _checks_table(budget) -> str:
 
 
 def _fit_section(fit, budget) -> str:
-    if fit is None:
-        return "<p>No fit: the sweep is too coarse for the four-term fit.</p>"
+    if fit is None or isinstance(fit, FitOff):
+        reason = "the sweep is too coarse for the four-term fit" if fit is None else fit.reason
+        return f"<p>No fitted insertion loss: {escape(reason)}.</p>"
+    if not fit.applies:
+        return (
+            "<p>The fitted insertion loss a0 + a1&#183;&#8730;f + a2&#183;f + a4&#183;f&#178; "
+            f"over {fit.band.start / 1e9:.6g} .. {fit.band.stop / 1e9:.6g} GHz "
+            "<strong>does not apply</strong> to this channel, so no coefficients or ILD are "
+            f"quoted: {escape(fit.reason or '')}.</p>"
+        )
     a0, a1, a2, a4 = fit.coefficients
     rows = [
         ("fit band", f"{fit.band.start / 1e9:.6g} .. {fit.band.stop / 1e9:.6g} GHz"),
@@ -146,6 +165,95 @@ def _fit_section(fit, budget) -> str:
         "loss; the deviation ILD = IL &#8722; IL_fit shows ripple from reflections that a "
         "smooth loss curve does not have.</p><table>" + body + "</table>"
     )
+
+
+# ------------------------------------------------------------- bands, masks, ripples
+
+
+def _text_table(heads: Sequence[str], units: Sequence[str], rows, left: int = 1) -> str:
+    """A table of text cells (the terminal's rows): names left, numbers right; a FAIL
+    cell marked."""
+    head = "".join(
+        f"<th>{escape(h)}" + (f" ({escape(u)})" if u else "") + "</th>"
+        for h, u in zip(heads, units, strict=True)
+    )
+    body = []
+    for row in rows:
+        cells = []
+        for i, v in enumerate(row):
+            if i < left:
+                cells.append(f"<td>{escape(v)}</td>")
+            else:
+                cells.append(_td(v, "num FAIL" if v == "FAIL" else "num"))
+        body.append("<tr>" + "".join(cells) + "</tr>")
+    return "<table><tr>" + head + "</tr>" + "".join(body) + "</table>"
+
+
+def _limits_section(budget) -> list[str]:
+    """The bands' and masks' tables, the mode quantities in each band, and the point checks
+    that sit on a ripple."""
+    parts = []
+    if budget.bands:
+        parts.append('<h2 id="bands">Bands</h2>')
+        parts.append(
+            "<p>Each band is judged at every sweep point inside it, both ends included: the "
+            "worst insertion loss and the worst return loss (the worse end) with the "
+            "frequency where each occurs.</p>"
+        )
+        parts.append(_text_table(*BAND_HEADS, band_rows(budget)))
+        modes = mode_band_rows(budget)
+        if modes:
+            parts.append(
+                "<p>Common-mode loss and mode conversion in each band (Scd as "
+                "20&#183;log10|S|, the largest in the band).</p>"
+            )
+            parts.append(_text_table(*MODE_BAND_HEADS, modes))
+    if budget.masks:
+        parts.append('<h2 id="masks">Limit masks</h2>')
+        parts.append(
+            "<p>Each mask is judged at every sweep point of its span; the margin is the "
+            "distance to the limit line (negative: the limit is broken).</p>"
+        )
+        parts.append(_text_table(*MASK_HEADS, mask_rows(budget), left=4))
+    notes = [n.text() for n in budget.ripples if n.on_ripple]
+    if notes:
+        parts.append('<h2 id="ripples">Point checks on a ripple</h2>')
+        parts.append(
+            "<p>A point check reads the curve at one frequency. Within &#177;5 % of these "
+            "points the curve is worse than at the point: a band ([[budget.band]]) judges "
+            "every sweep point instead.</p>"
+        )
+        parts.append("<ul>" + "".join(f"<li>{escape(n)}</li>" for n in notes) + "</ul>")
+    return parts
+
+
+def _summary_table(summary: Sequence[dict]) -> str:
+    """Insertion and return loss at the quoted frequencies; for a differential channel also
+    the common-mode loss and the mode conversion (Scd21, Scd11)."""
+    pairs = bool(summary) and "common_mode_loss_db" in summary[0]
+    head = (
+        "<tr><th>frequency (GHz)</th><th>insertion loss (dB)</th>"
+        "<th>return loss in (dB)</th><th>return loss out (dB)</th>"
+    )
+    if pairs:
+        head += "<th>common-mode loss (dB)</th><th>Scd21 (dB)</th><th>Scd11 (dB)</th>"
+    rows = []
+    for r in summary:
+        row = (
+            "<tr>"
+            + _td(f"{r['at_hz'] / 1e9:.6g}")
+            + _td(f"{r['insertion_loss_db']:.2f}")
+            + _td(f"{r['return_loss_in_db']:.1f}")
+            + _td(f"{r['return_loss_out_db']:.1f}")
+        )
+        if pairs:
+            row += (
+                _td(db_text(r["common_mode_loss_db"], ".2f", ""))
+                + _td(db_text(r["mode_conversion_db"], ".1f", ""))
+                + _td(db_text(r["mode_conversion_near_db"], ".1f", ""))
+            )
+        rows.append(row + "</tr>")
+    return "<table>" + head + "</tr>" + "".join(rows) + "</table>"
 
 
 def render_report(
@@ -181,10 +289,11 @@ def render_report(
         f'<p class="caution"><strong>Caution:</strong> {escape(CAUTION)}</p>',
     ]
     parts.append('<h2 id="verdict">Does it fit?</h2>')
-    if budget is None or not budget.points:
+    if budget is None or not budget.judged:
         parts.append(
-            "<p>No check points: the scenario has no [budget] data_rate or [[budget.check]] "
-            "entries, so nothing is judged. The loss figures below still apply.</p>"
+            "<p>No limits: the scenario has no [budget] data_rate, [[budget.check]], "
+            "[[budget.band]] or [[budget.mask]] entries, so nothing is judged. The loss "
+            "figures below still apply.</p>"
         )
     else:
         ok = budget.passed
@@ -194,7 +303,10 @@ def render_report(
             text += f" Margin at Nyquist: {ny.margin_db:+.2f} dB."
         cls = "pass" if ok else "fail"
         parts.append(f'<p class="verdict {cls}">{escape(text)}</p>')
-        parts.append(_checks_table(budget))
+        if budget.points:
+            parts.append(_checks_table(budget))
+        parts += _limits_section(budget)
+    if budget is not None and budget.points:
         parts.append(f'<h2 id="budget">Where the loss goes{escape(mode)}</h2>')
         parts.append(
             "<p>Each segment's own insertion loss, that block alone between matched "
@@ -208,19 +320,7 @@ def render_report(
     parts.append('<h2 id="fit">Fitted insertion loss and deviation</h2>')
     parts.append(_fit_section(fit, budget))
     parts.append(f'<h2 id="summary">Insertion and return loss{escape(mode)}</h2>')
-    srows = "".join(
-        "<tr>"
-        + _td(f"{r['at_hz'] / 1e9:.6g}")
-        + _td(f"{r['insertion_loss_db']:.2f}")
-        + _td(f"{r['return_loss_in_db']:.1f}")
-        + _td(f"{r['return_loss_out_db']:.1f}")
-        + "</tr>"
-        for r in summary
-    )
-    parts.append(
-        "<table><tr><th>frequency (GHz)</th><th>insertion loss (dB)</th>"
-        "<th>return loss in (dB)</th><th>return loss out (dB)</th></tr>" + srows + "</table>"
-    )
+    parts.append(_summary_table(summary))
     parts += [sec for sec in sections if sec]  # e.g. the time-domain views, the measurement
     parts.append('<h2 id="charts">Charts</h2>')
     if figures:
@@ -265,8 +365,6 @@ def report_html(
     result,
     budget,
     fit,
-    stage: Path,
-    stem: str,
     charts: Sequence[tuple[Path, str]],
     names: Sequence[str],
     summary: Sequence[dict],
@@ -274,24 +372,15 @@ def report_html(
     crosstalk=None,
     views=None,
 ) -> str:
-    """The self-contained page: the channel plots already staged (insertion and return
-    loss, with a measurement and its difference chart when ``overlay`` is given) and the
-    budget charts, embedded; ``crosstalk`` a CrosstalkResult or None; with ``views`` (an
-    Inspection) its section."""
+    """The self-contained page, with every chart of the build embedded: ``charts`` holds
+    each written PNG with its caption, in the order written; ``overlay`` (a measurement
+    beside the model), ``crosstalk`` (a CrosstalkResult) and ``views`` (an Inspection) add
+    their sections."""
     from losslane.report.crosstalk import crosstalk_html
     from losslane.report.overlay import overlay_html
 
     sc = result.scenario
-    figures = []
-    for suffix, caption in (
-        ("insertion-loss", "Insertion loss, cumulative through each segment"),
-        ("return-loss", "Return loss at both ends"),
-        ("measured-difference", "Model minus measurement: insertion and return loss"),
-    ):
-        p = Path(stage) / f"{stem}-{suffix}.png"
-        if p.is_file():
-            figures.append(Figure(caption, p.read_bytes()))
-    figures += [Figure(caption, Path(p).read_bytes()) for p, caption in charts]
+    figures = [Figure(caption, Path(p).read_bytes()) for p, caption in charts]
     f = result.f
     meta = [
         f"{len(result.blocks)} segments, {result.nports}-port"
