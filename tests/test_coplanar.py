@@ -1,5 +1,7 @@
-"""Coplanar waveguide against Wen's exact infinite-substrate solution, the Gupta et al.
-thickness correction written out here, and scikit-rf's independent CPW implementation."""
+"""Coplanar waveguide's published formulas against Wen's exact infinite-substrate
+solution, the side-wall capacitance written out here, and scikit-rf's independent CPW
+implementation. (The model's field-solver correction of these formulas is checked against
+the field solver in tests/test_accuracy_static.py.)"""
 
 from __future__ import annotations
 
@@ -18,6 +20,8 @@ from losslane.xsection.rlgc import attenuation_split
 
 MIL = 25.4e-6
 ETA0 = mu_0 * C_LIGHT
+#: the models with their field-solver correction off: the published formulas alone
+CPW, GCPW = Cpw.published(), Gcpw.published()
 
 
 def k_ratio(k: float) -> float:
@@ -42,7 +46,7 @@ def test_thick_substrate_cpw_is_wens_exact_solution(er: float, w: float, gap: fl
     # correction of order (pi (w + 2 gap) / 4h)^2 ~ 1e-6; f <= 1 kHz keeps the Frankel
     # dispersion term below 1e-9.
     h = 1000 * (w + 2 * gap)
-    line = Cpw(w, gap, h, 0.0, ConstantDielectric(er))
+    line = CPW(w, gap, h, 0.0, ConstantDielectric(er))
     m = quiet(line.modes, np.array([0.0, 1e3]))["single"]
     eps = (er + 1) / 2
     k = w / (w + 2 * gap)
@@ -51,36 +55,27 @@ def test_thick_substrate_cpw_is_wens_exact_solution(er: float, w: float, gap: fl
     np.testing.assert_allclose(m.z0, z, rtol=1e-5)
 
 
-def gupta_thickness_z_air(w: float, gap: float, t: float) -> float:
-    """Air CPW impedance with the thickness correction of K. C. Gupta, R. Garg, I. Bahl,
-    P. Bhartia, Microstrip Lines and Slotlines, 2nd ed., 1996, eqs. 7.98-7.99 (written from
-    memory): Delta = (1.25 t/pi)(1 + ln(4 pi w/t)), k_e = (w + Delta)/(w + 2 gap - Delta),
-    Z = eta0 / (4 K(k_e)/K(k_e'))."""
-    d = 1.25 * t / np.pi * (1 + np.log(4 * np.pi * w / t))
-    return ETA0 / (4 * k_ratio((w + d) / (w + 2 * gap - d)))
-
-
-def gupta_linear_z_air(w: float, gap: float, t: float) -> float:
-    """The same with k_e linearised in Delta, k_e = k + (1 - k^2) Delta / (2 gap), which is
-    what scikit-rf's CPW uses (its source: 'approx. equal to ke = (w + d)/(w + d + 2(s - d))')."""
-    d = 1.25 * t / np.pi * (1 + np.log(4 * np.pi * w / t))
-    k = w / (w + 2 * gap)
-    return ETA0 / (4 * k_ratio(k + (1 - k * k) * d / (2 * gap)))
-
-
 @pytest.mark.parametrize(
     ("w", "gap", "t"),
     [
         (10 * MIL, 5 * MIL, 0.5 * MIL),
         (10 * MIL, 5 * MIL, 1.4 * MIL),
-        (5 * MIL, 10 * MIL, 0.7 * MIL),
+        (5 * MIL, 2 * MIL, 1.4 * MIL),
     ],
 )
-def test_cpw_thickness_correction_is_guptas_exact_k_e(w: float, gap: float, t: float) -> None:
-    line = Cpw(w, gap, 1e3 * (w + 2 * gap), t, ConstantDielectric(1.0))
-    z_air = quiet(line.modes, np.array([0.0]))["single"].z0[0]
-    assert z_air == pytest.approx(gupta_thickness_z_air(w, gap, t), rel=1e-9)
-    assert z_air < ETA0 / (4 * k_ratio(w / (w + 2 * gap)))  # metal walls add capacitance
+def test_thickness_adds_the_side_walls_capacitance_in_air(w: float, gap: float, t: float):
+    # the published base of the thickness effect: the strip's side walls face the grounds'
+    # across both gaps, a parallel-plate capacitance 2 eps0 t / gap (common practice)
+    # added in air to Wen's exact zero-thickness line; eps_eff falls accordingly. Hand
+    # calculation on a thick substrate ((er + 1)/2 filling, Wen 1969).
+    er = 4.0
+    h = 1e3 * (w + 2 * gap)
+    line = CPW(w, gap, h, t, ConstantDielectric(er))
+    m = quiet(line.modes, np.array([0.0]))["single"]
+    k_air = 4 * k_ratio(w / (w + 2 * gap)) + 2 * t / gap  # C_air / eps0
+    k = 4 * k_ratio(w / (w + 2 * gap)) * (er + 1) / 2 + 2 * t / gap
+    assert m.eps_eff[0] == pytest.approx(k / k_air, rel=1e-5)
+    assert m.z0[0] == pytest.approx(ETA0 / np.sqrt(k * k_air), rel=1e-5)
 
 
 # --- scikit-rf's CPW --------------------------------------------------------------------
@@ -131,7 +126,7 @@ def test_zero_thickness_matches_scikit_rf(w, gap, h, er, tand, grounded) -> None
     # tolerance 1e-5 covers scikit-rf's K/K' (Hilberg's approximation, 2 ppm).
     # Dispersion is compared over the whole sweep, past Frankel's fitted 10 f_TE for the
     # thicker substrates: this checks the written-out formula, not an accuracy claim.
-    line = (Gcpw if grounded else Cpw)(w, gap, h, 0.0, WidebandDebye(er, tand, 10e9))
+    line = (GCPW if grounded else CPW)(w, gap, h, 0.0, WidebandDebye(er, tand, 10e9))
     m = quiet(line.modes, F)["single"]
     sk = skrf_cpw(w, gap, h, 0.0, er, tand, grounded, "qucs")
     np.testing.assert_allclose(m.eps_eff, np.real(sk.ep_reff_f), rtol=1e-5)
@@ -155,44 +150,20 @@ def test_zero_thickness_matches_scikit_rf(w, gap, h, er, tand, grounded) -> None
     np.testing.assert_allclose(alpha_d, sk_d.alpha_dielectric, rtol=tand**2 + 1e-5)
 
 
-@pytest.mark.parametrize("grounded", [False, True], ids=["cpw", "gcpw"])
-@pytest.mark.parametrize(("w", "gap", "h"), GEOMETRIES[:3])
-def test_thin_metal_against_scikit_rf(w, gap, h, grounded) -> None:
-    # KNOWN, DELIBERATE DIFFERENCE: scikit-rf's CPW thickness correction uses the
-    # first-order (linearised) k_e of Gupta et al.; losslane uses the exact
-    # k_e = (w + Delta)/(w + 2 gap - Delta). The two agree to first order in Delta/gap,
-    # so the impedance is compared loosely (2 %) with thin metal (t <= gap/10); the
-    # thickness-corrected eps_eff uses the same formula in both and is compared tightly.
-    # That the whole impedance difference is the linearisation is shown by reproducing
-    # scikit-rf's value with the linearised k_e written out in this file.
-    t = 0.5 * MIL
-    er, tand = 3.7, 0.009
-    line = (Gcpw if grounded else Cpw)(w, gap, h, t, WidebandDebye(er, tand, 10e9))
-    m = quiet(line.modes, F)["single"]
-    sk = skrf_cpw(w, gap, h, t, er, tand, grounded, "qucs")
-    np.testing.assert_allclose(m.eps_eff, np.real(sk.ep_reff_f), rtol=1e-5)
-    np.testing.assert_allclose(m.z0, np.real(sk.z0_characteristic), rtol=2e-2)
-    if not grounded:
-        # Z0 = Z_air / sqrt(eps_eff): the ratio of the two implementations is the ratio of
-        # the exact and linearised Gupta air impedances
-        ours = gupta_thickness_z_air(w, gap, t) / gupta_linear_z_air(w, gap, t)
-        np.testing.assert_allclose(m.z0 / np.real(sk.z0_characteristic), ours, rtol=1e-5)
-
-
 def test_gcpw_tends_to_cpw_when_the_lower_plane_is_far() -> None:
     # Ghione & Naldi 1983: the lower plane's term K(k3)/K(k3') vanishes as h grows, so GCPW
     # on a thick substrate tends to CPW on the same substrate -- here both compared with
     # Wen's (er + 1)/2 (in GCPW the substrate fills the lower half-space up to the plane)
     w, gap = 10 * MIL, 5 * MIL
     h = 200 * (w + 2 * gap)
-    g = Gcpw(w, gap, h, 0.0, ConstantDielectric(4.0))
-    c = Cpw(w, gap, h, 0.0, ConstantDielectric(4.0))
+    g = GCPW(w, gap, h, 0.0, ConstantDielectric(4.0))
+    c = CPW(w, gap, h, 0.0, ConstantDielectric(4.0))
     mg = quiet(g.modes, np.array([0.0]))["single"]
     mc = quiet(c.modes, np.array([0.0]))["single"]
     assert mg.z0[0] == pytest.approx(mc.z0[0], rel=1e-3)
     assert mg.eps_eff[0] == pytest.approx(2.5, rel=1e-3)
     # a close lower plane lowers the impedance (more capacitance)
-    near = Gcpw(w, gap, 5 * MIL, 0.0, ConstantDielectric(4.0))
+    near = GCPW(w, gap, 5 * MIL, 0.0, ConstantDielectric(4.0))
     assert quiet(near.modes, np.array([0.0]))["single"].z0[0] < mg.z0[0]
 
 
@@ -208,16 +179,13 @@ def test_validity_warnings_and_errors() -> None:
     with warnings.catch_warnings():
         warnings.simplefilter("error", LossLaneWarning)
         Gcpw(10 * MIL, 5 * MIL, 10 * MIL, 0.5 * MIL, d).modes(f)
-    # a thickness whose widened strip closes the gap is impossible, not just out of range:
-    # Gupta's k_e = (w + Delta)/(w + 2 gap - Delta) reaches 1 at Delta = gap. Here
-    # Delta = 3.06 mil against a 2 mil gap (this case used to give NaN).
+    # copper thicker than the gap is beyond the verified box (a warning), not impossible:
+    # the side walls' capacitance keeps the gap open (Gupta's widening, used before, closed
+    # it for these two lines and gave NaN)
     for w, gap, t in [(6 * MIL, 1 * MIL, 3 * MIL), (10 * MIL, 2 * MIL, 1.4 * MIL)]:
-        with pytest.raises(LossLaneError, match="close the gap"):
-            Cpw(w, gap, 10 * MIL, t, d)
-    # just below the limit the line is finite
-    line = Cpw(10 * MIL, 3.1 * MIL, 10 * MIL, 1.4 * MIL, d)
-    rl = quiet(line.rlgc, np.array([0.0, 1e9]))
-    assert np.all(np.isfinite(rl.r)) and np.all(np.isfinite(rl.l))
+        with pytest.warns(LossLaneWarning, match="thickness/gap"):
+            rl = Cpw(w, gap, 10 * MIL, t, d).rlgc(np.array([0.0, 1e9]))
+        assert np.all(np.isfinite(rl.r)) and np.all(np.isfinite(rl.l))
     for args, key in [
         ((0.0, 5 * MIL, 10 * MIL, 0.5 * MIL), "width"),
         ((10 * MIL, -5 * MIL, 10 * MIL, 0.5 * MIL), "gap"),

@@ -180,8 +180,8 @@ def test_stripline_pair_mode_ordering(w_b, s_b, grow, t_w, offset):
         (micro(s_mil=0.2), "spacing/height"),
         (micro(w=50.0), "width/height"),
         (micro(t=3.0), "thickness/height"),
-        (strip(t=1.8, w=10.0), "thickness/plane spacing"),
-        (strip(lo=3.0, hi=8.0, w=1.0, t=0.1), "width/(plane spacing - thickness)"),
+        (strip(t=4.0, w=10.0), "thickness/plane spacing"),
+        (strip(lo=0.3, hi=10.0, w=4.0, t=0.6), "nearer plane/"),
     ],
 )
 def test_validity_warnings(p, key):

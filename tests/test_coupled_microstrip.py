@@ -134,11 +134,18 @@ def test_finite_difference_solver_reproduces_moment_method():
 
 def test_static_limit_of_the_dispersive_model():
     # at f = 0 the Kirschning-Jansen dispersion laws reduce to the quasi-static values
-    # (exact: F(0) = 0, Q22 = 0, Q24 = Q25 = 0, Q23 = 1)
+    # (exact: F(0) = 0, Q22 = 0, Q24 = Q25 = 0, Q23 = 1): the published ones with the
+    # correction off, the corrected ones (what the dispersion starts from) with it on
     d = ConstantDielectric(dk=4.2)
-    p = MicrostripPair(5 * MIL, 6 * MIL, 4 * MIL, 1.2 * MIL, d)
-    modes = p.modes(np.array([0.0]))
-    qs = static_modes(5.0, 6.0, 4.0, 1.2, np.array([4.2]))
-    for m in ("even", "odd"):
-        assert modes[m].z0[0] == pytest.approx(qs[m][0][0], rel=1e-12)
-        assert modes[m].eps_eff[0] == pytest.approx(qs[m][1][0], rel=1e-12)
+    dims = {"width": 5.0, "spacing": 6.0, "height": 4.0, "thickness": 1.2}
+    for cls in (MicrostripPair.published(), MicrostripPair):
+        p = cls(**{k: v * MIL for k, v in dims.items()}, dielectric=d)
+        modes = p.modes(np.array([0.0]))
+        qs = cls.corrected_static(dims, np.array([4.2]))
+        for m in ("even", "odd"):
+            z_air, eps = qs[m]
+            assert modes[m].z0[0] == pytest.approx(z_air[0] / np.sqrt(eps[0]), rel=1e-12)
+            assert modes[m].eps_eff[0] == pytest.approx(eps[0], rel=1e-12)
+    published = static_modes(5.0, 6.0, 4.0, 1.2, np.array([4.2]))
+    p = MicrostripPair.published()(*(v * MIL for v in dims.values()), d)
+    assert p.modes(np.array([0.0]))["odd"].z0[0] == pytest.approx(published["odd"][0][0])

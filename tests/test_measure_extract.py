@@ -32,7 +32,6 @@ from losslane.network.touchstone import write_touchstone
 from losslane.units import INCH
 from losslane.xsection import RLGC
 from losslane.xsection.rlgc import C0, NP_TO_DB
-from losslane.xsection.stripline import stripline_z_air
 
 
 def quiet(*args, **kwargs):
@@ -219,7 +218,8 @@ def test_real_copper_raises_eps_eff_by_the_internal_inductance_share():
     ext = extract_line(coupons(section, lengths), lengths)
     rl = section.rlgc(ext.f)
     r, l, g, c = rl.scalar()
-    l_ext = stripline_z_air(section.width, section.below, section.above, section.thickness) / C0
+    # the model's own air-filled impedance (Cohn x Wheeler with its field-solver correction)
+    l_ext = section.corrected_z_air("single", section.dimension_values()) / C0
     dk = LAMINATE.eps(ext.f).real
     w = 2 * np.pi * ext.f
     predicted = dk * l / l_ext - r * g * C0**2 / w**2

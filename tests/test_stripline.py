@@ -19,6 +19,9 @@ from losslane.xsection.stripline import Stripline
 MIL = 25.4e-6
 ETA0 = mu_0 * C_LIGHT  # free-space wave impedance, 376.73 ohm (CODATA via scipy)
 F = np.array([1e8, 1e9, 1e10])
+#: the model with its field-solver correction off: the published formulas checked here
+#: (the correction is checked against the field solver in tests/test_accuracy_static.py)
+PUBLISHED = Stripline.published()
 
 
 def cohn_z0(w: float, b: float, er: float) -> float:
@@ -72,7 +75,7 @@ def z0_of(line: Stripline, f: np.ndarray = F) -> np.ndarray:
 @pytest.mark.parametrize("er", [1.0, 3.7])
 def test_zero_thickness_centred_stripline_is_cohns_exact_value(wb: float, er: float) -> None:
     b = 0.5e-3
-    line = Stripline(wb * b, b / 2, b / 2, 0.0, ConstantDielectric(er))
+    line = PUBLISHED(wb * b, b / 2, b / 2, 0.0, ConstantDielectric(er))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", LossLaneWarning)  # "thickness 0: no conductor loss"
         z = z0_of(line)
@@ -98,8 +101,8 @@ def test_thickness_follows_wheeler(wb: float, tb: float) -> None:
     b = 0.5e-3
     w, t = wb * b, tb * b
     er = 3.7
-    line = Stripline(w, (b - t) / 2, (b - t) / 2, t, ConstantDielectric(er))
-    flat = Stripline(w, b / 2, b / 2, 0.0, ConstantDielectric(er))
+    line = PUBLISHED(w, (b - t) / 2, (b - t) / 2, t, ConstantDielectric(er))
+    flat = PUBLISHED(w, b / 2, b / 2, 0.0, ConstantDielectric(er))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", LossLaneWarning)
         z_t, z_0 = z0_of(line)[0], z0_of(flat)[0]
@@ -118,7 +121,7 @@ def test_offset_stripline_is_the_parallel_combination(below: float, above: float
     er = 3.3
     h1, h2 = below * MIL, above * MIL
     z1, z2 = cohn_z0(w, 2 * h1, er), cohn_z0(w, 2 * h2, er)
-    line = Stripline(w, h1, h2, 0.0, ConstantDielectric(er))
+    line = PUBLISHED(w, h1, h2, 0.0, ConstantDielectric(er))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", LossLaneWarning)
         z = z0_of(line)
@@ -130,9 +133,9 @@ def test_offset_stripline_with_thickness_combines_centred_lines() -> None:
     # each a centred line with thickness
     w, t, h1, h2 = 5 * MIL, 0.6 * MIL, 4 * MIL, 9 * MIL
     d = ConstantDielectric(3.3)
-    z1 = z0_of(Stripline(w, h1, h1, t, d))[0]
-    z2 = z0_of(Stripline(w, h2, h2, t, d))[0]
-    z = z0_of(Stripline(w, h1, h2, t, d))[0]
+    z1 = z0_of(PUBLISHED(w, h1, h1, t, d))[0]
+    z2 = z0_of(PUBLISHED(w, h2, h2, t, d))[0]
+    z = z0_of(PUBLISHED(w, h1, h2, t, d))[0]
     assert z == pytest.approx(2 * z1 * z2 / (z1 + z2), rel=1e-12)
     # an offset strip sits between the two centred lines it is made of
     assert z1 < z < z2
@@ -186,12 +189,15 @@ def test_dielectric_loss_rule_of_thumb(dk: float, df: float) -> None:
 
 
 def test_validity_warnings_name_the_parameter() -> None:
-    # Wheeler 1978 range t/b <= 0.25 (from memory); offset rule w/(b - t) >= 0.35 (Wadell)
+    # Wheeler 1978 range t/b <= 0.25 (from memory), and the field-solver correction's box:
+    # w/b >= 0.02, the nearer plane at least 5 % of below + above away
     d = ConstantDielectric(3.7)
     with pytest.warns(LossLaneWarning, match="thickness/spacing"):
         Stripline(5 * MIL, 1 * MIL, 1 * MIL, 1.4 * MIL, d).modes(F)
-    with pytest.warns(LossLaneWarning, match="width/"):
-        Stripline(1 * MIL, 3 * MIL, 9 * MIL, 0.3 * MIL, d).modes(F)
+    with pytest.warns(LossLaneWarning, match="width/spacing"):
+        Stripline(0.2 * MIL, 5 * MIL, 9 * MIL, 0.3 * MIL, d).modes(F)
+    with pytest.warns(LossLaneWarning, match="nearer plane"):
+        Stripline(5 * MIL, 0.3 * MIL, 9 * MIL, 0.3 * MIL, d).modes(F)
     with pytest.warns(LossLaneWarning, match="thickness = 0"):
         Stripline(5 * MIL, 5 * MIL, 5 * MIL, 0.0, d).modes(F)
     with warnings.catch_warnings():

@@ -21,13 +21,13 @@ import warnings
 
 import numpy as np
 
-from losslane.materials.conductor import internal_impedance
 from losslane.materials.dielectric import ConstantDielectric
 from losslane.units import MIL, OZ_COPPER
 from losslane.xsection.base import Metal
 from losslane.xsection.fieldsolve import Geometry, Layer, Trace
 from losslane.xsection.fieldsolve.eddy import eddy_impedance
 from losslane.xsection.microstrip import Microstrip
+from losslane.xsection.rlgc import group_impedances
 from losslane.xsection.stripline import Stripline
 
 AIR = ConstantDielectric(1.0, name="air")
@@ -40,9 +40,8 @@ def group_r(cf, f: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     dims = [np.asarray(getattr(cf, k), float) for k in cf.dimensions]
     strip = np.zeros(f.shape)
     planes = np.zeros(f.shape)
-    for grp in cf._groups(*dims):
-        k = grp.roughness.factor(f, grp.conductor)
-        r, _ = internal_impedance(f, grp.conductor, grp.geometry_factor, grp.depth, k, grp.wide)
+    groups = cf._groups(*dims)
+    for grp, (r, _) in zip(groups, group_impedances(f, groups), strict=True):
         if grp.wide:
             planes = planes + r
         else:
@@ -116,11 +115,14 @@ def main() -> None:
             sel = (F >= lo) & (F <= hi)
             row.append(_span(dr[sel]))
             row.append(_span(dl[sel]))
+        hf = F >= 1e6
+        row.append(f"{100 * np.abs(dr).max():.1f} %")
+        row.append(f"{100 * np.abs(dl[hf]).max():.2f} %")
         summary.append(row)
     print("\n### Summary: closed form / eddy current - 1 (min .. max over the band)\n")
     head = " | ".join(f"R {b} | L {b}" for b, _, _ in BANDS)
-    print(f"| geometry | {head} |")
-    print("|---" * (1 + 2 * len(BANDS)) + "|")
+    print(f"| geometry | {head} | worst R 1 kHz-10 GHz | worst L 1 MHz-10 GHz |")
+    print("|---" * (3 + 2 * len(BANDS)) + "|")
     for row in summary:
         print("| " + " | ".join(row) + " |")
 

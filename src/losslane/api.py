@@ -247,7 +247,12 @@ class LineResult:
         from losslane.report.line import line_json
 
         report = getattr(self.section, "solver_report", None)
-        return line_json(self.values, report() if report is not None else None)
+        model = getattr(self.section, "model_report", None)
+        return line_json(
+            self.values,
+            report() if report is not None else None,
+            model() if report is None and model is not None else None,
+        )
 
 
 def line(

@@ -81,9 +81,12 @@ def _matrix_list(a: np.ndarray) -> list:
     return a.tolist()
 
 
-def line_json(values: LineValues, solver_report: dict | None = None) -> dict:
+def line_json(
+    values: LineValues, solver_report: dict | None = None, model_report: dict | None = None
+) -> dict:
     """The `losslane line --json` object (DESIGN.md keys; a pair's loss keys are its
-    differential mode). ``solver_report``: a field-solved section's report."""
+    differential mode). ``solver_report``: a field-solved section's report;
+    ``model_report``: a closed-form section's (its methods and corrections)."""
     out: dict = {"kind": values.kind, "frequencies_hz": values.f.tolist()}
     arrays = line_arrays(values)
     for key in MAIN_KEYS:
@@ -106,6 +109,9 @@ def line_json(values: LineValues, solver_report: dict | None = None) -> dict:
     if solver_report is not None:
         out["solver"] = "field"
         out["field_solver"] = solver_report
+    elif model_report is not None:
+        out["solver"] = model_report["solver"]
+        out["model"] = model_report
     else:
         out["solver"] = "closed-form"
     return out
@@ -134,6 +140,8 @@ def describe(section) -> str:
     if metal is not None:
         parts.append(f"foil {metal.foil.model}")
     report = getattr(section, "solver_report", None)
+    if report is None and getattr(type(section), "correction", None) is not None:
+        parts.append("closed forms with field-solver correction")
     if report is not None:
         est = report()["error_estimate"].get("z0")
         parts.append(
@@ -210,5 +218,21 @@ def line_table(props: dict, title: str) -> str:
         "per-unit-length line constants" + (" (self terms, line 1)" if pair else ""),
         table(["frequency", "R", "L", "G", "C"], ["GHz", "ohm/m", "nH/m", "mS/m", "pF/m"], rrows),
     ]
+    model = props.get("model")
+    if model:
+        out += ["", model_note(model)]
     out += ["", CAUTION]
     return "\n".join(out)
+
+
+def model_note(model: dict) -> str:
+    """Which models produced a closed-form table's numbers (from the ``model`` object of
+    the JSON), wrapped to the tables' width."""
+    import textwrap
+
+    text = "models: " + "; ".join(model["methods"])
+    fit = model.get("static_correction")
+    if fit is not None:
+        text += f"; quasi-static Z0 and eps_eff {fit['method']}"
+    text += f"; R and L: {model['conductor']}"
+    return "\n".join(textwrap.wrap(text, 92, subsequent_indent="  "))

@@ -20,17 +20,18 @@ import numpy as np
 from numpy.typing import ArrayLike
 
 from losslane.errors import LossLaneError, warn
-from losslane.materials.conductor import COPPER, Conductor
+from losslane.materials.conductor import COPPER, Conductor, pair_return_shape
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness, Smooth
 from losslane.units import INCH, OZ_COPPER
+from losslane.xsection.fitted import StaticCorrection
 from losslane.xsection.rlgc import (
+    ETA0,
     NP_TO_DB,
     RLGC,
     ConductorGroup,
     Mode,
     attenuation_split,
-    wheeler_factor,
 )
 from losslane.xsection.validity import Limit, Quantities, check_limits
 
@@ -110,23 +111,125 @@ def strip_and_planes(
     scale: np.ndarray,
     area: np.ndarray,
     metal: Metal,
+    aspect: np.ndarray,
+    proximity: np.ndarray,
 ) -> list[ConductorGroup]:
     """Wheeler's conductor groups of one mode: the strip(s), then each return plane.
 
-    The strips' depth is G * ``area`` (their exact DC resistance); a plane's is
-    ``metal.plane_thickness`` with the planes' foil, marked wide.
+    The strips' depth is G * ``area`` (their exact DC resistance), with their
+    width/thickness ``aspect`` and width over the distance to the nearer plane
+    (``proximity``); a plane's depth is ``metal.plane_thickness`` with the planes' foil,
+    marked wide.
     """
+    groups = modal_strip_and_planes(
+        lambda p: {"mode": z_air(p)}, p0, strip, planes, scale, area, metal, aspect, proximity
+    )
+    return groups["mode"]
+
+
+def modal_strip_and_planes(
+    z_air: Callable[[tuple], dict[str, np.ndarray]],
+    p0: tuple,
+    strip: tuple[str, Recede],
+    planes: list[tuple[str, Recede]],
+    scale: np.ndarray,
+    area: np.ndarray,
+    metal: Metal,
+    aspect: np.ndarray,
+    proximity: np.ndarray,
+    at_p0: Mapping[str, np.ndarray] | None = None,
+) -> dict[str, list[ConductorGroup]]:
+    """``strip_and_planes`` of every mode at once: ``z_air(params)`` returns {mode: Z_air},
+    so each receded geometry is evaluated once for all modes (a pair's even and odd).
+    With ``at_p0`` (the values at ``p0``) the difference is one-sided, step 1e-4 of
+    ``scale``: one evaluation per wall instead of two (its error, of the order of the
+    step, is far below the rule's own)."""
+
+    def factors(recede: Recede) -> dict[str, np.ndarray]:
+        dn = 1e-4 * np.asarray(scale, float)
+        hi = z_air(recede(p0, dn))
+        if at_p0 is not None:
+            return {m: (hi[m] - at_p0[m]) / dn / ETA0 for m in hi}
+        lo = z_air(recede(p0, -dn))
+        return {m: (hi[m] - lo[m]) / (2 * dn) / ETA0 for m in hi}
+
     name, recede = strip
-    g_strip = wheeler_factor(z_air, p0, recede, scale)
-    groups = [ConductorGroup(name, g_strip, g_strip * area, metal.conductor, metal.foil)]
-    for name, recede in planes:
-        g = wheeler_factor(z_air, p0, recede, scale)
-        groups.append(
+    g_strip = factors(recede)
+    out = {
+        m: [
             ConductorGroup(
-                name, g, metal.plane_thickness, metal.conductor, metal.plane_roughness, True
+                name, g, g * area, metal.conductor, metal.foil, aspect=aspect, proximity=proximity
             )
-        )
-    return groups
+        ]
+        for m, g in g_strip.items()
+    }
+    for name, recede in planes:
+        for m, g in factors(recede).items():
+            out[m].append(
+                ConductorGroup(
+                    name, g, metal.plane_thickness, metal.conductor, metal.plane_roughness, True
+                )
+            )
+    if set(out) == {"even", "odd"} and planes:
+        # a symmetric pair: each mode's return sees both lines' currents
+        # (``materials.conductor.sheet_return``), placed to match the modes' factors
+        total = {m: sum(g.geometry_factor for g in out[m] if g.wide) for m in out}
+        h, d = pair_return_shape(total["even"], total["odd"])
+        for m, sign in (("even", 1.0), ("odd", -1.0)):
+            out[m] = [dataclasses.replace(g, pair=(h, d, sign)) if g.wide else g for g in out[m]]
+    return out
+
+
+def air_factor(single: type[CrossSection], dims: Mapping[str, ArrayLike]) -> np.ndarray:
+    """Z_air,corrected / Z_air,published of a single line (1 without a correction)."""
+    corr = single.correction
+    if corr is None:
+        return np.asarray(1.0)
+    k = single.correction_weight(dims)
+    return np.exp(-np.asarray(k) * corr.air["single"](*single.static_parameters(dims)))
+
+
+def fill_factor(
+    single: type[CrossSection], dims: Mapping[str, ArrayLike], er: ArrayLike
+) -> np.ndarray:
+    """q_corrected / q_published of a single line (1 without a filling correction)."""
+    corr = single.correction
+    if corr is None or "single" not in corr.fill:
+        return np.asarray(1.0)
+    k = single.correction_weight(dims)
+    return np.exp(np.asarray(k) * corr.fill["single"](*single.static_parameters(dims), er))
+
+
+def pair_base(
+    pair: type[CrossSection],
+    single: type[CrossSection],
+    single_dims: Mapping[str, ArrayLike],
+    dims: Mapping[str, ArrayLike],
+    er: ArrayLike,
+) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """A pair's published even/odd values times the single line's field-solver correction
+    (its air-filled capacitance and filling-factor ratios at the pair's strip and
+    planes): the base its own correction multiplies. As the lines part, the pair's modes
+    tend to the corrected single line, as the published formulas tend to the single
+    line's published values."""
+    pub = pair.published_static(dims, er)
+    fa = air_factor(single, single_dims)
+    fq = fill_factor(single, single_dims, er)
+    return {m: (z * fa, 1.0 + (np.asarray(e, float) - 1.0) * fq) for m, (z, e) in pub.items()}
+
+
+def pair_coupling(
+    pair: type[CrossSection],
+    dims: Mapping[str, ArrayLike],
+    base_air: Mapping[str, np.ndarray] | None = None,
+) -> np.ndarray:
+    """ln(Z_even / Z_odd) of the published air-filled pair (from ``base_air``, the base
+    values, when the caller has them: they carry one factor for both modes): the weight of
+    a pair's own correction (0 for lines far apart)."""
+    z = base_air
+    if z is None:
+        z = {m: v[0] for m, v in pair.published_static(dims, 1.0).items()}
+    return np.log(np.asarray(z["even"], float) / np.asarray(z["odd"], float))
 
 
 #: the modal transform of a symmetric pair: columns even (1, 1) and odd (1, -1), normalised
@@ -220,6 +323,10 @@ class CrossSection:
     #: sizing: dimension -> (reference dimensions summed, lowest, highest ratio searched);
     #: the interval is then narrowed to ``limits``
     search: ClassVar[Mapping[str, tuple[tuple[str, ...], float, float]]] = {}
+    #: the field-solver correction of the quasi-static results (``xsection.fitted``):
+    #: a model with one implements ``static_parameters``, ``static_dimensions`` and
+    #: ``published_static``, and uses ``corrected_static`` for its modes
+    correction: ClassVar[StaticCorrection | None] = None
 
     def __post_init__(self) -> None:
         # run by the dataclass __init__ of the closed-form models
@@ -240,6 +347,30 @@ class CrossSection:
         """A copy with some dimensions (keys of ``dimensions``, metres) or materials
         (``dielectric``, ``metal``) changed."""
         return dataclasses.replace(self, **changes)
+
+    def model_report(self) -> dict:
+        """Which models produce this section's numbers (the ``model`` object of
+        `losslane line --json`): the published methods of its validity table, the
+        field-solver correction of its quasi-static values and the conductor model."""
+        corr = type(self).correction
+        out: dict = {
+            "solver": "closed-form",
+            "methods": list(dict.fromkeys(lim.method for lim in self.limits)),
+        }
+        if corr is not None:
+            out["static_correction"] = {
+                "method": "fitted to the 2-D field solver (tools/fit_static_corrections.py)",
+                "box": {
+                    a.name: [a.low, a.high] for a in corr.axes + ((corr.dk,) if corr.dk else ())
+                },
+                "fit": corr.note,
+            }
+        out["conductor"] = (
+            "strip: exact DC resistance, DC-to-skin transition fitted to the eddy-current "
+            "solver, Wheeler's rule at high frequency; returns: closed-form slab under a "
+            "line current"
+        )
+        return out
 
     def check_validity(self, q: Quantities) -> None:
         """Warn for every validity range of ``limits`` that the quantities leave."""
@@ -286,6 +417,91 @@ class CrossSection:
     def solvable(cls) -> bool:
         """True when the kind also runs in the 2-D field solver (it has a layout)."""
         return cls.field_geometry.__func__ is not CrossSection.field_geometry.__func__
+
+    # -- the field-solver correction -----------------------------------------------------
+    @classmethod
+    def static_parameters(cls, dims: Mapping[str, ArrayLike]) -> tuple[np.ndarray, ...]:
+        """The correction's dimensionless parameters at ``dims`` (arrays broadcast)."""
+        raise NotImplementedError
+
+    @classmethod
+    def static_dimensions(cls, params: tuple[float, ...]) -> dict[str, float]:
+        """Dimensions (m) that have the correction's ``params`` (for the fit's grid)."""
+        raise NotImplementedError
+
+    @classmethod
+    def published_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """{mode: (Z_air, eps_eff)}, quasi-static, from the published formulas alone."""
+        raise NotImplementedError
+
+    @classmethod
+    def corrected_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """{mode: (Z_air, eps_eff)}, quasi-static: the published formulas times the
+        field-solver correction (Z0 = Z_air / sqrt(eps_eff))."""
+        corr = cls.correction
+        if corr is None:
+            return cls.published_static(dims, er)
+        out = cls.base_static(dims, er)
+        params = cls.static_parameters(dims)
+        k = cls.correction_weight(dims, {m: z for m, (z, _) in out.items()})
+        return {
+            m: (corr.z_air(m, params, z, k), corr.eps_eff(m, params, e, er, k))
+            for m, (z, e) in out.items()
+        }
+
+    @classmethod
+    def base_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """What the correction's series multiply: the published formulas (a pair: with the
+        single line's correction, see ``pair_base``)."""
+        return cls.published_static(dims, er)
+
+    @classmethod
+    def base_air(
+        cls, dims: Mapping[str, ArrayLike], published_air: Mapping[str, np.ndarray]
+    ) -> dict[str, np.ndarray]:
+        """The air-filled impedances the correction's series multiply (``base_static`` at
+        Dk = 1, from the published ``published_air``)."""
+        return dict(published_air)
+
+    @classmethod
+    def correction_weight(
+        cls, dims: Mapping[str, ArrayLike], base_air: Mapping[str, np.ndarray] | None = None
+    ) -> ArrayLike:
+        """The factor on the correction's series (1; a pair's coupling, so that its own
+        correction vanishes as the lines part and the single line's remains). ``base_air``:
+        the modes' base air-filled impedances where the caller has them."""
+        return 1.0
+
+    @classmethod
+    def corrected_air(cls, dims: Mapping[str, ArrayLike]) -> dict[str, np.ndarray]:
+        """{mode: Z_air} with the correction: what Wheeler's rule differentiates."""
+        pub = {m: v[0] for m, v in cls.published_static(dims, 1.0).items()}
+        corr = cls.correction
+        if corr is None:
+            return pub
+        params = cls.static_parameters(dims)
+        base = cls.base_air(dims, pub)
+        k = cls.correction_weight(dims, base)
+        return {m: corr.z_air(m, params, z, k) for m, z in base.items()}
+
+    @classmethod
+    def published(cls) -> type[CrossSection]:
+        """The same model with its field-solver correction off: the published formulas
+        alone (what other implementations of the papers compute)."""
+        if cls.correction is None:
+            return cls
+        return type(cls.__name__, (cls,), {"correction": None, "__module__": cls.__module__})
+
+    @classmethod
+    def corrected_z_air(cls, mode: str, dims: Mapping[str, ArrayLike]) -> np.ndarray:
+        """The corrected air-filled impedance of ``mode``."""
+        return cls.corrected_air(dims)[mode]
 
     # -- the model interface ------------------------------------------------------------
     def modes(self, f: np.ndarray) -> dict[str, Mode]:

@@ -25,7 +25,7 @@ from typing import TypeVar
 import numpy as np
 from numpy.typing import ArrayLike
 
-from losslane.materials.conductor import MU0, Conductor, internal_impedance
+from losslane.materials.conductor import MU0, Conductor, return_impedance, strip_impedance
 from losslane.materials.roughness import Roughness, Smooth
 
 C0 = 299_792_458.0
@@ -103,10 +103,12 @@ class ConductorGroup:
     """The walls of one conductor (or set of conductors) that share a current path.
 
     ``geometry_factor`` is Wheeler's G (1/m): R_ac = R_s * G. For a signal conductor
-    ``depth`` tau is chosen so that G / (sigma tau) is its DC resistance; ``wide`` marks a
-    return plane or wide coplanar ground (``depth`` its thickness), whose DC resistance is
-    negligible (see ``internal_impedance``). G and tau are scalars, or arrays of one value
-    per geometry sample (shape (S, 1)).
+    ``depth`` tau is chosen so that G / (sigma tau) is its DC resistance, and ``aspect``
+    (width/thickness) and ``proximity`` (width over the distance to the nearest return)
+    select the shape of its DC-to-skin transition (``materials.conductor.strip_impedance``);
+    ``wide`` marks a return plane or wide coplanar ground (``depth`` its thickness), whose
+    DC resistance is negligible (``materials.conductor.return_impedance``). G, tau and the
+    ratios are scalars, or arrays of one value per geometry sample (shape (S, 1)).
     """
 
     name: str
@@ -115,6 +117,11 @@ class ConductorGroup:
     conductor: Conductor
     roughness: Roughness = Smooth()
     wide: bool = False
+    aspect: float | np.ndarray = 4.0
+    proximity: float | np.ndarray = 1.5
+    #: a return group of one mode of a symmetric pair: (h, d, sign) of the two line
+    #: currents its return sees (``materials.conductor.pair_return_shape``)
+    pair: tuple | None = None
 
 
 @dataclass(frozen=True)
@@ -189,14 +196,41 @@ def assemble_mode(
     g = omega * c * eps_eff_loss / eps_eff
     r = np.zeros(shape)
     l_int = np.zeros(shape)
-    for grp in groups:
-        k = grp.roughness.factor(f, grp.conductor)
-        dr, dl = internal_impedance(
-            f, grp.conductor, grp.geometry_factor, grp.depth, k, wide=grp.wide
-        )
+    for dr, dl in group_impedances(f, groups):
         r = r + dr
         l_int = l_int + dl
     return Mode(name, np.array(eps_eff), np.array(z0), r, l_ext + l_int, g, c)
+
+
+def group_impedances(
+    f: np.ndarray, groups: list[ConductorGroup]
+) -> list[tuple[np.ndarray, np.ndarray]]:
+    """(R, L_int) of each conductor group, in order: a signal conductor by its own
+    internal impedance (``materials.conductor.strip_impedance``), the wide groups (planes,
+    coplanar grounds) as the parts of one return path
+    (``materials.conductor.return_impedance``). One conductor for them all."""
+    out: list = [None] * len(groups)
+    returns = [i for i, g in enumerate(groups) if g.wide]
+    for i, grp in enumerate(groups):
+        if not grp.wide:
+            k = grp.roughness.factor(f, grp.conductor)
+            out[i] = strip_impedance(
+                f, grp.conductor, grp.geometry_factor, grp.depth, k, grp.aspect, grp.proximity
+            )
+    if returns:
+        cond = groups[returns[0]].conductor
+        parts = [
+            (
+                groups[i].geometry_factor,
+                groups[i].depth,
+                groups[i].roughness.factor(f, cond),
+            )
+            for i in returns
+        ]
+        pair = groups[returns[0]].pair
+        for i, z in zip(returns, return_impedance(f, cond, parts, pair=pair), strict=True):
+            out[i] = z
+    return out
 
 
 def attenuation_split(

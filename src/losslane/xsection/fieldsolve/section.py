@@ -21,12 +21,14 @@ vacuum) the line constants at any frequency follow without another solve:
   layer models C and G form a Kramers-Kronig pair to that accuracy.
 * L = L_ext + L_int(f): L_ext = mu0 eps0 C0^-1 from the vacuum capacitance;
 * R(f) + j omega L_int(f): per conductor group the surface-current factor G^g of the
-  vacuum solution (``solve.py``) joined to the exact DC resistance by the slab internal
-  impedance of ``materials.conductor.internal_impedance`` (the same DC-to-skin transition
-  and depth convention as the closed-form models: depth = G * area for a signal
-  conductor, which makes its DC resistance exact; planes and coplanar grounds are wide,
-  with their thickness as depth and a negligible DC resistance), with the foil's
-  roughness factor on the part above DC.
+  vacuum solution (``solve.py``) with the conductor model of the closed forms
+  (``materials.conductor``): each signal conductor by ``strip_impedance`` (its exact DC
+  resistance, depth = G * area, joined to the skin effect by the transition fitted to the
+  eddy-current solver, shaped by the trace's width/thickness and distance to its return),
+  the planes and coplanar grounds as the parts of one return path (``return_impedance``
+  in matrix form, ``_return_matrices``; negligible DC resistance), each with the foil's
+  roughness factor on the part above DC. ``fieldsolve.eddy`` solves the same conductors
+  meshed (proximity, corners and finite planes included) when that matters.
 
 This is a quasi-static (quasi-TEM) model: eps_eff(f) follows the materials' dispersion
 only, not the geometric dispersion of microstrip and coplanar lines (the Kirschning-
@@ -43,7 +45,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from losslane.errors import LossLaneError, check_range, warn
-from losslane.materials.conductor import internal_impedance
+from losslane.materials.conductor import sheet_return, strip_impedance
 from losslane.materials.dielectric import Dielectric
 from losslane.xsection.base import CrossSection, LineValues, Metal, check_dimensions
 from losslane.xsection.fieldsolve.geometry import F_REF, Geometry
@@ -201,26 +203,26 @@ class FieldSection(CrossSection):
         r = np.zeros(f.shape + (n, n))
         l_int = np.zeros(f.shape + (n, n))
         m = self.metal
+        signals = self.geometry.signals
+        returns = []
         for grp in sol.groups:
-            if grp.kind == "signal":
-                k = grp.index
-                gkk = float(grp.matrix[k, k])
-                rough = m.foil.factor(f, m.conductor)
-                rk, lk = internal_impedance(f, m.conductor, gkk, gkk * grp.area, rough)
-                r_dc = 1.0 / (m.conductor.sigma * grp.area)
-                shape = grp.matrix / gkk
-                r += (rk - r_dc)[:, None, None] * shape
-                r[:, k, k] += r_dc
-                l_int += lk[:, None, None] * shape
-            else:
-                # planes and coplanar grounds are wide: negligible DC resistance, the
-                # same convention as the closed-form models
-                depth = m.plane_thickness if grp.kind == "plane" else grp.thickness
-                rough_model = m.plane_roughness if grp.kind == "plane" else m.foil
-                rough = rough_model.factor(f, m.conductor)
-                rg, lg = internal_impedance(f, m.conductor, 1.0, depth, rough, wide=True)
-                r += rg[:, None, None] * grp.matrix
-                l_int += lg[:, None, None] * grp.matrix
+            if grp.kind != "signal":
+                returns.append(grp)
+                continue
+            k = grp.index
+            gkk = float(grp.matrix[k, k])
+            rough = m.foil.factor(f, m.conductor)
+            aspect, proximity = _strip_ratios(self.geometry, signals[k])
+            rk, lk = strip_impedance(f, m.conductor, gkk, gkk * grp.area, rough, aspect, proximity)
+            r_dc = 1.0 / (m.conductor.sigma * grp.area)
+            shape = grp.matrix / gkk
+            r += (rk - r_dc)[:, None, None] * shape
+            r[:, k, k] += r_dc
+            l_int += lk[:, None, None] * shape
+        if returns:
+            dr, dl = _return_matrices(f, m, returns)
+            r += dr
+            l_int += dl
         return r, l_ext + l_int, g, c, np.array(l_ext)
 
     def check_validity(self, f: np.ndarray) -> None:
@@ -301,6 +303,32 @@ class FieldSection(CrossSection):
             )
         return out
 
+    def eddy(
+        self,
+        f: np.ndarray,
+        *,
+        accuracy: str = "normal",
+        plane_width: float | None = None,
+        estimate: bool = True,
+    ):
+        """The eddy-current solution of this cross-section's conductors
+        (``fieldsolve.eddy.eddy_impedance``): R(f) and L(f) (N, n, n) with the strip(s),
+        planes and grounds meshed, the metal's conductivity and plane thickness. The
+        reference for the conductor model where proximity, corners or the DC-to-skin
+        transition matter; smooth copper (roughness is not part of it)."""
+        from losslane.xsection.fieldsolve.eddy import eddy_impedance
+
+        m = self.metal
+        return eddy_impedance(
+            self.geometry,
+            f,
+            conductivity=m.conductor.sigma,
+            plane_thickness=m.plane_thickness,
+            plane_width=plane_width,
+            accuracy=accuracy,
+            estimate=estimate,
+        )
+
     # -- reporting --------------------------------------------------------------------
     def error_estimate(self) -> dict:
         """Relative changes from the next coarser mesh setting (frequency independent,
@@ -351,6 +379,50 @@ def complex_capacitance(sol: Solution, eps: np.ndarray) -> np.ndarray:
     q = np.einsum("rf,rki->fki", eps, sol.reduced_q)
     r = np.einsum("rf,rkl->fkl", eps, sol.reduced_r)
     return p - np.einsum("fki,fkj->fij", q, np.linalg.solve(r, q))
+
+
+def _strip_ratios(geom: Geometry, tr) -> tuple[float, float]:
+    """(width/thickness, width over the distance to the nearest return) of a signal trace:
+    the shape of its DC-to-skin transition (``materials.conductor.strip_impedance``)."""
+    width = tr.x_right - tr.x_left
+    gaps = []
+    if geom.plane_below:
+        gaps.append(tr.y)
+    if geom.plane_above:
+        gaps.append(geom.stack_top - tr.top)
+    for other in geom.traces:
+        if not other.signal:
+            gaps.append(max(other.x_left - tr.x_right, tr.x_left - other.x_right))
+    gaps = [g for g in gaps if g > 0]
+    return width / tr.thickness, width / min(gaps) if gaps else 1.0
+
+
+def _return_matrices(f: np.ndarray, m: Metal, returns: list) -> tuple[np.ndarray, np.ndarray]:
+    """R and L_int (N, n, n) of the return path: its planes and coplanar grounds as the
+    parts of one return (``materials.conductor.return_impedance``), in matrix form. With
+    G = sum of the parts' factor matrices = V diag(lambda) V^T, each part i contributes
+    K_i sym(V diag(Z_sheet(lambda, t_i)/lambda) V^T G_i): for one conductor (or commuting
+    matrices) exactly the closed forms' K_i (G_i/G) Z_sheet(G, t_i)."""
+    g_total = sum(grp.matrix for grp in returns)
+    lam, vec = np.linalg.eigh(0.5 * (g_total + g_total.T))
+    lam = np.maximum(lam, 1e-12 * max(float(lam.max()), 1e-300))
+    r = 0.0
+    l_int = 0.0
+    for grp in returns:
+        plane = grp.kind == "plane"
+        depth = m.plane_thickness if plane else grp.thickness
+        rough = (m.plane_roughness if plane else m.foil).factor(f, m.conductor)
+        rs, ls = sheet_return(f[:, None], m.conductor, lam[None, :], depth)  # (N, n)
+        omega = 2 * np.pi * f[:, None]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            r_over_w = np.where(omega > 0, rs / np.where(omega > 0, omega, 1.0), 0.0)
+        # Z / (j w) = L - j R / w per eigenvalue, times K (complex for a plated stack)
+        y = np.asarray(rough)[:, None] * (ls - 1j * r_over_w) / lam
+        mat = np.einsum("ik,fk,jk->fij", vec, y, vec) @ grp.matrix
+        mat = 0.5 * (mat + np.swapaxes(mat, 1, 2))
+        r = r - 2 * np.pi * f[:, None, None] * mat.imag
+        l_int = l_int + mat.real
+    return np.asarray(r), np.asarray(l_int)
 
 
 def _mode(name: str, r, l, g, c, l_ext, c0: float) -> Mode:

@@ -1,0 +1,289 @@
+"""Fit the strip's DC-to-skin transition of the closed-form conductor model to the
+eddy-current field solution (``xsection.fieldsolve.eddy``).
+
+For a grid of smooth-copper microstrips and striplines (strips 0.5-2 oz, 3-24 mil wide;
+1 oz planes) the eddy-current solver gives the power dissipated in the strip from 1 kHz to
+10 GHz. ``materials.conductor.strip_impedance`` writes the strip's impedance as
+
+    Phi(s) = (1/alpha) z coth z + (1 - 1/alpha)/(1 + s/d),  z^2 = alpha^2 s,
+    Z = R_dc (1 + (1 - eps)(Phi - 1)),  s = j w mu sigma tau^2,  tau = G * area,
+
+and this tool fits alpha and d as piecewise-linear functions of ln(w/t) (knots below) and
+eps = (e0 + e1 ln(w/t) + e2 ln(w/h)) / (1 + (w/(8 h))^2) by least squares on
+R_strip(model) / R_strip(eddy) - 1 over 0.1 <= tau/delta <= 25, then prints the fit's
+worst deviation per geometry and the whole line's R and L against the eddy solution.
+
+    python tools/fit_strip_transition.py            # fit and print
+    python tools/fit_strip_transition.py --write    # and rewrite the block in conductor.py
+
+Eddy solves are kept in ``--cache`` (a pickle, written as the run goes). About 20 minutes
+for the 51 geometries on the two-core development machine (1 kHz .. 10 GHz, 25 points).
+"""
+
+from __future__ import annotations
+
+import argparse
+import itertools
+import json
+import pickle
+import re
+import sys
+import time
+import warnings
+from pathlib import Path
+
+import numpy as np
+
+from losslane.materials import conductor as cond
+from losslane.materials.conductor import MU0
+from losslane.materials.dielectric import ConstantDielectric
+from losslane.units import MIL, OZ_COPPER
+from losslane.xsection.base import Metal
+from losslane.xsection.fieldsolve import Geometry, Layer, Trace
+from losslane.xsection.fieldsolve.eddy import eddy_impedance
+from losslane.xsection.microstrip import Microstrip
+from losslane.xsection.rlgc import group_impedances
+from losslane.xsection.stripline import Stripline
+
+AIR = ConstantDielectric(1.0, name="air")
+F = np.array(
+    [0, 1e3, 1e4, 3e4, 1e5, 2e5, 5e5, 1e6, 2e6, 3e6, 5e6, 7e6, 1e7, 1.5e7, 2e7, 3e7, 5e7, 7e7]
+    + [1e8, 1.5e8, 2e8, 3e8, 5e8, 1e9, 3e9, 1e10]
+)
+#: ln(w/t) of the fitted strips' aspects (3-24 mil wide in 0.5-2 oz copper)
+KNOTS = np.log([1.094, 2.189, 4.379, 8.758, 17.52, 35.03])
+#: weight of the knots' second differences in the least squares (keeps alpha(w/t) and
+#: d(w/t) smooth between the fitted aspects)
+SMOOTH = 0.02
+#: weight of the line's inductance 1-10 MHz against the strip's resistance in the fit
+WEIGHT_L = 2.0
+
+
+def microstrip(w: float, h: float, t_oz: float, p_oz: float):
+    """(label, closed form, eddy geometry, plane thickness); lengths in mil, copper in oz."""
+    w_, h_, t, tp = w * MIL, h * MIL, t_oz * OZ_COPPER, p_oz * OZ_COPPER
+    cf = Microstrip(w_, h_, t, AIR, Metal(plane_thickness=tp))
+    geom = Geometry((Layer(h_, AIR),), (Trace.centred(0.0, w_, h_, t),))
+    return (("microstrip", w, h, t_oz, p_oz), cf, geom, tp)
+
+
+def stripline(w: float, lo: float, hi: float, t_oz: float, p_oz: float):
+    w_, lo_, hi_, t, tp = w * MIL, lo * MIL, hi * MIL, t_oz * OZ_COPPER, p_oz * OZ_COPPER
+    cf = Stripline(w_, lo_, hi_, t, AIR, Metal(plane_thickness=tp))
+    geom = Geometry(
+        (Layer(lo_, AIR), Layer(t + hi_, AIR)), (Trace.centred(0.0, w_, lo_, t),), True, True
+    )
+    return (("stripline", w, lo, hi, t_oz, p_oz), cf, geom, tp)
+
+
+def training_set() -> list:
+    out = []
+    for w, t_oz, wh in itertools.product([3, 6, 12, 24], [0.5, 1, 2], [0.7, 2.0]):
+        out.append(microstrip(w, round(w / wh, 3), t_oz, 1))
+    for w, t_oz, (wb, off) in itertools.product(
+        [3, 6, 12], [0.5, 1, 2], [(0.6, 0.5), (0.3, 0.5), (0.6, 0.3)]
+    ):
+        b = w / wb
+        tm = t_oz * OZ_COPPER / MIL
+        lo = off * (b - tm)
+        out.append(stripline(w, round(lo, 3), round(b - tm - lo, 3), t_oz, 1))
+    return out
+
+
+def solve(cases: list, store: Path) -> dict:
+    """{label: eddy results}, from ``store`` where already solved."""
+    done = pickle.loads(store.read_bytes()) if store.exists() else {}
+    t0 = time.time()
+    for i, (label, _, geom, tp) in enumerate(cases):
+        if label in done:
+            continue
+        res = eddy_impedance(geom, F, plane_thickness=tp, estimate=False)
+        done[label] = {
+            "r": res.r[:, 0, 0],
+            "l": res.l[:, 0, 0],
+            "strip": res.losses[res.names[0]][:, 0, 0],
+            "planes": sum(v[:, 0, 0] for k, v in res.losses.items() if k.endswith("plane")),
+        }
+        store.parent.mkdir(parents=True, exist_ok=True)
+        store.write_bytes(pickle.dumps(done))
+        print(
+            f"\r  {i + 1}/{len(cases)} eddy solves, {time.time() - t0:.0f} s",
+            end="",
+            file=sys.stderr,
+        )
+    print(file=sys.stderr)
+    return done
+
+
+def strip_data(cases: list, solved: dict) -> list:
+    """Per geometry: tau/delta, the eddy strip R / R_dc, the shape inputs, and for the
+    inductance 1-10 MHz: the eddy L and what the closed form has besides the strip's
+    internal inductance (external and the planes')."""
+    rows = []
+    f = F[1:]
+    band = (f >= 1e6) & (f <= 1e7)
+    for label, cf, _, _ in cases:
+        dims = [np.asarray(getattr(cf, k), float) for k in cf.dimensions]
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            groups = cf._groups(*dims)
+            rl = cf.rlgc(f[band])
+        g = groups[0]
+        l_strip = group_impedances(f[band], groups)[0][1]
+        tau = float(g.depth)
+        r_dc = 1.0 / (cf.metal.conductor.sigma * cf.width * cf.thickness)
+        delta = cf.metal.conductor.skin_depth(f)
+        rows.append(
+            {
+                "label": label,
+                "x": tau / delta,
+                "y": solved[label]["strip"][1:] / r_dc,
+                "aspect": float(g.aspect),
+                "proximity": float(g.proximity),
+                "band": band,
+                "l_rest": rl.l[:, 0, 0] - l_strip,
+                "l_eddy": solved[label]["l"][1:][band],
+                "l_scale": r_dc * cf.metal.conductor.sigma * MU0 * tau**2,
+            }
+        )
+    return rows
+
+
+def model_inductance(x, alpha, d, eps):
+    """Im Z / (w R_dc mu sigma tau^2) of the strip model at tau/delta = x: Re Q."""
+    s = 2j * x * x
+    z2 = alpha * alpha * s
+    z = np.sqrt(z2)
+    h = (z / np.tanh(z) - 1) / z2
+    q = alpha * h - (1 - 1 / alpha) / (d + s)
+    return (1 - eps) * q.real
+
+
+def model_ratio(x, alpha, d, eps):
+    """Re Z / R_dc of the strip model at tau/delta = x."""
+    s = 2j * x * x
+    z = np.sqrt(alpha * alpha * s)
+    phi = (z / np.tanh(z)) / alpha + (1 - 1 / alpha) / (1 + s / d)
+    return 1 + (1 - eps) * (phi.real - 1)
+
+
+def shape(q: np.ndarray, aspect: float, proximity: float):
+    n = len(KNOTS)
+    la, lp = np.log(aspect), np.log(proximity)
+    alpha = np.exp(np.interp(la, KNOTS, q[:n]))
+    d = np.exp(np.interp(la, KNOTS, q[n : 2 * n]))
+    e0, e1, e2 = q[2 * n :]
+    eps = e0 + e1 * np.clip(la, KNOTS[0], KNOTS[-1]) + e2 * np.clip(lp, np.log(0.5), np.log(3))
+    return alpha, d, eps / (1 + (proximity / cond.PROXIMITY_FADE) ** 2)
+
+
+def fit(rows: list) -> np.ndarray:
+    from scipy.optimize import least_squares
+
+    n = len(KNOTS)
+
+    def resid(q):
+        out = []
+        for r in rows:
+            sel = (r["x"] > 0.1) & (r["x"] < 25)
+            a, d, e = shape(q, r["aspect"], r["proximity"])
+            out.append(model_ratio(r["x"][sel], a, d, e) / r["y"][sel] - 1)
+            a_l = model_inductance(r["x"][r["band"]], a, d, e) * r["l_scale"]
+            out.append(WEIGHT_L * ((r["l_rest"] + a_l) / r["l_eddy"] - 1))
+        out.append(SMOOTH * np.diff(q[:n], 2))
+        out.append(SMOOTH * np.diff(q[n : 2 * n], 2))
+        return np.concatenate(out)
+
+    q0 = np.concatenate([np.full(n, np.log(2.0)), np.full(n, np.log(2.5)), [0.01, 0.005, 0.0]])
+    lo = np.concatenate([np.zeros(n), np.full(n, np.log(0.2)), [-0.05, -0.05, -0.05]])
+    hi = np.concatenate([np.full(n, np.log(6.0)), np.full(n, np.log(50.0)), [0.05, 0.05, 0.05]])
+    return least_squares(resid, q0, bounds=(lo, hi)).x
+
+
+def write_block(q: np.ndarray, note: str) -> Path:
+    n = len(KNOTS)
+    text = "\n".join(
+        [
+            "# BEGIN fitted strip transition (written by tools/fit_strip_transition.py; do not "
+            "edit)",
+            "#: knots of ln(width/thickness) and the fitted ln(alpha), ln(d) there; eps = (e0 + "
+            "e1 ln(w/t)",
+            "#: + e2 ln(w/h)) / (1 + (w/(8 h))^2); see ``transition_shape``",
+            "TRANSITION_KNOTS = (" + ", ".join(f"{v:.6f}" for v in KNOTS) + ")",
+            "TRANSITION_ALPHA = (" + ", ".join(f"{v:.6f}" for v in q[:n]) + ")",
+            "TRANSITION_D = (" + ", ".join(f"{v:.6f}" for v in q[n : 2 * n]) + ")",
+            "TRANSITION_EPS = (" + ", ".join(f"{v:.6f}" for v in q[2 * n :]) + ")",
+            "TRANSITION_NOTE = (",
+            *(f"    {json.dumps(part)}" for part in _wrap(note)),
+            ")",
+            "# END fitted strip transition",
+        ]
+    )
+    path = Path(cond.__file__)
+    src = path.read_text()
+    pat = re.compile(
+        r"^# BEGIN fitted strip transition.*?^# END fitted strip transition$", re.S | re.M
+    )
+    path.write_text(pat.sub(lambda _: text, src, count=1))
+    return path
+
+
+def _wrap(text: str, width: int = 86) -> list[str]:
+    lines, line = [], ""
+    for w in text.split():
+        if line and len(line) + len(w) + 1 > width:
+            lines.append(line + " ")
+            line = ""
+        line = f"{line} {w}" if line else w
+    return lines + [line]
+
+
+def line_errors(cases: list, solved: dict) -> list:
+    """Per geometry: the worst |R/R_eddy - 1| (1 kHz .. 10 GHz) and |L/L_eddy - 1|
+    (1 MHz .. 10 GHz) of the whole closed-form line."""
+    out = []
+    for label, cf, _, _ in cases:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            rl = cf.rlgc(F)
+        e = solved[label]
+        dr = rl.r[1:, 0, 0] / e["r"][1:] - 1
+        sel = F >= 1e6
+        dl = rl.l[sel, 0, 0] / e["l"][sel] - 1
+        out.append((label, float(np.abs(dr).max()), float(np.abs(dl).max())))
+    return out
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--write", action="store_true")
+    ap.add_argument("--cache", default="/tmp/losslane-fit-cache/strip-transition.pickle")
+    args = ap.parse_args()
+    cases = training_set()
+    solved = solve(cases, Path(args.cache))
+    rows = strip_data(cases, solved)
+    q = fit(rows)
+    worst = 0.0
+    for r in rows:
+        sel = (r["x"] > 0.1) & (r["x"] < 25)
+        a, d, e = shape(q, r["aspect"], r["proximity"])
+        err = np.abs(model_ratio(r["x"][sel], a, d, e) / r["y"][sel] - 1).max()
+        worst = max(worst, err)
+        print(f"{r['label']}: w/t {r['aspect']:5.2f}, strip R worst {100 * err:.2f} %")
+    note = (
+        f"{len(rows)} eddy-current solves (microstrip and stripline, 0.5-2 oz strips, 1 oz "
+        f"planes); strip R within {100 * worst:.1f} % for 0.1 <= tau/delta <= 25"
+    )
+    print(note)
+    n = len(KNOTS)
+    cond.TRANSITION_KNOTS = tuple(KNOTS)
+    cond.TRANSITION_ALPHA, cond.TRANSITION_D = tuple(q[:n]), tuple(q[n : 2 * n])
+    cond.TRANSITION_EPS = tuple(q[2 * n :])
+    if args.write:
+        print(f"wrote {write_block(q, note)}")
+    for label, er, el in line_errors(cases, solved):
+        print(f"{label}: whole line R {100 * er:.2f} %, L (>= 1 MHz) {100 * el:.2f} %")
+
+
+if __name__ == "__main__":
+    main()
