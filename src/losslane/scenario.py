@@ -27,7 +27,7 @@ from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.plotspec import PlotOptions, parse_plots
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
 from losslane.spec import check_keys, dimension, quantity, suggest, text
-from losslane.stackup import Stackup, parse_stackup, parse_stackups
+from losslane.stackup import Stackup, board_stackups
 from losslane.timesettings import TimeSettings, parse_time
 from losslane.units import parse_quantity
 from losslane.userfiles import check_readable
@@ -276,7 +276,7 @@ def scenario_from_data(
     resolve_dielectric = _resolver("dielectric", dielectrics, library.dielectrics)
     resolve_foil = _resolver("foil", foils, library.foils)
 
-    stackups = _stackups(data, library, resolve_dielectric, resolve_foil)
+    stackups = board_stackups(data, library, resolve_dielectric, resolve_foil)
     lines, line_models = _lines(data, stackups, resolve_dielectric, resolve_foil)
 
     sweep = _sweep(data["sweep"])
@@ -306,18 +306,6 @@ def scenario_from_data(
     )
     _check_pair_keys(channel, sc.conductors)  # also: mixing single-ended and pairs
     return sc
-
-
-def _stackups(
-    data: Mapping, library: Library, resolve_dielectric, resolve_foil
-) -> dict[str, Stackup]:
-    """The library files' stackups, overridden by the scenario's own of the same name."""
-    out = {
-        name: parse_stackup(name, spec, resolve_dielectric, resolve_foil, source)
-        for name, (spec, source) in library.stackups.items()
-    }
-    out.update(parse_stackups(data, "scenario", resolve_dielectric, resolve_foil))
-    return out
 
 
 def _lines(

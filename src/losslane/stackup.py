@@ -390,6 +390,19 @@ def parse_stackups(
     return out
 
 
+def board_stackups(
+    data: Mapping, library, resolve_dielectric: Resolver, resolve_foil: Resolver
+) -> dict[str, Stackup]:
+    """The stackups a scenario (or a sweep plan) ``data`` sees: its library files' (``library``:
+    a ``materials.library.Library``), overridden by its own of the same name."""
+    out = {
+        name: parse_stackup(name, spec, resolve_dielectric, resolve_foil, source)
+        for name, (spec, source) in library.stackups.items()
+    }
+    out.update(parse_stackups(data, "scenario", resolve_dielectric, resolve_foil))
+    return out
+
+
 def choose(stackups: Mapping[str, Stackup], name: object, key: str, user: str) -> Stackup:
     """The stackup a line or via uses: ``name`` (its ``stackup`` key; None: not given) ->
     the named one, else the unnamed ``[stackup]``, else the only one. ``user`` names what
@@ -418,6 +431,7 @@ def choose(stackups: Mapping[str, Stackup], name: object, key: str, user: str) -
 
 
 __all__ = [
+    "board_stackups",
     "DEFAULT",
     "Placement",
     "StackLayer",

@@ -80,6 +80,11 @@ def sweep_text(result) -> str:
             r = s[label]
             vals = ", ".join(f"{k} {v}" for k, v in r.items() if k not in ("case", s["rank"]))
             lines.append(f"  {label}: case {r['case']} ({vals}): {r[s['rank']]:.6g}")
+    if "model" in result.table.column_names:
+        from collections import Counter
+
+        used = Counter(v for v in result.table.column("model").to_pylist() if v is not None)
+        lines += ["", "models: " + ", ".join(f"{k} {n} cases" for k, n in sorted(used.items()))]
     if result.warnings:
         lines += ["", "warnings met (the models' validity ranges):"]
         lines += [f"  {w}" for w in result.warnings[:10]]
@@ -89,6 +94,24 @@ def sweep_text(result) -> str:
         lines += ["", "charts:"] + [f"  {p}" for p in result.charts]
     lines += ["", CAUTION]
     return "\n".join(lines)
+
+
+def _x_values(plan, tbl, x: str) -> tuple[list, str]:
+    """The x column for a chart and its axis label: a length in the unit its values are
+    written in (mil, um, ...), else the column as it is."""
+    import re
+
+    param = next((p for p in plan.parameters if p.key == x), None)
+    if f"{x}_m" not in tbl.column_names or param is None or not param.values:
+        return tbl.column(x).to_pylist(), x
+    m = re.fullmatch(
+        r"\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*", str(param.values[0])
+    )
+    metres = tbl.column(f"{x}_m").to_pylist()
+    if m is None or not m.group(2) or param.si is None or float(m.group(1)) == 0:
+        return metres, f"{x} (m)"
+    factor = param.si[0] / float(m.group(1))
+    return [None if v is None else v / factor for v in metres], f"{x} ({m.group(2)})"
 
 
 @user_text
@@ -105,26 +128,44 @@ def sweep_charts(result, stem: Path) -> list[Path]:
     group = spec.get("group")
     plt = pyplot()
     if y in tbl.column_names and x is not None and x in tbl.column_names:
-        xs = tbl.column(f"{x}_m" if f"{x}_m" in tbl.column_names else x).to_pylist()
+        xs, xlabel = _x_values(plan, tbl, x)
         ys = tbl.column(y).to_pylist()
         gs = tbl.column(group).to_pylist() if group in (tbl.column_names if group else []) else None
+        # one line per combination of the other varied keys, coloured by the group
+        tied = {k for g in plan.together if x in g or group in g for k in g}  # go with x/group
+        others = [
+            p.key
+            for p in plan.parameters
+            if p.kind != "random"
+            and p.key not in (x, group)
+            and p.key not in tied
+            and p.key in tbl.column_names
+        ]
+        rest = (
+            list(zip(*(tbl.column(k).to_pylist() for k in others), strict=True)) if others else None
+        )
         fig, ax = plt.subplots(figsize=(8.0, 4.6), dpi=110)
         try:
+            colours = plt.rcParams["axes.prop_cycle"].by_key()["color"]
             keys = list(dict.fromkeys(gs)) if gs else [None]
-            for g in keys:
-                pts = [
-                    (a, b)
-                    for a, b, c in zip(xs, ys, gs or [None] * len(xs), strict=True)
-                    if c == g and a is not None and b is not None
-                ]
-                pts.sort(key=lambda p: p[0])
-                if pts:
-                    ax.plot(*zip(*pts, strict=True), "o-", ms=3, label=str(g) if g else y)
-            ax.set_xlabel(f"{x} (m)" if f"{x}_m" in tbl.column_names else x)
+            for n, g in enumerate(keys):
+                colour = colours[n % len(colours)]
+                lines: dict = {}
+                for i, (a, b) in enumerate(zip(xs, ys, strict=True)):
+                    if (gs is None or gs[i] == g) and a is not None and b is not None:
+                        lines.setdefault(rest[i] if rest else None, []).append((a, b))
+                for k, pts in enumerate(lines.values()):
+                    pts.sort(key=lambda p: p[0])
+                    label = (str(g) if g is not None else y) if k == 0 else None
+                    ax.plot(*zip(*pts, strict=True), "o-", ms=3, lw=1.0, color=colour, label=label)
+            ax.set_xlabel(xlabel)
             ax.set_ylabel(y)
             ax.grid(True, alpha=0.3)
             ax.legend(fontsize=7, title=group)
-            ax.set_title(f"{plan.name}: {y} against {x}", fontsize=10)
+            heading = f"{plan.name}: {y} against {x}"
+            if others:
+                heading += f"\n(one line per {', '.join(others)})"
+            ax.set_title(heading, fontsize=10)
             fig.tight_layout()
             out.append(save_figure(fig, stem.with_name(stem.name + f"-{y}.png")))
         finally:

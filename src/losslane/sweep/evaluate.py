@@ -116,15 +116,26 @@ def _group_columns(
     return out
 
 
-def _one_line(spec: dict, plan: Plan, library) -> dict:
+def _one_line(spec: dict, plan: Plan, library, stackups=None) -> tuple[dict, str]:
+    """One case's result columns and the model that produced them ("closed-form" or
+    "field"); a line on a stackup ``layer`` is placed as a scenario's [lines.*] would be
+    (``xsection.on_layer``), with ``stackups`` (name -> Stackup)."""
     from losslane.report.line import line_json
     from losslane.spec import python_where
     from losslane.xsection.factory import section_from_spec
+    from losslane.xsection.on_layer import on_layer, section_on_layer, solver_of
 
-    sec = section_from_spec(spec, python_where("sweep"), library.dielectric, library.foil)
+    if on_layer(spec):
+        sec, model = section_on_layer(
+            "sweep", spec, "[base]", stackups or {}, library.dielectric, library.foil
+        )
+        solver = model.solver
+    else:
+        sec = section_from_spec(spec, python_where("sweep"), library.dielectric, library.foil)
+        solver = solver_of(sec)
     values = sec.line_values(np.asarray(plan.at_hz, float))
     report = getattr(sec, "solver_report", None)
-    return _line_columns(line_json(values, report() if report else None), plan.at)
+    return _line_columns(line_json(values, report() if report else None), plan.at), solver
 
 
 def _dimension_arrays(plan: Plan, idx: dict[str, np.ndarray], members: np.ndarray, dims):
@@ -159,6 +170,12 @@ def line_chunk(plan: Plan, cases: list[int], directory: Path) -> tuple[dict, lis
     from losslane.xsection import registry
 
     library = load_library([directory / f"library/{name}" for name in plan.libraries])
+    layered = "layer" in plan.base or any(p.key == "layer" for p in plan.parameters)
+    stackups = None
+    if layered:
+        from losslane.stackup import board_stackups
+
+        stackups = board_stackups(plan.boards, library, library.dielectric, library.foil)
     case_arr = np.asarray(cases, dtype=np.int64)
     idx = plan.index_arrays(case_arr)
     n = case_arr.size
@@ -180,6 +197,7 @@ def line_chunk(plan: Plan, cases: list[int], directory: Path) -> tuple[dict, lis
         group_of = np.zeros(n, dtype=np.int64)
     columns: dict[str, np.ndarray | list] = {}
     errors: list = [None] * n
+    models: list | None = [None] * n if layered else None  # which model, per case
 
     def put(name: str, members: np.ndarray, values) -> None:
         if name not in columns:
@@ -199,6 +217,7 @@ def line_chunk(plan: Plan, cases: list[int], directory: Path) -> tuple[dict, lis
                     errors[i] = str(exc)
                 continue
             fast = spec.get("solver", "closed-form") != "field" and cls.vectorized()
+            fast = fast and not layered
             dims = _dimension_arrays(plan, idx, members, cls.dimensions) if fast else None
             if dims is not None:
                 try:
@@ -211,13 +230,18 @@ def line_chunk(plan: Plan, cases: list[int], directory: Path) -> tuple[dict, lis
                 one = dict(plan.base)
                 one.update(case_values(plan, int(case_arr[i])))
                 try:
-                    for name, value in _one_line(one, plan, library).items():
+                    values, solver = _one_line(one, plan, library, stackups)
+                    for name, value in values.items():
                         put(name, np.array([i]), np.nan if value is None else value)
+                    if models is not None:
+                        models[i] = solver
                 except LossLaneError as exc:
                     errors[i] = str(exc)
     out: dict = value_columns(plan, idx)
     for name, col in columns.items():
         out[name] = [None if v != v else v for v in col.tolist()]  # NaN -> null
+    if models is not None:
+        out["model"] = models
     out["error"] = errors
     return out, list(dict.fromkeys(str(w.message) for w in caught))
 
@@ -261,6 +285,12 @@ BUILD_COLUMNS = {
     "ild_peak_db": ("fit", "ild_peak_db"),
     "ild_rms_db": ("fit", "ild_rms_db"),
     "guaranteed_passive_reciprocal": ("guaranteed_passive_reciprocal",),
+    "passivity": ("quality", "passivity"),
+    "reciprocity": ("quality", "reciprocity"),
+    "causality": ("quality", "causality"),
+    "skew_s": ("time_domain", "skew_s"),
+    "icn_mv": ("crosstalk", "icn_mv"),
+    "icr_at_nyquist_db": ("crosstalk", "icr_at_nyquist_db"),
 }
 
 
@@ -281,6 +311,9 @@ def build_columns(data: dict) -> dict[str, object]:
         out[f"band{k}_worst_loss_db"] = band.get("worst_loss_db")
         out[f"band{k}_worst_return_loss_db"] = band.get("worst_return_loss_db")
         out[f"band{k}_passed"] = band.get("passed")
+    for k, mask in enumerate(budget.get("masks", []) or [], start=1):
+        out[f"mask{k}_worst_margin_db"] = mask.get("worst_margin_db")
+        out[f"mask{k}_passed"] = mask.get("passed")
     return out
 
 

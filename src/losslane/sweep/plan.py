@@ -15,7 +15,10 @@ Plan keys (see the README, "Design sweeps"):
   dotted paths into it: ``"lines.host.width"``, ``"channel.3.length"`` (segments counted
   from 1), ``"channel.2.via.stub"``, ``"budget.data_rate"``;
 * ``combine = "product"`` (default: every combination) or ``"zip"`` (the lists side by
-  side, all of one length);
+  side, all of one length); ``together = [["layer", "kind"], ...]``: groups of keys whose
+  lists (of one length) are walked side by side inside the product;
+* ``[stackup]`` / ``[stackups.NAME]`` (or a library file's): the board a cross-section on
+  a ``layer`` takes its heights, copper and laminate from (as in a scenario);
 * ``[results]`` -- ``at`` (the frequencies of the per-frequency columns of a cross-section
   sweep), ``touchstone = true`` (a scenario sweep writes each case's files),
   ``rank`` (a result column the summary ranks the cases by), ``chart = { x, y, group }``;
@@ -51,6 +54,9 @@ TOP_KEYS = (
     "scheduler",
     "workers",
     "chunk",
+    "together",
+    "stackup",
+    "stackups",
 )
 COMBINE = ("product", "zip")
 DISTRIBUTIONS = ("normal", "uniform")
@@ -98,6 +104,10 @@ class Plan:
     workers: int | None = None
     chunk: int | None = None
     random: dict[str, np.ndarray] = field(default_factory=dict, repr=False)
+    #: groups of keys walked side by side inside the product (``together``)
+    together: tuple[tuple[str, ...], ...] = ()
+    #: the plan's own ``stackup`` / ``stackups`` tables, as written
+    boards: dict = field(default_factory=dict)
 
     @property
     def grid(self) -> tuple[Parameter, ...]:
@@ -105,11 +115,27 @@ class Plan:
         return tuple(p for p in self.parameters if p.kind != "random")
 
     @property
-    def shape(self) -> tuple[int, ...]:
-        sizes = [len(p.values) for p in self.grid]
+    def axes(self) -> tuple[tuple[Parameter, ...], ...]:
+        """The grid's axes: one per list or range, a ``together`` group sharing one (all of
+        them one axis with ``combine = "zip"``)."""
+        grid = self.grid
         if self.combine == "zip":
-            return (sizes[0] if sizes else 1,)
-        return tuple(sizes) or (1,)
+            return (grid,) if grid else ()
+        axes: list[list[Parameter]] = []
+        where: dict[tuple[str, ...], int] = {}
+        for p in grid:
+            group = next((g for g in self.together if p.key in g), None)
+            if group is not None and group in where:
+                axes[where[group]].append(p)
+                continue
+            if group is not None:
+                where[group] = len(axes)
+            axes.append([p])
+        return tuple(tuple(a) for a in axes)
+
+    @property
+    def shape(self) -> tuple[int, ...]:
+        return tuple(len(a[0].values) for a in self.axes) or (1,)
 
     @property
     def combinations(self) -> int:
@@ -122,11 +148,8 @@ class Plan:
     def indices(self, case: int) -> dict[str, int]:
         """{key: index into its values} of case number ``case`` (random keys: the draw)."""
         combo, draw = divmod(case, self.samples) if self.random else (case, 0)
-        if self.combine == "zip":
-            out = {p.key: combo for p in self.grid}
-        else:
-            idx = np.unravel_index(combo, self.shape) if self.grid else ()
-            out = {p.key: int(i) for p, i in zip(self.grid, idx, strict=True)}
+        idx = np.unravel_index(combo, self.shape) if self.grid else ()
+        out = {p.key: int(i) for a, i in zip(self.axes, idx, strict=True) for p in a}
         for key in self.random:
             out[key] = combo * self.samples + draw
         return out
@@ -138,11 +161,8 @@ class Plan:
             combo, draw = np.divmod(cases, self.samples)
         else:
             combo, draw = cases, np.zeros_like(cases)
-        if self.combine == "zip":
-            out = {p.key: combo for p in self.grid}
-        else:
-            idx = np.unravel_index(combo, self.shape) if self.grid else ()
-            out = {p.key: np.asarray(i) for p, i in zip(self.grid, idx, strict=True)}
+        idx = np.unravel_index(combo, self.shape) if self.grid else ()
+        out = {p.key: np.asarray(i) for a, i in zip(self.axes, idx, strict=True) for p in a}
         for key in self.random:
             out[key] = combo * self.samples + draw
         return out
@@ -152,6 +172,7 @@ class Plan:
         h = hashlib.sha256()
         h.update(repr((self.base, self.scenario, self.parameters, self.combine)).encode())
         h.update(repr((self.samples, self.seed, self.at, self.touchstone)).encode())
+        h.update(repr((self.together, self.boards)).encode())
         for name in sorted(self.files):
             h.update(name.encode())
             h.update(self.files[name])
@@ -365,6 +386,7 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
 
         allowed = set(base) | set(api.length_keys()) | {"kind", "dielectric", "foil"}
         allowed |= {"plane_foil", "conductivity", "solver"} | set(api.field_keys())
+        allowed |= {"layer", "stackup"}
         for p in params:
             if p.key not in allowed:
                 raise LossLaneError(
@@ -383,6 +405,11 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
                     '"lines.host.width" or "channel.3.length"'
                 )
     grid = [p for p in params if p.kind != "random"]
+    together = _together(data.get("together", []), params, combine)
+    if base is None and any(k in data for k in ("stackup", "stackups")):
+        raise LossLaneError(
+            "plan: [stackup] belongs in the scenario (or its library) of a scenario sweep"
+        )
     if combine == "zip" and len({len(p.values) for p in grid}) > 1:
         sizes = ", ".join(f"{p.key}: {len(p.values)}" for p in grid)
         raise LossLaneError(f'plan: combine = "zip" needs lists of one length ({sizes})')
@@ -424,6 +451,8 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
         data.get("scheduler"),
         data.get("workers"),
         data.get("chunk"),
+        together=together,
+        boards={k: data[k] for k in ("stackup", "stackups") if k in data},
     )
     if plan.combinations * (samples if randoms else 1) > MAX_CASES:
         raise LossLaneError(f"plan: {plan.cases} cases is more than the {MAX_CASES} allowed")
@@ -432,6 +461,45 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
         total = plan.combinations * plan.samples
         plan.random.update({p.key: _draws(p, total, rng) for p in randoms})
     return plan
+
+
+def _together(spec: object, params: tuple[Parameter, ...], combine: str) -> tuple:
+    """``together``: groups of varied keys (lists or ranges of one length) walked side by
+    side inside the product."""
+    if spec in ([], None):
+        return ()
+    w = "plan: together"
+    if not isinstance(spec, list) or not all(isinstance(g, list) for g in spec):
+        raise LossLaneError(
+            f'{w} = {spec!r}: expected a list of key lists, e.g. [["layer", "kind"]]'
+        )
+    if combine == "zip":
+        raise LossLaneError(f'{w}: with combine = "zip" every key already goes together')
+    by_key = {p.key: p for p in params}
+    seen: set[str] = set()
+    groups = []
+    for g in spec:
+        if len(g) < 2:
+            raise LossLaneError(f"{w}: {g!r}: a group names at least two keys of [vary]")
+        for key in g:
+            p = by_key.get(key)
+            if p is None:
+                raise LossLaneError(
+                    f"{w}: {key!r} is not varied; {suggest(str(key), sorted(by_key))}"
+                )
+            if p.kind == "random":
+                raise LossLaneError(f"{w}: {key!r} has random values; group lists or ranges")
+            if key in seen:
+                raise LossLaneError(f"{w}: {key!r} is in two groups")
+            seen.add(key)
+        sizes = {len(by_key[k].values) for k in g}
+        if len(sizes) > 1:
+            listed = ", ".join(f"{k}: {len(by_key[k].values)}" for k in g)
+            raise LossLaneError(
+                f"{w}: {g!r} go side by side, so need lists of one length ({listed})"
+            )
+        groups.append(tuple(str(k) for k in g))
+    return tuple(groups)
 
 
 def load_plan(path: str | Path) -> Plan:
