@@ -9,6 +9,7 @@ checked with are exact (1 mil = 25.4 um by the 1959 international agreement; SI 
 
 from __future__ import annotations
 
+import dataclasses
 from pathlib import Path
 
 import pytest
@@ -17,6 +18,8 @@ from hostile_common import SMALL, error_line, run_cli
 from losslane.errors import LossLaneError
 from losslane.limits import DIMENSION, KIND_RANGES
 from losslane.units import parse_conductivity, parse_frequency, parse_length, parse_number
+from losslane.xsection import registry
+from losslane.xsection.coplanar import Cpw
 
 LINE = ["line", "microstrip", "--height", "3.5mil", "--thickness", "1.4mil"]
 MATERIAL = ["--dk", "3.7", "--df", "0.01", "--dk-at", "10GHz"]
@@ -193,14 +196,32 @@ def test_dielectric_fit_errors_name_the_options(capsys):
     assert "--dk-at 0Hz" in msg and "between the model's corners" in msg
 
 
-def test_a_model_refusal_names_its_section(capsys, tmp_path):
-    # found by the hostile-input suite: a coplanar strip too thick for its gap was refused
-    # without saying which [lines.*] section; Gupta's thickness widening closes the gap
-    text = SMALL.replace('kind = "microstrip"', 'kind = "cpw"\ngap = "3 mil"').replace(
-        'thickness = "1.4 mil"', 'thickness = "2.9 mil"'
+@dataclasses.dataclass(frozen=True)
+class _RefusingCpw(Cpw):
+    """A stand-in kind whose model refuses a strip as thick as its gap, as the coplanar
+    closed form once did (Gupta's thickness widening closed the gap); the corrected
+    coplanar model now answers there with an extrapolation warning, so the refusal path
+    is checked with this registered kind."""
+
+    kind = "refusing-cpw"
+
+    def __post_init__(self) -> None:
+        if self.thickness >= self.gap:
+            raise LossLaneError(
+                f"{self.kind}: thickness = {self.thickness:g} m closes the gap for "
+                f"gap = {self.gap:g} m"
+            )
+
+
+def test_a_model_refusal_names_its_section(capsys, tmp_path, monkeypatch):
+    # found by the hostile-input suite: a model's own refusal did not say which [lines.*]
+    # section it came from
+    monkeypatch.setattr(registry, "MODELS", registry.MODELS + (_RefusingCpw,))
+    text = SMALL.replace('kind = "microstrip"', 'kind = "refusing-cpw"\ngap = "3 mil"').replace(
+        'thickness = "1.4 mil"', 'thickness = "3 mil"'
     )
     msg = build_refused(capsys, tmp_path, text)
-    assert msg.startswith("error: [lines.host]: cpw: thickness") and "gap" in msg
+    assert msg.startswith("error: [lines.host]: refusing-cpw: thickness") and "gap" in msg
 
 
 @pytest.mark.parametrize(
@@ -218,12 +239,13 @@ def test_design_numbers_refuse_full_width_digits(capsys, argv, key):
     assert msg.startswith(f"error: {key} = ") and "ASCII digits" in msg
 
 
-def test_a_model_refusal_on_the_command_line_names_the_options(capsys):
+def test_a_model_refusal_on_the_command_line_names_the_options(capsys, monkeypatch):
+    monkeypatch.setattr(registry, "MODELS", registry.MODELS + (_RefusingCpw,))
     msg = refused(
         capsys,
         "line",
-        "cpw",
+        "refusing-cpw",
         *("--width", "5mil", "--height", "5mil", "--gap", "3mil", "--thickness", "3mil"),
         *MATERIAL,
     )
-    assert "cpw: --thickness = " in msg and "for --gap = " in msg
+    assert "refusing-cpw: --thickness = " in msg and "for --gap = " in msg

@@ -950,11 +950,11 @@ class ExtractResult:
 
     def to_json(self) -> dict:
         """The `losslane extract --json` object."""
-        from losslane.report.measure import finite_json
+        from losslane.report.strict_json import sanitize
 
         data = self.extraction.to_json()
         data["files"] = [str(p) for p in self.files]
-        return finite_json(data)
+        return sanitize(data)
 
 
 def extract(
@@ -1005,7 +1005,7 @@ class FitResult:
 
     def to_json(self) -> dict:
         """The `losslane fit --json` object."""
-        from losslane.report.measure import finite_json
+        from losslane.report.strict_json import sanitize
 
         data = self.fit.to_json()
         ext = self.extraction
@@ -1024,7 +1024,7 @@ class FitResult:
             "foil": self.library_names[1],
         }
         data["files"] = [str(p) for p in self.files]
-        return finite_json(data)
+        return sanitize(data)
 
 
 #: option values the command line passes by default; they do not count as given options

@@ -10,12 +10,11 @@ inside the chart functions (Agg backend).
 
 from __future__ import annotations
 
-import math
 import shutil
 import tempfile
 from collections.abc import Callable
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -31,7 +30,6 @@ __all__ = [
     "EXTRACT_FILES",
     "FIT_FILES",
     "extract_text",
-    "finite_json",
     "fit_text",
     "write_extract_files",
     "write_fit_files",
@@ -44,21 +42,6 @@ NOTE = "extracted from measured coupons (two-line eigenvalue method)"
 FLAG_COLOUR = "#c0392b"
 BAND_COLOUR = "#2b9a73"
 LINE_COLOUR = "#3b75af"
-
-
-def finite_json(value: Any) -> Any:
-    """``value`` (dicts, lists, numbers) with every non-finite float replaced by None, so
-    ``json.dumps(..., allow_nan=False)`` accepts it."""
-    if isinstance(value, dict):
-        return {k: finite_json(v) for k, v in value.items()}
-    if isinstance(value, list | tuple):
-        return [finite_json(v) for v in value]
-    if isinstance(value, float | np.floating):
-        v = float(value)
-        return v if math.isfinite(v) else None
-    if isinstance(value, np.integer):
-        return int(value)
-    return value
 
 
 # ----------------------------------------------------------------------- writing
