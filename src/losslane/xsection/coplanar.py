@@ -20,7 +20,20 @@ Methods and validity (ranges from memory):
   filling factor of the formulas above times fitted functions of w/gap, h/gap, t/gap and
   Dk, so that Z0 and eps_eff agree with the 2-D field solver within the box of
   ``coplanar_limits`` (the conformal mapping's partial capacitances alone are 2-4 % off
-  on thin substrates, h/gap < 1);
+  on thin substrates, h/gap < 1). Valid (fitted and verified) for 0.1 <= w/gap <= 10,
+  0.2 <= h/gap <= 20, t/gap <= 0.5, 1 <= Dk <= 20; outside the box the model warns and
+  the correction is held at the box's edge (``Coplanar.edge_gap``): each ratio is
+  clamped, which keeps it constant in the dimension that left the box, except for GCPW
+  on a substrate thinner than 0.2 gap. There the lower plane holds the field and the
+  coplanar grounds, more than five substrate heights away, barely take part (field
+  solver: Z0 rises by 0.09-0.19 % from h/gap = 0.2 to 0.05), while the conformal
+  mapping's upper half-plane term keeps a logarithmic gap dependence (+1...+5 % over the
+  same span); so the correction and that term are both evaluated at the edge's gap
+  h/0.2, and only the terms that fade physically follow the real gap (the lower plane's
+  tanh mapping and the side walls). Z0 then rises with the gap and falls with the width
+  everywhere, and stays within 0.3 % of the field solver down to h/gap = 0.05 for thin
+  copper (t/h = 0.05) and within 2.5 % for t/h = 0.25, w/h = 0.5 (the side walls'
+  2 t/gap overstates the gap dependence there);
 * dispersion: M. Y. Frankel et al., IEEE Trans. MTT 39(6), 1991:
   sqrt(eps_eff(f)) = sqrt(eps_q) + (sqrt(eps_r) - sqrt(eps_q)) / (1 + a (f/f_TE)^-1.8),
   f_TE = c/(4 h sqrt(eps_r - 1)), a = exp(u ln(w/gap) + v), u = 0.54 - 0.64 p + 0.015 p^2,
@@ -67,7 +80,12 @@ def ratio_tanh(a: ArrayLike, b: ArrayLike, h: ArrayLike) -> np.ndarray:
     log_m = 2.0 * (_log_sinh(x1) - _log_cosh(x1) - _log_sinh(x2) + _log_cosh(x2))
     # 1 - k^2 = sinh(x2 - x1) sinh(x2 + x1) / (cosh^2 x1 sinh^2 x2)
     log_m1 = _log_sinh(x2 - x1) + _log_sinh(x2 + x1) - 2.0 * _log_cosh(x1) - 2.0 * _log_sinh(x2)
-    return k_ratio(np.exp(log_m), np.exp(log_m1))
+    # k' -> 0 (a strip hundreds of substrate heights wide, where exp(log_m1) underflows):
+    # K(k)/K(k') -> ln(16 / k'^2) / pi (Abramowitz & Stegun 17.3.26 with K(k') -> pi/2),
+    # exact in double precision below k'^2 = 1e-30
+    tiny = log_m1 < -69.0
+    exact = k_ratio(np.exp(log_m), np.exp(np.where(tiny, -69.0, log_m1)))
+    return np.where(tiny, (np.log(16.0) - log_m1) / np.pi, exact)
 
 
 def ratio_sinh(a: ArrayLike, b: ArrayLike, h: ArrayLike) -> np.ndarray:
@@ -85,12 +103,18 @@ def wall(t: ArrayLike, gap: ArrayLike) -> np.ndarray:
 
 
 def cpw_z_air(
-    w: ArrayLike, gap: ArrayLike, t: ArrayLike, h: ArrayLike, grounded: bool
+    w: ArrayLike,
+    gap: ArrayLike,
+    t: ArrayLike,
+    h: ArrayLike,
+    grounded: bool,
+    upper_gap: ArrayLike | None = None,
 ) -> np.ndarray:
     """Air-filled impedance of CPW or GCPW: the conformal mapping of the zero-thickness
-    line plus the side walls' capacitance."""
+    line plus the side walls' capacitance. ``upper_gap`` (default ``gap``): the gap the
+    upper half-plane's coplanar term sees (see ``Coplanar.edge_gap``)."""
     w = np.asarray(w, float)
-    r0 = k_ratio_of_modulus(w / (w + 2 * gap))
+    r0 = k_ratio_of_modulus(w / (w + 2 * (gap if upper_gap is None else upper_gap)))
     if grounded:
         a, b = w / 2.0, w / 2.0 + gap
         k_air = 2.0 * (r0 + ratio_tanh(a, b, h))
@@ -100,13 +124,20 @@ def cpw_z_air(
 
 
 def cpw_eps_quasi_static(
-    w: ArrayLike, gap: ArrayLike, t: ArrayLike, h: ArrayLike, er: ArrayLike, grounded: bool
+    w: ArrayLike,
+    gap: ArrayLike,
+    t: ArrayLike,
+    h: ArrayLike,
+    er: ArrayLike,
+    grounded: bool,
+    upper_gap: ArrayLike | None = None,
 ) -> np.ndarray:
     """Quasi-static eps_eff: the zero-thickness partial capacitances, with the side walls'
-    capacitance in air (exactly the zero-thickness value at t = 0)."""
+    capacitance in air (exactly the zero-thickness value at t = 0). ``upper_gap`` as in
+    ``cpw_z_air``."""
     w, gap, er = (np.asarray(v, float) for v in (w, gap, er))
     a, b = w / 2.0, w / 2.0 + gap
-    r0 = k_ratio_of_modulus(a / b)
+    r0 = k_ratio_of_modulus(a / (a + (gap if upper_gap is None else upper_gap)))
     if grounded:
         r3 = ratio_tanh(a, b, h)
         eps = 1.0 + r3 / (r0 + r3) * (er - 1.0)
@@ -1161,8 +1192,19 @@ class Coplanar(CrossSection):
     }
 
     @classmethod
-    def static_parameters(cls, dims: Mapping[str, ArrayLike]) -> tuple[np.ndarray, ...]:
+    def edge_gap(cls, dims: Mapping[str, ArrayLike]) -> np.ndarray:
+        """The gap at which the correction is evaluated: the gap itself, except for GCPW
+        on a substrate thinner than the box's lowest h/gap, where it is the gap of the
+        box's edge, height / (h/gap)_low (the module docstring says why). The correction's
+        series then see a geometry inside the box (or clamped to it ratio by ratio)."""
         gap = np.asarray(dims["gap"], float)
+        if not cls.grounded:
+            return gap
+        return np.minimum(gap, np.asarray(dims["height"], float) / AXES[1].low)
+
+    @classmethod
+    def static_parameters(cls, dims: Mapping[str, ArrayLike]) -> tuple[np.ndarray, ...]:
+        gap = cls.edge_gap(dims)
         return tuple(np.asarray(dims[k], float) / gap for k in ("width", "height", "thickness"))
 
     @classmethod
@@ -1179,6 +1221,25 @@ class Coplanar(CrossSection):
         w, s, h, t = (dims[k] for k in ("width", "gap", "height", "thickness"))
         z = cpw_z_air(w, s, t, h, cls.grounded)
         return {"single": (z, cpw_eps_quasi_static(w, s, t, h, er, cls.grounded))}
+
+    @classmethod
+    def base_static(
+        cls, dims: Mapping[str, ArrayLike], er: ArrayLike
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """The published formulas with the upper half-plane's coplanar term at
+        ``edge_gap`` (the published formulas themselves inside the box)."""
+        w, s, h, t = (dims[k] for k in ("width", "gap", "height", "thickness"))
+        se = cls.edge_gap(dims)
+        z = cpw_z_air(w, s, t, h, cls.grounded, se)
+        return {"single": (z, cpw_eps_quasi_static(w, s, t, h, er, cls.grounded, se))}
+
+    @classmethod
+    def base_air(
+        cls, dims: Mapping[str, ArrayLike], published_air: Mapping[str, np.ndarray]
+    ) -> dict[str, np.ndarray]:
+        if not cls.grounded:
+            return dict(published_air)
+        return {m: z for m, (z, _) in cls.base_static(dims, 1.0).items()}
 
     def mode_arrays(
         self,
@@ -1215,9 +1276,16 @@ class Coplanar(CrossSection):
         if corr is not None and corr.loss:
             # the field solver's factors, fitted (the recession above splits the loss
             # between strip and grounds poorly: one thickness serves both)
-            params = self.static_parameters({"width": w, "gap": s, "height": h, "thickness": t})
-            g_sig = corr.loss_value("strip", params) / s
-            g_cop = corr.loss_value("coplanar grounds", params) / s
+            dims = {"width": w, "gap": s, "height": h, "thickness": t}
+            params = self.static_parameters(dims)
+            # fitted as ln(G * gap) at the edge's gap; below the box's h/gap a grounded
+            # line's strip and plane are those of the edge (they see the plane, not the
+            # grounds: field solver within 2 % down to h/gap = 0.05), and the grounds'
+            # share fades as (gap_edge / gap)^3 (the field solution's decay between
+            # h/gap = 0.2 and 0.05, for w/h 0.5-8: exponent 3-3.6)
+            se = self.edge_gap(dims)
+            g_sig = corr.loss_value("strip", params) / se
+            g_cop = corr.loss_value("coplanar grounds", params) / se * (se / s) ** 3
         m = self.metal
         groups = [
             ConductorGroup(
@@ -1236,7 +1304,7 @@ class Coplanar(CrossSection):
                 za, p0, lambda p, d: (p[0], p[1], p[2], p[3] + d), np.minimum(scale, h)
             )
             if corr is not None and corr.loss:
-                g_pl = corr.loss_value("plane", params) / s
+                g_pl = corr.loss_value("plane", params) / se
             groups.append(
                 ConductorGroup(
                     "plane", g_pl, m.plane_thickness, m.conductor, m.plane_roughness, wide=True
