@@ -653,8 +653,6 @@ def build_result(scenario, points=None, skip_fit: bool = False) -> BuildResult:
     from losslane.budget import FitOff, evaluate_budget, fit_channel, validate
     from losslane.channel import build_channel
     from losslane.channel_views import channel_inspection
-    from losslane.crosstalk.evaluate import evaluate_crosstalk
-    from losslane.measure.overlay import measured_overlay
     from losslane.report.channel import summary_frequencies, summary_rows
 
     if points is None:
@@ -667,8 +665,15 @@ def build_result(scenario, points=None, skip_fit: bool = False) -> BuildResult:
     fit = fit_channel(channel, enabled=not skip_fit)
     if fit is None:
         fit = FitOff("the sweep is too coarse for the four-term fit")
-    overlay = measured_overlay(channel, summary_frequencies(channel))
-    crosstalk = evaluate_crosstalk(channel)
+    overlay = crosstalk = None  # imported only when the scenario asks for them
+    if scenario.compare is not None:
+        from losslane.measure.overlay import measured_overlay
+
+        overlay = measured_overlay(channel, summary_frequencies(channel))
+    if scenario.crosstalk is not None:
+        from losslane.crosstalk.evaluate import evaluate_crosstalk
+
+        crosstalk = evaluate_crosstalk(channel)
     views = channel_inspection(channel)
     return BuildResult(
         channel,
