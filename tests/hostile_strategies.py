@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from hypothesis import strategies as st
 
+from losslane.bandspec import QUANTITIES
 from losslane.materials.library import load_library
 from losslane.network.ports import ORDERS
 from losslane.xsection import registry
@@ -339,9 +340,10 @@ def touchstone_text(
 
 
 @st.composite
-def model_file(draw, nports: int, f_top: float, z0: float) -> str:
+def model_file(draw, nports: int, f_top: float, z0: float, gain: float = 0.0) -> str:
     """A valid Touchstone text of a lossy line (2-port) or two lines of a pair (4-port,
-    numbered in-in-out-out), from 0 Hz to at least ``f_top``."""
+    numbered in-in-out-out), from 0 Hz to at least ``f_top``; ``gain`` scales S by
+    1 + gain (a measurement's calibration error: not passive)."""
     points = draw(st.integers(2, 30))
     top = f_top * draw(st.floats(1.0, 1.5))
     f = np.linspace(0.0, top, points)
@@ -365,6 +367,7 @@ def model_file(draw, nports: int, f_top: float, z0: float) -> str:
         for leg, ls in enumerate(lines):  # in-in-out-out: leg k runs port k -> port k + 2
             idx = [leg, leg + 2]
             s[np.ix_(range(f.size), idx, idx)] = ls
+    s = s * (1.0 + gain)
     form = draw(st.sampled_from(["ri", "ma", "db"]))
     unit = draw(st.sampled_from(["Hz", "MHz", "GHz"]))
     if unit != "Hz":
@@ -383,6 +386,13 @@ class Case:
     differential: bool = False
     key: str | None = None
     what: str = "valid"
+    #: other keys a refusal may name instead of ``key`` (a renamed layer or trace is
+    #: refused where it is referred to)
+    also: tuple[str, ...] = ()
+    #: a channel on group lines (2n-port): its port count
+    nports: int | None = None
+    #: whether an imported file was accepted as it is (no 1e-9 guarantee)
+    as_is: bool = False
 
 
 @st.composite
@@ -483,13 +493,43 @@ def valid_scenario(draw) -> Case:
             seg["name"] = draw(NAME_TEXT.filter(lambda s: s.strip()))
         channel.append(seg)
     doc["channel"] = channel
-    if draw(st.booleans()):
-        doc["budget"] = draw(budget_spec(f, any("capacitor" in s for s in channel)))
+    add_sections(draw, doc, files, f, any("capacitor" in s for s in channel), diff, z0)
     return Case(doc, files, diff)
 
 
+def add_sections(draw, doc: dict, files: dict, f: np.ndarray, dc_block: bool, diff: bool, z0):
+    """The optional sections of a valid scenario: [budget], [plots], [time], [compare]."""
+    if draw(st.booleans()):
+        doc["budget"] = draw(budget_spec(f, dc_block, diff))
+    if draw(st.integers(0, 3)) == 0:
+        doc["plots"] = draw(plots_spec(f))
+    if draw(st.integers(0, 3)) == 0:
+        doc["time"] = draw(time_spec(f))
+    if draw(st.integers(0, 4)) == 0:
+        nports = 4 if diff else 2
+        # a measurement: data, not a block (it may hold a little gain and need not cover
+        # the sweep)
+        fname = f"measured.s{nports}p"
+        reach = draw(st.floats(0.3, 1.2)) if f[0] == 0 else draw(st.floats(1.0, 1.2))
+        files[fname] = draw(
+            model_file(nports, float(f[-1]) * reach, z0, gain=draw(st.sampled_from([0, 0, 1e-3])))
+        )
+        compare: dict = {"measured": fname}
+        if diff and draw(st.booleans()):
+            compare["order"] = draw(st.sampled_from(ORDERS))
+        if draw(st.booleans()):
+            compare["label"] = draw(NAME_TEXT.filter(lambda s: s.strip()))
+        doc["compare"] = compare
+
+
+def _ghz(x: float) -> str:
+    return f"{float(x) / 1e9:.12g} GHz"
+
+
 @st.composite
-def budget_spec(draw, f: np.ndarray, dc_block: bool) -> dict:
+def budget_spec(draw, f: np.ndarray, dc_block: bool, differential: bool = False) -> dict:
+    """A ``[budget]`` that fits the sweep ``f``: Nyquist and check points, bands, masks,
+    the default-band ``min_return_loss``, a fit band or ``fit = false``."""
     budget: dict = {}
     # points read through an unbounded DC point are refused: stay above f[1] then
     # (the first sweep point above DC included: values there are read with DC's weight 0)
@@ -506,7 +546,7 @@ def budget_spec(draw, f: np.ndarray, dc_block: bool) -> dict:
     for _ in range(draw(st.integers(0, 2))):
         if not choices.size:
             break
-        c = {"at": f"{float(draw(st.sampled_from(choices))) / 1e9:.12g} GHz"}
+        c = {"at": _ghz(draw(st.sampled_from(choices)))}
         if draw(st.booleans()):
             c["max_loss"] = f"{draw(st.floats(0.5, 80)):.3g} dB"
         else:
@@ -514,7 +554,115 @@ def budget_spec(draw, f: np.ndarray, dc_block: bool) -> dict:
         checks.append(c)
     if checks:
         budget["check"] = checks
+    bands = []
+    for _ in range(draw(st.integers(0, 2))):
+        i, j = sorted(draw(st.lists(st.integers(0, f.size - 1), min_size=2, max_size=2)))
+        band: dict = {"start": _ghz(f[i]), "stop": _ghz(f[j])}
+        limits = draw(st.sampled_from(["loss", "return", "both"]))
+        if limits != "return":
+            band["max_loss"] = f"{draw(st.floats(0.1, 80)):.3g} dB"
+        if limits != "loss":
+            band["min_return_loss"] = f"{draw(st.floats(1, 30)):.3g} dB"
+        if draw(st.booleans()):
+            band["name"] = draw(NAME_TEXT.filter(lambda s: s.strip()))
+        bands.append(band)
+    if bands:
+        budget["band"] = bands
+    masks = []
+    quantities = [q for q, (_, diff) in QUANTITIES.items() if differential or not diff]
+    for _ in range(draw(st.integers(0, 2))):
+        log_f = f[-1] > 0 and draw(st.booleans())
+        pool = f[f > 0] if log_f else f
+        if pool.size < 2:
+            break
+        i, j = sorted(draw(st.lists(st.integers(0, pool.size - 1), min_size=2, max_size=2)))
+        if i == j:
+            continue
+        # corners in between: on the sweep's grid or off it, in whole kHz
+        inner = (
+            draw(
+                st.lists(
+                    st.integers(int(pool[i] / 1e3) + 1, max(int(pool[j] / 1e3) - 1, 0)),
+                    max_size=2,
+                    unique=True,
+                )
+            )
+            if pool[j] - pool[i] > 2e3
+            else []
+        )
+        inner = sorted(1e3 * x for x in inner)
+        freqs = [float(pool[i])] + [x for x in inner if pool[i] < x < pool[j]] + [float(pool[j])]
+        freqs = [x for k, x in enumerate(freqs) if k == 0 or x > freqs[k - 1] * (1 + 1e-9)]
+        if len(freqs) < 2:
+            continue
+        mask: dict = {
+            "quantity": draw(st.sampled_from(quantities)),
+            "points": [[_ghz(x), f"{draw(st.floats(0.01, 90)):.4g} dB"] for x in freqs],
+        }
+        if log_f or draw(st.booleans()):
+            mask["interpolation"] = "log-frequency" if log_f else "linear"
+        if draw(st.booleans()):
+            mask["name"] = draw(NAME_TEXT.filter(lambda s: s.strip()))
+        masks.append(mask)
+    if masks:
+        budget["mask"] = masks
+    if draw(st.integers(0, 3)) == 0:
+        budget["min_return_loss"] = f"{draw(st.floats(1, 30)):.3g} dB"
+    fit = draw(st.sampled_from(["default", "default", "off", "band"]))
+    if fit == "off":
+        budget["fit"] = False
+    elif fit == "band":
+        lo = 1 if (dc_block and f[0] == 0) else 0
+        if f.size - lo >= 8:  # the four-term fit needs 8 points in its band
+            i = draw(st.integers(lo, f.size - 8))
+            j = draw(st.integers(i + 7, f.size - 1))
+            budget["fit_start"], budget["fit_stop"] = _ghz(f[i]), _ghz(f[j])
     return budget  # may be empty: a [budget] section that judges nothing
+
+
+@st.composite
+def plots_spec(draw, f: np.ndarray) -> dict:
+    """A ``[plots]`` section that fits the sweep ``f`` (uniform, at least 2 points)."""
+    spec: dict = {}
+    step = float(f[1] - f[0])
+    if f.size >= 2 and draw(st.booleans()):
+        i, j = sorted(
+            draw(st.lists(st.integers(0, f.size - 1), min_size=2, max_size=2, unique=True))
+        )
+        spec["focus"] = [_ghz(f[i]), _ghz(f[j])]
+    if draw(st.booleans()):
+        lo = draw(st.floats(0, 20))
+        spec["loss_range"] = [f"{lo:.3g} dB", f"{lo + draw(st.floats(0.5, 60)):.3g} dB"]
+    if draw(st.booleans()):
+        spec["auto_focus"] = draw(st.booleans())
+    half = (f[-1] - f[0]) / 2
+    if half >= step and draw(st.booleans()):
+        k = draw(st.integers(1, max(1, int(half // step))))
+        spec["delay_aperture"] = f"{k * step / 1e6:.12g} MHz"
+    if draw(st.booleans()):
+        spec["rf_views"] = draw(st.booleans())
+    return spec
+
+
+@st.composite
+def time_spec(draw, f: np.ndarray) -> dict:
+    """A ``[time]`` section: a rise time the sweep carries (>= 0.5 / stop), a data rate and
+    its modulation."""
+    spec: dict = {}
+    stop = float(f[-1])
+    window = 1.0 / float(f[1] - f[0])  # the time window 1 / step
+    if draw(st.booleans()):
+        longest = min(20.0 / stop, 0.49 * window)
+        if longest > 0.51 / stop:
+            rise = draw(st.floats(0.51 / stop, longest))
+            spec["rise_time"] = f"{rise * 1e12:.6g} ps"
+    if draw(st.booleans()):
+        modulation = draw(st.sampled_from(["nrz", "pam4"]))
+        lowest = 7.01 * (2 if modulation == "pam4" else 1) / window  # 7 unit intervals
+        spec["data_rate"] = f"{max(draw(st.floats(0.05, 2.0)) * stop, lowest) / 1e9:.6g} Gb/s"
+        if modulation == "pam4" or draw(st.booleans()):
+            spec["modulation"] = modulation
+    return spec
 
 
 # --- breaking a valid scenario -----------------------------------------------------------
@@ -552,56 +700,130 @@ REQUIRED = {
     ("lines", "*", "dielectric"),
     ("lines", "*", "width"),
     ("lines", "*", "thickness"),
+    ("lines", "*", "traces"),
+    ("lines", "*", "traces", "*", "name"),
+    ("lines", "*", "traces", "*", "width"),
+    ("lines", "*", "traces", "*", "gap"),
     ("dielectrics", "*", "dk"),
     ("channel", "*", "length"),
     ("channel", "*", "via", "barrel"),
     ("channel", "*", "via", "impedance"),
     ("channel", "*", "via", "dielectric"),
+    ("channel", "*", "via", "from"),
+    ("channel", "*", "via", "to"),
+    ("channel", "*", "via", "drill"),
+    ("channel", "*", "via", "antipad"),
     ("channel", "*", "capacitor", "value"),
     ("channel", "*", "shunt", "capacitance"),
     ("budget", "check", "*", "at"),
+    ("budget", "band", "*", "start"),
+    ("budget", "band", "*", "stop"),
+    ("budget", "mask", "*", "quantity"),
+    ("budget", "mask", "*", "points"),
+    ("compare", "measured"),
+    ("crosstalk", "victim"),
+    ("stackup", "layers"),
+    ("stackups", "*", "layers"),
+    ("stackup", "layers", "*", "name"),
+    ("stackups", "*", "layers", "*", "name"),
+    ("stackup", "layers", "*", "thickness"),
+    ("stackups", "*", "layers", "*", "thickness"),
+}
+#: keys a stackup supplies to a line on a layer (optional there)
+_FROM_LAYER = ("thickness", "dielectric")
+#: where a refusal may name another key than the one broken: names referred to elsewhere,
+#: and layer properties that a line on the layer or a via through it reports
+_ALSO = {
+    ("stackup", "layers", "*", "name"): ("layer", "from", "to", "backdrill"),
+    ("stackup", "layers", "*", "conductor"): ("layer", "from", "to", "backdrill", "kind"),
+    ("stackup", "layers", "*", "thickness"): ("layer", "from", "to", "backdrill", "stub"),
+    ("stackup", "layers", "*", "weight"): ("layer", "from", "to", "backdrill", "stub"),
+    ("lines", "*", "traces", "*", "name"): ("victim", "aggressors", "traces"),
+    ("lines", "*", "traces", "*", "spacing"): ("traces",),
 }
 
 
 def _pattern(path: tuple) -> tuple:
     out = []
     for i, p in enumerate(path):
-        parent_is_named = i > 0 and path[i - 1] in ("lines", "dielectrics", "foils")
+        parent_is_named = i > 0 and path[i - 1] in ("lines", "dielectrics", "foils", "stackups")
         out.append("*" if isinstance(p, int) or parent_is_named else p)
     return tuple(out)
 
 
-@st.composite
-def broken_scenario(draw) -> Case:
-    """A valid scenario with one thing broken: a required key removed, a value replaced by
-    a hostile one, an unknown key added, or a section of the wrong type."""
-    import copy
+def _required(doc: dict, path: tuple) -> bool:
+    """Whether removing ``path`` must be refused as a missing key."""
+    pat = _pattern(path)
+    if pat not in REQUIRED:
+        return False
+    if pat[0] == "lines" and len(pat) == 3 and pat[2] in _FROM_LAYER:
+        return "layer" not in _get(doc, path[:2])  # a stackup layer supplies it
+    if pat[-1] == "thickness" and "layers" in pat:
+        return "conductor" not in _get(doc, path[:-1])  # copper: thickness or weight
+    return True
 
-    case = draw(valid_scenario())
+
+def _also(path: tuple) -> tuple[str, ...]:
+    pat = _pattern(path)
+    if pat[0] == "stackups":
+        pat = ("stackup",) + pat[2:]
+    return _ALSO.get(pat, ())
+
+
+#: the top-level sections a "section" mutation replaces
+SECTIONS = (
+    "sweep",
+    "ports",
+    "lines",
+    "dielectrics",
+    "channel",
+    "budget",
+    "plots",
+    "time",
+    "compare",
+    "stackup",
+    "stackups",
+    "crosstalk",
+)
+
+
+@st.composite
+def broken_scenario(draw, valid=None) -> Case:
+    """A valid scenario (from ``valid``, default :func:`valid_scenario`) with one thing
+    broken: a required key removed, a value replaced by a hostile one, an unknown key
+    added, or a section of the wrong type."""
+    import copy
+    import dataclasses
+
+    case = draw(valid if valid is not None else valid_scenario())
     doc = copy.deepcopy(case.doc)
     how = draw(st.sampled_from(["remove", "replace", "replace", "unknown", "section"]))
     paths = _paths(doc)
+
+    def broken(key: str, what: str, also: tuple[str, ...] = ()) -> Case:
+        return dataclasses.replace(case, doc=doc, key=key, what=what, also=also)
+
     if how == "remove":
-        required = [p for p in paths if _pattern(p) in REQUIRED]
+        required = [p for p in paths if _required(doc, p)]
         if required:
             path = draw(st.sampled_from(required))
             del _get(doc, path[:-1])[path[-1]]
-            return Case(doc, case.files, case.differential, _leaf_key(path), "missing")
+            return broken(_leaf_key(path), "missing")
         how = "replace"
     if how == "replace":
         leaves = [p for p in paths if not isinstance(_get(doc, p), (dict, list))]
         path = draw(st.sampled_from(leaves))
         _get(doc, path[:-1])[path[-1]] = draw(st.one_of(HOSTILE, EXTREME))
-        return Case(doc, case.files, case.differential, _leaf_key(path), "replaced")
+        return broken(_leaf_key(path), "replaced", _also(path))
     if how == "unknown":
         tables = [p for p in paths if isinstance(_get(doc, p), dict)]
         path = draw(st.sampled_from(tables)) if tables else ()
         bad = draw(st.sampled_from(["widht", "stpo", "lenght", "refrence", "zz", "Kind"]))
         _get(doc, path)[bad] = "1 mil"
-        return Case(doc, case.files, case.differential, bad, "unknown")
-    top = draw(st.sampled_from(["sweep", "ports", "lines", "dielectrics", "channel", "budget"]))
+        return broken(bad, "unknown")
+    top = draw(st.sampled_from(SECTIONS))
     doc[top] = draw(st.sampled_from([3, "x", [], [1], {}, True]))
-    return Case(doc, case.files, case.differential, top, "section")
+    return broken(top, "section")
 
 
 # --- Touchstone texts ----------------------------------------------------------------------

@@ -29,7 +29,16 @@ import tempfile
 from pathlib import Path
 
 import numpy as np
-from hostile_common import check_network, no_nan_reason, run_cli, strict_json
+from hostile_boards import group_scenario, stackup_scenario
+from hostile_commands import (
+    CommandCase,
+    broken_sweep_case,
+    extract_case,
+    fit_case,
+    inspect_case,
+    sweep_case,
+)
+from hostile_common import check_network, finite_tree, no_nan_reason, run_cli, strict_json
 from hostile_strategies import (
     Case,
     broken_scenario,
@@ -85,9 +94,10 @@ def _listing(directory: Path) -> set[Path]:
     return set(directory.rglob("*"))
 
 
-def _check_success(out: str, out_dir: Path, differential: bool) -> None:
+def _check_success(out: str, out_dir: Path, differential: bool, nports: int | None = None) -> None:
     doc = strict_json(out)
     no_nan_reason(doc)
+    assert finite_tree(doc)
     written = {Path(p).resolve() for p in doc["files"]}
     assert written == {p.resolve() for p in out_dir.iterdir()}  # only what it lists
     budget_json = [p for p in written if p.name.endswith("-budget.json")]
@@ -95,8 +105,12 @@ def _check_success(out: str, out_dir: Path, differential: bool) -> None:
     no_nan_reason(strict_json(budget_json[0].read_text(encoding="utf-8")))
     net = read_touchstone(doc["touchstone"])
     s = np.asarray(net.s)
-    assert net.nports == (4 if differential else 2)
+    assert net.nports == (nports or (4 if differential else 2))
     assert np.all(np.isfinite(s))
+    if nports:  # a channel on group lines: the victim's own file too
+        for p in written:
+            if p.suffix.startswith(".s") and p.suffix.endswith("p"):
+                check_network(np.asarray(read_touchstone(p).s), 1e-9)
     if differential:
         il = -20 * np.log10(np.maximum(np.abs(s[:, 2, 0]), 1e-300))
         if float(np.max(il)) > PAIR_LOSS_LIMIT_DB:
@@ -176,12 +190,66 @@ def test_broken_scenarios_are_refused_naming_the_key(case):
         assert out == ""
         assert not (d / "out").exists()
         assert [p.name for p in d.iterdir() if p.name.startswith(".")] == []
-        if case.what == "missing":
-            assert "missing" in msg and case.key in msg, msg
-        else:
-            assert case.key in msg, msg
+        _names_key(case, msg)
     finally:
         _cleanup(d)
+
+
+def _names_key(case: Case, msg: str) -> None:
+    """A refusal names the broken key (a missing one as missing), or one of the keys
+    that refer to it."""
+    if case.what == "missing":
+        assert "missing" in msg and case.key in msg, msg
+    else:
+        assert any(k in msg for k in (case.key, *case.also)), msg
+
+
+def _refused_or_sound(case: Case, plots: bool = False) -> None:
+    """Build a (possibly broken) case: exit 0 with sound outputs, or exit 2 naming the
+    key, with nothing written."""
+    rc, out, err, d = _run_build(case, plots)
+    event(f"{case.what}: exit {rc}")
+    try:
+        note(err)
+        assert rc in (0, 2), err
+        if rc == 0:
+            _check_success(out, d / "out", case.differential, case.nports)
+            assert [p.name for p in d.iterdir() if p.name.startswith(".")] == []
+            return
+        assert case.what != "valid", err
+        msg = _refusal(err)
+        assert out == ""
+        assert not (d / "out").exists()
+        assert [p.name for p in d.iterdir() if p.name.startswith(".")] == []
+        _names_key(case, msg)
+    finally:
+        _cleanup(d)
+
+
+@settings(max_examples=examples(30))
+@given(stackup_scenario())
+def test_valid_stackup_scenarios(case):
+    _refused_or_sound(case)
+
+
+@settings(max_examples=examples(80))
+@given(broken_scenario(stackup_scenario()))
+def test_broken_stackup_scenarios(case):
+    note(f"{case.what}: {case.key}")
+    _refused_or_sound(case)
+
+
+@settings(max_examples=examples(4))
+@given(group_scenario())
+def test_valid_group_scenarios(case):
+    _refused_or_sound(case)
+
+
+@settings(max_examples=examples(8))
+@given(broken_scenario(group_scenario()))
+def test_broken_group_scenarios(case):
+    note(f"{case.what}: {case.key}")
+    _refused_or_sound(case)
 
 
 @settings(max_examples=examples(200))
@@ -306,4 +374,158 @@ def test_build_options(capsys, out, form, version):
             check_network(np.asarray(read_touchstone(doc["touchstone"]).s), 1e-9)
     finally:
         os.chdir(cwd)
+        _cleanup(d)
+
+
+# --- commands: inspect, extract, fit, sweep ------------------------------------------------
+
+
+def _run_command(case: CommandCase) -> tuple[int, str, str, Path, set[Path], list[str]]:
+    """Write the case's files into a scratch directory and run its command in-process:
+    (exit code, stdout, stderr, directory, the listing before, argv)."""
+    import contextlib
+    import io
+
+    from losslane.cli import main
+
+    d = Path(tempfile.mkdtemp(prefix="hostile-c-"))
+    for name, content in case.files.items():
+        p = d / name
+        p.parent.mkdir(parents=True, exist_ok=True)
+        if isinstance(content, bytes):
+            p.write_bytes(content)
+        else:
+            p.write_text(content, encoding="utf-8")
+    argv = [a.replace("{dir}", str(d)) for a in case.argv]
+    note(repr(argv))
+    before = _listing(d)
+    stdout, stderr = io.StringIO(), io.StringIO()
+    with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
+        rc = main(argv)
+    return rc, stdout.getvalue(), stderr.getvalue(), d, before, argv
+
+
+def _command_refused(case: CommandCase, out: str, err: str, d: Path, before: set[Path]) -> None:
+    """A refusal: nothing on stdout, one message naming an option, key or file of the
+    case, and no file left behind."""
+    assert out == ""
+    keys = [k.replace("{dir}", str(d)) for k in case.keys]
+    if "Error:" in err and "error: " not in err:  # click's own usage errors
+        msg = err
+    else:
+        msg = _refusal(err)
+    assert any(k in msg for k in keys) or "--" in msg, msg
+    assert _listing(d) == before, sorted(map(str, _listing(d) - before))
+
+
+def _command_succeeded(
+    out: str, d: Path, before: set[Path], extra: set[Path] = frozenset()
+) -> dict:
+    """A success: strict, finite JSON whose ``files`` are the only new files (besides
+    ``extra``)."""
+    doc = strict_json(out)
+    no_nan_reason(doc)
+    assert finite_tree(doc)
+    listed = {Path(p).resolve() for p in doc.get("files", [])}
+    for key in ("library_file",):
+        if doc.get(key):
+            listed.add(Path(doc[key]).resolve())
+    new = {p.resolve() for p in _listing(d) - before if p.is_file()}
+    assert listed <= new, (listed, new)
+    assert new - listed <= {p.resolve() for p in extra}, sorted(map(str, new - listed))
+    return doc
+
+
+def _command_property(case: CommandCase) -> None:
+    rc, out, err, d, before, _ = _run_command(case)
+    event(f"{case.argv[0]} {case.what}: exit {rc}")
+    try:
+        note(err)
+        assert rc in (0, 2), err
+        if rc == 2:
+            assert not case.valid, err
+            _command_refused(case, out, err, d, before)
+        else:
+            _command_succeeded(out, d, before)
+    finally:
+        _cleanup(d)
+
+
+@settings(max_examples=examples(30))
+@given(inspect_case())
+def test_inspect_options(case):
+    _command_property(case)
+
+
+@settings(max_examples=examples(20))
+@given(extract_case())
+def test_extract_options(case):
+    _command_property(case)
+
+
+@settings(max_examples=examples(8))
+@given(fit_case())
+def test_fit_options(case):
+    _command_property(case)
+
+
+def _sweep_files(doc: dict, d: Path) -> set[Path]:
+    """What a sweep writes besides its JSON's charts: the table, its parts and the cases'
+    Touchstone files."""
+    table = Path(doc["out"])
+    extra = {table}
+    for folder in (table.with_name(table.name + ".parts"), table.with_name(table.name + ".cases")):
+        if folder.exists():
+            extra |= set(folder.rglob("*"))
+    return extra | {Path(p) for p in doc["charts"]}
+
+
+def _check_table(doc: dict, cases: int | None, failed_ok: bool) -> None:
+    import pyarrow.csv as pcsv
+    import pyarrow.parquet as pq
+
+    path = Path(doc["out"])
+    table = pq.read_table(path) if path.suffix == ".parquet" else pcsv.read_csv(path)
+    if cases is not None:
+        assert table.num_rows == cases == doc["cases"]
+    errors = table.column("error").to_pylist()
+    assert sum(e is not None for e in errors) == doc["failed"], errors
+    if not failed_ok:
+        assert doc["failed"] == 0, errors
+    for name in table.column_names:
+        col = table.column(name)
+        if col.type in ("double", "float"):
+            values = [v for v in col.to_pylist() if v is not None]
+            assert np.all(np.isfinite(values)), name
+
+
+@settings(max_examples=examples(12))
+@given(sweep_case())
+def test_valid_sweep_plans(case):
+    rc, out, err, d, before, _ = _run_command(case)
+    try:
+        note(err)
+        assert rc == 0, err
+        doc = strict_json(out)
+        _check_table(doc, case.cases, failed_ok=False)
+        _command_succeeded(out, d, before, _sweep_files(doc, d))
+    finally:
+        _cleanup(d)
+
+
+@settings(max_examples=examples(40))
+@given(broken_sweep_case())
+def test_broken_sweep_plans(case):
+    rc, out, err, d, before, _ = _run_command(case)
+    event(f"sweep {case.what}: exit {rc}")
+    try:
+        note(err)
+        assert rc in (0, 1, 2), err  # 1: some cases failed, their errors in the table
+        if rc == 2:
+            _command_refused(case, out, err, d, before)
+            return
+        doc = strict_json(out)
+        _check_table(doc, None, failed_ok=True)
+        _command_succeeded(out, d, before, _sweep_files(doc, d))
+    finally:
         _cleanup(d)

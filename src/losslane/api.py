@@ -1113,6 +1113,18 @@ def _fit_foil_model(section, vary: tuple[str, ...], foil_model: str | None, wher
                 f"{k('vary')}: {p!r} is not a parameter of the {model!r} roughness model (its "
                 f"parameters: {theirs}); choose {k('foil_model')} or another parameter"
             )
+    keys = FOIL_PARAMETERS[model]
+    spheres = getattr(section.metal.foil, "spheres", ())
+    if model == "huray" and own == "huray" and len(spheres) != 1 and set(keys) & set(vary):
+        raise LossLaneError(
+            f"{k('vary')}: the Huray fit takes one sphere size; the section's foil has "
+            f"{len(spheres)} (hold radius and surface_ratio fixed, or start from a one-size foil)"
+        )
+    if model != own and keys and not set(keys) & set(vary):
+        raise LossLaneError(
+            f"{where.setting('foil_model', model)} replaces the section's {own!r} foil, whose "
+            f"parameters it cannot take over: add {', '.join(keys)} to {k('vary')}"
+        )
     return model
 
 
@@ -1280,6 +1292,31 @@ def _file_references(net, where: Where) -> tuple[float, ...]:
     return tuple(float(z) for z in z0[0].real)
 
 
+def _check_time_window(f, rise, rise_time, rate, data_rate, modulation, where: Where) -> None:
+    """The stimulus must fit the data's time window 1 / step: a rise time at most half of
+    it, a pulse's seven unit intervals all of it."""
+    import numpy as np
+
+    from losslane.network.timedomain import longest_rise_time, lowest_data_rate, time_window
+    from losslane.timesettings import pulse_span
+
+    f = np.asarray(f, dtype=float)
+    if f.size < 2:
+        return
+    k = where.key
+    if rise is not None and rise > longest_rise_time(f):
+        raise LossLaneError(
+            f"{k('rise_time')} = {rise_time!r}: the data's time window (1 / step) is "
+            f"{time_window(f) * 1e9:.4g} ns, and a rise time may fill at most half of it "
+            f"({longest_rise_time(f) * 1e9:.4g} ns)"
+        )
+    if rate is not None and rate < lowest_data_rate(f, modulation):
+        raise LossLaneError(
+            f"{k('data_rate')} = {data_rate!r}: {pulse_span(time_window(f))}; use a rate of at "
+            f"least {lowest_data_rate(f, modulation) / 1e9:.4g} Gb/s"
+        )
+
+
 def inspect(
     path_or_network,
     *,
@@ -1345,16 +1382,22 @@ def inspect(
             f"so the rise time must be >= {0.5 / float(net.f[-1]) * 1e12:.4g} ps (0.5 / f_max); "
             f"the default is {0.75 / float(net.f[-1]) * 1e12:.4g} ps"
         )
-    insp = inspect_network(
-        net.f,
-        net.s,
-        refs[0] if len(refs) == 1 else refs,
-        order,
-        rise_time=rise,
-        data_rate=rate,
-        modulation=modulation,
-        delay_per_m=None if per_in is None else per_in / INCH,
-    )
+    _check_time_window(net.f, rise, rise_time, rate, data_rate, modulation, where)
+    try:
+        insp = inspect_network(
+            net.f,
+            net.s,
+            refs[0] if len(refs) == 1 else refs,
+            order,
+            rise_time=rise,
+            data_rate=rate,
+            modulation=modulation,
+            delay_per_m=None if per_in is None else per_in / INCH,
+        )
+    except LossLaneError as exc:  # what the data cannot give: name the file
+        if not isinstance(path_or_network, (str, Path)):
+            raise
+        raise LossLaneError(f"touchstone file {source!r}: {exc}") from None
     result = InspectResult(insp, source)
     if out is not None:
         from losslane.report.channel import prepare_out_dir, slug

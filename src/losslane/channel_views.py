@@ -29,6 +29,18 @@ def channel_inspection(channel: ChannelResult) -> Inspection | None:
     if channel.f.size < MIN_POINTS or channel.nports not in PORT_COUNTS:
         return None
     rise, rate, modulation = stimulus(sc.time, sc.budget)
+    if rate is not None and sc.time.data_rate is None:  # [time] data_rate is checked on reading
+        from losslane.errors import warn
+        from losslane.network.timedomain import lowest_data_rate, time_window
+        from losslane.timesettings import pulse_span
+
+        if rate < lowest_data_rate(channel.f, modulation):
+            warn(
+                f"no pulse response at [budget] data_rate = {rate / 1e9:g} Gb/s: "
+                f"{pulse_span(time_window(channel.f))}; the step response is shown instead "
+                "(a finer [sweep] step, or [time] data_rate, gives one)"
+            )
+            rate = None
     s = to_order(channel.s, channel.conductors, sc.ports.order)
     return inspect_network(
         channel.f,

@@ -299,7 +299,7 @@ def scenario_from_data(
         source_text=source,
         compare=compare,
         crosstalk=crosstalk,
-        time=parse_time(data.get("time", {}), sweep.stop),
+        time=parse_time(data.get("time", {}), sweep.stop, frequencies=sweep.frequencies()),
         stackups=stackups,
         line_models=line_models,
         plots=parse_plots(data["plots"]) if "plots" in data else PlotOptions(),

@@ -255,9 +255,11 @@ def parse_stackup(
         lw = f"{where} layer #{i + 1}"
         if not isinstance(entry, Mapping):
             raise LossLaneError(f"{lw}: expected a table, e.g. {{ name = ..., ... }}")
-        lname = entry.get("name")
+        if "name" not in entry:
+            raise LossLaneError(f'{lw}: missing name (every layer needs one, e.g. name = "L1")')
+        lname = entry["name"]
         if not isinstance(lname, str) or not lname.strip():
-            raise LossLaneError(f"{lw}: name = {lname!r}: every layer needs a name (text)")
+            raise LossLaneError(f"{lw}.name = {lname!r}: every layer needs a name (text)")
         lw = f"{where} layer {lname!r}"
         if lname in seen:
             raise LossLaneError(

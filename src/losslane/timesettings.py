@@ -37,8 +37,12 @@ class TimeSettings:
     modulation: str | None = None
 
 
-def parse_time(spec: object, sweep_stop: float, where: str = "[time]") -> TimeSettings:
-    """The ``[time]`` table of a scenario, checked against the sweep's top frequency."""
+def parse_time(
+    spec: object, sweep_stop: float, where: str = "[time]", frequencies=None
+) -> TimeSettings:
+    """The ``[time]`` table of a scenario, checked against the sweep's top frequency and,
+    with ``frequencies`` (the sweep, Hz), against its time window 1/step: the rise time
+    must fit half of it, and the pulse's span of unit intervals all of it."""
     if not isinstance(spec, Mapping):
         raise LossLaneError(f"{where}: expected a table with rise_time, data_rate, modulation")
     check_keys(where, spec, KEYS)
@@ -60,7 +64,33 @@ def parse_time(spec: object, sweep_stop: float, where: str = "[time]") -> TimeSe
             f"{where}.modulation = {modulation!r} goes with {where}.data_rate (e.g. "
             '"32 Gb/s"); without it the pulse uses [budget] data_rate and modulation'
         )
+    if frequencies is not None and len(frequencies) > 1:
+        from losslane.network.timedomain import longest_rise_time, lowest_data_rate, time_window
+
+        window = time_window(frequencies)
+        if rise is not None and rise > longest_rise_time(frequencies):
+            raise LossLaneError(
+                f"{where}.rise_time = {spec['rise_time']!r}: the sweep's time window (1 / step) "
+                f"is {window * 1e9:.4g} ns, and a rise time may fill at most half of it "
+                f"({longest_rise_time(frequencies) * 1e9:.4g} ns); use a shorter rise time or "
+                "a finer [sweep] step"
+            )
+        if rate is not None and rate < lowest_data_rate(frequencies, modulation or "nrz"):
+            raise LossLaneError(
+                f"{where}.data_rate = {spec['data_rate']!r}: {pulse_span(window)}; use a rate of "
+                f"at least {lowest_data_rate(frequencies, modulation or 'nrz') / 1e9:.4g} Gb/s "
+                "or a finer [sweep] step"
+            )
     return TimeSettings(rise, rate, modulation)
+
+
+def pulse_span(window: float) -> str:
+    """Why a data rate is too low for the pulse response on a time window (s)."""
+    return (
+        "the pulse response and its cursors span 7 unit intervals (the pulse, one "
+        f"pre-cursor, five post-cursors), more than the time window 1 / step of "
+        f"{window * 1e9:.4g} ns the frequency grid gives"
+    )
 
 
 def stimulus(settings: TimeSettings, budget) -> tuple[float | None, float | None, str]:
@@ -73,4 +103,4 @@ def stimulus(settings: TimeSettings, budget) -> tuple[float | None, float | None
     return settings.rise_time, None, "nrz"
 
 
-__all__ = ["KEYS", "TimeSettings", "parse_time", "stimulus"]
+__all__ = ["KEYS", "TimeSettings", "parse_time", "pulse_span", "stimulus"]

@@ -112,13 +112,18 @@ class CrosstalkResult:
         victim's near end as the aggressor sees it: the saturated plateau), [..., 1]
         FEXT, the aggressor stepped at the other end (the far-end pulse). ``rise_time``
         (10-90 %) defaults to the NEXT aggressor's transition time as a Gaussian edge, at
-        least 0.75 / f_max (the helper's default)."""
-        from losslane.network.timedomain import default_rise_time, step_response
+        least 0.75 / f_max (the helper's default) and at most half the sweep's time window
+        1 / step (a slower edge would not finish rising in it)."""
+        from losslane.network.timedomain import (
+            default_rise_time,
+            longest_rise_time,
+            step_response,
+        )
 
         f_max = float(self.f[-1])
         if rise_time is None:
             edge = self.settings.near_transition * GAUSSIAN_10_90_PER_20_80
-            rise_time = max(edge, default_rise_time(f_max))
+            rise_time = min(max(edge, default_rise_time(f_max)), longest_rise_time(self.f))
         h = np.stack([np.stack([c.next, c.fext], axis=-1) for c in self.couplings], axis=1)
         return step_response(self.f, h, rise_time)
 

@@ -629,6 +629,14 @@ def extract_line(
     modal = [_modal(c, mode, order) for c in items]
     s_list = [m[0][keep] for m in modal]
     z_list = [m[1][keep] for m in modal]
+    for c, s in zip(items, s_list, strict=True):
+        zero = np.flatnonzero(s[:, 1, 0] == 0)
+        if zero.size:
+            hint = f" (are its ports numbered {order!r}?)" if ports == 4 else ""
+            raise LossLaneError(
+                f"coupon {c.name!r}: its {mode} transmission is exactly 0 at {f[zero[0]]:g} Hz"
+                f"{hint}; a coupon is measured through its line, so it cannot be used"
+            )
 
     result = _solve(f, s_list, z_list, lens, noise_relative, noise_floor)
     gamma, var, pair_dl, pair_gamma, branch_bad = result

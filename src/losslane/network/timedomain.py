@@ -55,6 +55,9 @@ from losslane.network.imported import linear_interpolation
 from losslane.network.ports import DEFAULT_ORDER, check_order, from_order, port_permutation
 
 __all__ = [
+    "longest_rise_time",
+    "lowest_data_rate",
+    "time_window",
     "DEFAULT_RISE_FACTOR",
     "GAUSSIAN_RISE",
     "MODULATIONS",
@@ -370,17 +373,47 @@ def _transform(
             f"stimulus rings by {100 * ringing:.2g} % (the default "
             f"{default_rise_time(spec.f_max):.4g} s keeps it below {100 * RINGING_LIMIT:g} %)"
         )
-    measured = crossing(t, stim, 0.9) - crossing(t, stim, 0.1)
-    return _Transform(t, out[:, :-1], dt, measured, ringing, 1.0 / df)
+    t90, t10 = crossing(t, stim, 0.9), crossing(t, stim, 0.1)
+    if t90 is None or t10 is None:  # callers check against longest_rise_time first
+        raise LossLaneError(
+            f"rise_time = {tr:.4g} s: the stimulus does not rise within the time window "
+            f"1/df = {1.0 / df:.4g} s of the data; the longest rise time they carry is "
+            f"{longest_rise_time(spec.f):.4g} s"
+        )
+    return _Transform(t, out[:, :-1], dt, t90 - t10, ringing, 1.0 / df)
+
+
+def time_window(f) -> float:
+    """The time window 1/df (s) of the transform of data on ``f`` (Hz): every response is
+    periodic in it (``uniform_spectrum``'s grid step df)."""
+    f = np.asarray(f, dtype=float)
+    return 1.0 / uniform_spectrum(f, np.zeros(f.size)).step
+
+
+def longest_rise_time(f) -> float:
+    """The longest stimulus rise time (s) that data on ``f`` carry: half the time window
+    (a longer edge has not finished rising before the period repeats it)."""
+    return 0.5 * time_window(f)
+
+
+def lowest_data_rate(f, modulation: str = "nrz", post: int = 5) -> float:
+    """The lowest data rate (b/s) whose pulse response on ``f`` fits the time window: the
+    pulse and its cursors (one pre-cursor, the main one and ``post`` post-cursors) span
+    ``post + 2`` unit intervals; a longer span wraps around the window."""
+    return (post + 2) * MODULATIONS[modulation] / time_window(f)
 
 
 def _sample(t: np.ndarray, v: np.ndarray, tq: np.ndarray) -> np.ndarray:
     """``v`` at the times ``tq`` on the parabola through the three samples nearest each
-    (error of order dt^3; a chord would miss a peak by dt^2 v''/8)."""
+    (error of order dt^3; a chord would miss a peak by dt^2 v''/8). ``v`` is one period of
+    a periodic response (an impulse-type column over the whole window): a time outside the
+    window is read where the period puts it, never extrapolated."""
     dt = t[1] - t[0]
-    j = np.clip(np.rint((tq - t[0]) / dt).astype(int), 1, t.size - 2)
-    s = (tq - t[j]) / dt
-    a, b, c = v[j - 1], v[j], v[j + 1]
+    n = t.size
+    x = np.mod((np.asarray(tq, float) - t[0]) / dt, n)
+    j = np.rint(x).astype(int)
+    s = x - j
+    a, b, c = v[(j - 1) % n], v[j % n], v[(j + 1) % n]
     return b + 0.5 * s * (c - a) + 0.5 * s * s * (a - 2 * b + c)
 
 

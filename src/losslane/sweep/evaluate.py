@@ -62,11 +62,40 @@ def value_columns(plan: Plan, idx: dict[str, np.ndarray]) -> dict[str, list | np
     return cols
 
 
-def _materialise(plan: Plan, directory: Path) -> None:
-    for name, data in plan.files.items():
-        target = directory / name
+def _materialise(plan: Plan, directory: Path) -> dict[str, str]:
+    """Write the plan's files into ``directory`` under the names the plan and its
+    scenario use. A name that would land outside it (an absolute path, ``..``) is written
+    inside under another name: returns {name as written: name used}, for the references
+    to be rewritten (nothing is ever written outside ``directory``)."""
+    root = directory.resolve()
+    aliases: dict[str, str] = {}
+    for k, (name, data) in enumerate(plan.files.items()):
+        target = (directory / name).resolve()
+        if not target.is_relative_to(root) or target == root:
+            used = f"outside-{k}/{Path(name).name or 'file'}"
+            aliases[name] = used
+            target = directory / used
         target.parent.mkdir(parents=True, exist_ok=True)
         target.write_bytes(data)
+    return aliases
+
+
+def _renamed(data: dict, aliases: dict[str, str]) -> None:
+    """Point a scenario's file references (``library``, ``touchstone`` segments, ``[compare]
+    measured``) at the names the files were written under."""
+    if not aliases:
+        return
+    libs = data.get("library")
+    if isinstance(libs, str):
+        data["library"] = aliases.get(libs, libs)
+    elif isinstance(libs, list):
+        data["library"] = [aliases.get(x, x) if isinstance(x, str) else x for x in libs]
+    for seg in data.get("channel", []) if isinstance(data.get("channel"), list) else []:
+        if isinstance(seg, dict) and isinstance(seg.get("touchstone"), str):
+            seg["touchstone"] = aliases.get(seg["touchstone"], seg["touchstone"])
+    compare = data.get("compare")
+    if isinstance(compare, dict) and isinstance(compare.get("measured"), str):
+        compare["measured"] = aliases.get(compare["measured"], compare["measured"])
 
 
 # --- cross-section cases -------------------------------------------------------------------
@@ -164,12 +193,18 @@ def _dimension_arrays(plan: Plan, idx: dict[str, np.ndarray], members: np.ndarra
     return out
 
 
-def line_chunk(plan: Plan, cases: list[int], directory: Path) -> tuple[dict, list[str]]:
-    """Result columns (and ``error``) of cross-section cases, as {column: list}."""
+def line_chunk(
+    plan: Plan, cases: list[int], directory: Path, aliases: dict[str, str] | None = None
+) -> tuple[dict, list[str]]:
+    """Result columns (and ``error``) of cross-section cases, as {column: list}
+    (``aliases``: the names the plan's files were written under, see ``_materialise``)."""
     from losslane.materials.library import load_library
     from losslane.xsection import registry
 
-    library = load_library([directory / f"library/{name}" for name in plan.libraries])
+    aliases = aliases or {}
+    library = load_library(
+        [directory / aliases.get(f"library/{name}", f"library/{name}") for name in plan.libraries]
+    )
     layered = "layer" in plan.base or any(p.key == "layer" for p in plan.parameters)
     stackups = None
     if layered:
@@ -317,7 +352,9 @@ def build_columns(data: dict) -> dict[str, object]:
     return out
 
 
-def build_case(plan: Plan, case: int, directory: Path) -> tuple[dict, bytes | None, str]:
+def build_case(
+    plan: Plan, case: int, directory: Path, aliases: dict[str, str] | None = None
+) -> tuple[dict, bytes | None, str]:
     """One scenario case: its columns, its Touchstone text if asked, and its name."""
     from losslane.api import build_result
     from losslane.scenario import scenario_from_data
@@ -326,6 +363,7 @@ def build_case(plan: Plan, case: int, directory: Path) -> tuple[dict, bytes | No
     data = copy.deepcopy(tomllib.loads(text))
     for key, value in case_values(plan, case).items():
         set_path(data, key, value)
+    _renamed(data, aliases or {})
     sc = scenario_from_data(data, directory, directory / plan.scenario, text)
     res = build_result(sc)
     touch = None
@@ -338,7 +376,9 @@ def build_case(plan: Plan, case: int, directory: Path) -> tuple[dict, bytes | No
     return build_columns(res.to_json()), touch, f"s{res.channel.nports}p"
 
 
-def scenario_chunk(plan: Plan, cases: list[int], directory: Path) -> tuple[dict, list, dict]:
+def scenario_chunk(
+    plan: Plan, cases: list[int], directory: Path, aliases: dict[str, str] | None = None
+) -> tuple[dict, list, dict]:
     """Result columns (and ``error``) of scenario cases, the warnings, and the Touchstone
     texts of the cases when the plan asks for them."""
     rows: list[dict] = []
@@ -347,7 +387,7 @@ def scenario_chunk(plan: Plan, cases: list[int], directory: Path) -> tuple[dict,
         warnings.simplefilter("always", LossLaneWarning)
         for c in cases:
             try:
-                cols, touch, ext = build_case(plan, c, directory)
+                cols, touch, ext = build_case(plan, c, directory, aliases)
                 rows.append(cols)
                 if touch is not None:
                     files[c] = (touch, ext)
@@ -369,12 +409,12 @@ def evaluate_chunk(plan: Plan, cases: list[int]) -> dict:
     # one thread of linear algebra per task: the workers are the parallelism
     with threadpool_limits(1), tempfile.TemporaryDirectory(prefix="losslane-sweep-") as d:
         directory = Path(d)
-        _materialise(plan, directory)
+        aliases = _materialise(plan, directory)
         if plan.base is not None:
-            columns, messages = line_chunk(plan, cases, directory)
+            columns, messages = line_chunk(plan, cases, directory, aliases)
             files: dict = {}
         else:
-            columns, messages, files = scenario_chunk(plan, cases, directory)
+            columns, messages, files = scenario_chunk(plan, cases, directory, aliases)
     return {"cases": list(cases), "columns": columns, "warnings": messages, "files": files}
 
 

@@ -316,13 +316,17 @@ def _draws(p: Parameter, count: int, rng: np.random.Generator) -> np.ndarray:
 
 
 def _read(path: Path, what: str) -> bytes:
-    if not path.is_file():
+    from losslane.userfiles import read_bytes
+
+    if not path.exists():
         raise LossLaneError(f"{what} {str(path)!r} does not exist (paths are relative to the plan)")
-    return path.read_bytes()
+    return read_bytes(path, what)  # a directory, a device, no permission: named
 
 
 def _scenario_files(path: Path, files: dict[str, bytes]) -> None:
-    """The scenario and every file it names (libraries, imported models), relative to it."""
+    """The scenario and every file it names (libraries, imported models, the measurement
+    of ``[compare]``), by the names it uses, relative to it. Entries of the wrong type are
+    left for the scenario reader, which names them in each case."""
     text = _read(path, "scenario file")
     files[path.name] = text
     try:
@@ -330,11 +334,18 @@ def _scenario_files(path: Path, files: dict[str, bytes]) -> None:
     except (UnicodeDecodeError, tomllib.TOMLDecodeError) as exc:
         raise LossLaneError(f"scenario file {str(path)!r}: not valid TOML: {exc}") from None
     libs = data.get("library", [])
-    for name in [libs] if isinstance(libs, str) else list(libs):
-        files[str(name)] = _read(path.parent / str(name), "library file")
-    for seg in data.get("channel", []) or []:
-        if isinstance(seg, Mapping) and isinstance(seg.get("touchstone"), str):
-            files[seg["touchstone"]] = _read(path.parent / seg["touchstone"], "touchstone file")
+    libs = [libs] if isinstance(libs, str) else libs if isinstance(libs, list) else []
+    named = [("library file", x) for x in libs]
+    channel = data.get("channel", [])
+    if isinstance(channel, list):
+        segments = [seg for seg in channel if isinstance(seg, Mapping)]
+        named += [("touchstone file", seg.get("touchstone")) for seg in segments]
+    compare = data.get("compare")
+    if isinstance(compare, Mapping):
+        named.append(("measured file", compare.get("measured")))
+    for what, name in named:
+        if isinstance(name, str) and name and "\x00" not in name:
+            files[name] = _read(path.parent / name, what)
 
 
 def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None) -> Plan:
@@ -365,18 +376,28 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
     seed = data.get("seed", 1)
     if isinstance(seed, bool) or not isinstance(seed, int) or seed < 0:
         raise LossLaneError(f"plan: seed = {seed!r}: expected a whole number >= 0")
+    engine = _engine(data)
     files: dict[str, bytes] = {}
-    libraries = data.get("library", [])
-    libraries = [libraries] if isinstance(libraries, str) else list(libraries)
+    libraries = _texts("plan: library", data.get("library", []), '["materials.toml"]')
     for lib in libraries:
         files[f"library/{lib}"] = _read(base_dir / lib, "library file")
     base = scenario = None
     if "base" in data:
+        if not isinstance(data["base"], Mapping):
+            raise LossLaneError(
+                f"[base] = {data['base']!r}: expected a table with a line kind and its keys "
+                '(kind = "microstrip", ...)'
+            )
         base = dict(data["base"])
         if "kind" not in base:
             raise LossLaneError('[base]: missing kind (a line kind, e.g. "microstrip")')
     else:
-        scen_path = base_dir / str(data["scenario"])
+        name = data["scenario"]
+        if not isinstance(name, str) or not name.strip() or "\x00" in name:
+            raise LossLaneError(
+                f'plan: scenario = {name!r}: expected a file name, e.g. "lane.toml"'
+            )
+        scen_path = base_dir / name
         _scenario_files(scen_path, files)
         scenario = scen_path.name
     params = tuple(_parameter(str(k), v, samples) for k, v in data["vary"].items())
@@ -418,8 +439,7 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
     if not isinstance(results, Mapping):
         raise LossLaneError("[results]: expected a table")
     check_keys("[results]", results, ("at", "touchstone", "rank", "chart"))
-    at = results.get("at", [])
-    at = [at] if isinstance(at, str) else list(at)
+    at = _texts("[results].at", results.get("at", []), '["1 GHz", "28 GHz"]')
     if base is not None and not at:
         raise LossLaneError(
             '[results]: missing at, the frequencies of the columns (e.g. ["1 GHz"])'
@@ -427,11 +447,28 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
     at_hz = tuple(parse_frequency(a, "[results].at") for a in at)
     if any(not math.isfinite(x) or x < 0 for x in at_hz):
         raise LossLaneError(f"[results].at = {at!r}: frequencies are >= 0 Hz")
+    touchstone = results.get("touchstone", False)
+    if not isinstance(touchstone, bool):
+        raise LossLaneError(
+            f"[results].touchstone = {touchstone!r}: expected true or false (true: each "
+            "case's Touchstone file is written)"
+        )
+    rank = results.get("rank")
+    if rank is not None and (not isinstance(rank, str) or not rank.strip()):
+        raise LossLaneError(f"[results].rank = {rank!r}: expected a column name")
     chart = results.get("chart")
     if chart is not None:
         if not isinstance(chart, Mapping):
             raise LossLaneError("[results].chart: expected { x, y, group }")
         check_keys("[results].chart", chart, ("x", "y", "group"), required=("x", "y"))
+        for k, v in chart.items():
+            if not isinstance(v, str) or not v.strip():
+                raise LossLaneError(f"[results].chart.{k} = {v!r}: expected a column name")
+    if "name" in data and (not isinstance(data["name"], str) or not data["name"].strip()):
+        raise LossLaneError(f"plan: name = {data['name']!r}: expected a non-empty text")
+    boards = {k: data[k] for k in ("stackup", "stackups") if k in data}
+    if boards:
+        _check_boards(boards, libraries, base_dir)
     plan = Plan(
         path,
         str(data.get("name") or (path.stem if path else "sweep")),
@@ -443,16 +480,14 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
         int(seed),
         tuple(str(a) for a in at),
         at_hz,
-        bool(results.get("touchstone", False)),
-        results.get("rank"),
+        touchstone,
+        rank,
         dict(chart) if chart else None,
         tuple(libraries),
         files,
-        data.get("scheduler"),
-        data.get("workers"),
-        data.get("chunk"),
+        *engine,
         together=together,
-        boards={k: data[k] for k in ("stackup", "stackups") if k in data},
+        boards=boards,
     )
     if plan.combinations * (samples if randoms else 1) > MAX_CASES:
         raise LossLaneError(f"plan: {plan.cases} cases is more than the {MAX_CASES} allowed")
@@ -461,6 +496,45 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
         total = plan.combinations * plan.samples
         plan.random.update({p.key: _draws(p, total, rng) for p in randoms})
     return plan
+
+
+def _texts(key: str, value: object, example: str) -> list[str]:
+    """A text or a list of texts (file names, frequencies): a LossLaneError naming ``key``
+    otherwise."""
+    items = [value] if isinstance(value, str) else value
+    if not isinstance(items, list) or not all(isinstance(x, str) and x for x in items):
+        raise LossLaneError(
+            f"{key} = {value!r}: expected a text or a list of texts, e.g. {example}"
+        )
+    if any("\x00" in x for x in items):
+        raise LossLaneError(f"{key} = {value!r}: a text cannot hold a NUL character")
+    return list(items)
+
+
+def _engine(data: Mapping) -> tuple[str | None, int | None, int | None]:
+    """The plan's ``scheduler`` (an address), ``workers`` (>= 0) and ``chunk`` (>= 1)."""
+    scheduler = data.get("scheduler")
+    if scheduler is not None and (not isinstance(scheduler, str) or not scheduler.strip()):
+        raise LossLaneError(
+            f'plan: scheduler = {scheduler!r}: expected an address, e.g. "tcp://host:8786"'
+        )
+    out: list = [scheduler]
+    for key, low in (("workers", 0), ("chunk", 1)):
+        v = data.get(key)
+        if v is not None and (isinstance(v, bool) or not isinstance(v, int) or v < low):
+            raise LossLaneError(f"plan: {key} = {v!r}: expected a whole number >= {low}")
+        out.append(v)
+    return out[0], out[1], out[2]
+
+
+def _check_boards(boards: Mapping, libraries: list[str], base_dir: Path) -> None:
+    """The plan's own stackups, read now (with its library files) so that a bad board is
+    refused before any case runs."""
+    from losslane.materials.library import load_library
+    from losslane.stackup import board_stackups
+
+    library = load_library([base_dir / name for name in libraries])
+    board_stackups(boards, library, library.dielectric, library.foil)
 
 
 def _together(spec: object, params: tuple[Parameter, ...], combine: str) -> tuple:
@@ -481,6 +555,8 @@ def _together(spec: object, params: tuple[Parameter, ...], combine: str) -> tupl
     for g in spec:
         if len(g) < 2:
             raise LossLaneError(f"{w}: {g!r}: a group names at least two keys of [vary]")
+        if not all(isinstance(key, str) for key in g):
+            raise LossLaneError(f"{w}: {g!r}: a group is a list of keys of [vary] (texts)")
         for key in g:
             p = by_key.get(key)
             if p is None:

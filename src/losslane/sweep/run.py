@@ -129,16 +129,33 @@ def run(
     order) and the distinct warnings met. Finished chunks are kept in ``<out>.parts/``."""
     import pyarrow.parquet as pq
 
+    all_chunks = chunks(plan)
+    parts = out.with_name(out.name + ".parts")
+    fresh = not parts.exists()
+    parts = _parts_dir(out, plan)
+    try:
+        return _run(plan, out, parts, all_chunks, workers, scheduler, progress, pq)
+    except LossLaneError:
+        # bad input found while the cases run: leave nothing behind that this run began
+        if fresh:
+            import shutil
+
+            shutil.rmtree(parts, ignore_errors=True)
+            shutil.rmtree(out.with_name(out.name + ".cases"), ignore_errors=True)
+        raise
+
+
+def _run(plan: Plan, out: Path, parts: Path, all_chunks, workers, scheduler, progress, pq):
     from losslane.sweep.evaluate import evaluate_chunk
 
-    all_chunks = chunks(plan)
-    parts = _parts_dir(out, plan)
     todo = [k for k in range(len(all_chunks)) if not _part_path(parts, k).exists()]
     total = plan.cases
     done = sum(len(all_chunks[k]) for k in range(len(all_chunks)) if k not in set(todo))
     if progress is not None:
         progress(done, total)
-    scheduler = scheduler or plan.scheduler
+    # the command line's --workers or --scheduler take precedence over the plan's
+    if scheduler is None and workers is None:
+        scheduler = plan.scheduler
     workers = plan.workers if workers is None else workers
     if todo and workers == 0 and not scheduler:
         for k in todo:

@@ -387,11 +387,11 @@ class StriplineGroup(_Group):
 
     @classmethod
     def field_geometry(cls, dims: Mapping, options) -> Geometry:
-        from losslane.xsection.fieldsolve.geometry import Geometry, Layer
+        from losslane.xsection.fieldsolve.geometry import Geometry
+        from losslane.xsection.fieldsolve.layouts import layers_between_planes
 
         lo, hi, t = dims["below"], dims["above"], dims["thickness"]
-        above = options.dielectric_above or options.dielectric
-        layers = (Layer(lo, options.dielectric, "core"), Layer(t + hi, above, "prepreg"))
+        layers = layers_between_planes(lo, hi, t, options)
         return Geometry(layers, group_traces(dims["traces"], lo, t, options), True, True)
 
 
@@ -411,11 +411,12 @@ class MicrostripGroup(_Group):
 
     @classmethod
     def field_geometry(cls, dims: Mapping, options) -> Geometry:
-        from losslane.xsection.fieldsolve.geometry import Geometry, Layer
+        from losslane.xsection.fieldsolve.geometry import Geometry
+        from losslane.xsection.fieldsolve.layouts import layers_over_plane
 
         h, t = dims["height"], dims["thickness"]
         traces = group_traces(dims["traces"], h, t, options)
-        return Geometry((Layer(h, options.dielectric),), traces, True, False, options.coating)
+        return Geometry(layers_over_plane(h, options), traces, True, False, options.coating)
 
 
 def is_group(section: object) -> bool:

@@ -175,6 +175,13 @@ def section_on_layer(
         listed = ", ".join(f"{s.name} {s.dielectric.name}" for s in sheets)
         reasons.append(f"different dielectrics between the trace and its plane(s): {listed}")
     wanted = text(where, spec, "solver", SOLVERS, None)
+    if getattr(cls, "default_solver", "closed-form") == "field":  # no closed form (groups)
+        if wanted == "closed-form":
+            raise LossLaneError(
+                f"{key_name(where, 'solver')} = 'closed-form': kind {kind!r} has no closed "
+                "form; it is solved by the field solver (leave solver out)"
+            )
+        reasons.append(f"kind {kind!r} has no closed form")
     if wanted == "closed-form" and reasons:
         raise LossLaneError(
             f"{key_name(where, 'solver')} = 'closed-form': no closed form models this line "
@@ -301,12 +308,25 @@ def _field_section(cls, dims, main, metal, spec, where, pl: Placement, below, ab
     from losslane.xsection.fieldsolve.options import field_options
     from losslane.xsection.fieldsolve.section import FieldSection
 
-    options, accuracy = field_options(cls, dims, main, spec, where)
     if cls.outer_layer:
         stack = LayerStack(below if pl.outer == "top" else above)
     else:
         stack = LayerStack(below, above, pl.layer.fill == "below")
     coating = None if pl.mask is None else Coating(pl.mask.thickness, pl.mask.dielectric)
+    own = getattr(cls, "from_spec_parts", None)
+    if own is not None:  # a kind that makes its own section (groups of traces)
+        # the kind's own keys (a list of traces) read from the spec, its lengths the layer's
+        written = {**spec, **{k: f"{v!r} m" for k, v in dims.items()}}
+        parts = {**cls.dimensions_from_spec(written, where), **dims}
+        section = own(parts, main, metal, spec, where, "field")
+        options = dataclasses.replace(section.options, stack=stack, coating=coating)
+        section = dataclasses.replace(section, options=options)
+        try:
+            _ = section.geometry  # overlapping or misplaced traces are input errors now
+        except LossLaneError as exc:
+            raise LossLaneError(f"{where}: {exc}") from None
+        return section
+    options, accuracy = field_options(cls, dims, main, spec, where)
     options = dataclasses.replace(options, stack=stack, coating=coating)
     return FieldSection.from_model(cls, dims, options, metal, accuracy)
 

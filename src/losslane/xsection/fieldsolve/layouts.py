@@ -90,10 +90,7 @@ def over_plane(dims: Mapping[str, float], options: FieldOptions, pair: bool) -> 
     coating above."""
     h = dims["height"]
     traces = strips(dims, h, options.top(dims), pair)
-    layers: tuple[Layer, ...] = (Layer(h, options.dielectric),)
-    if options.stack is not None:
-        layers = merged(scaled(options.stack.below, h)[::-1])
-    return Geometry(layers, traces, True, False, options.coating)
+    return Geometry(layers_over_plane(h, options), traces, True, False, options.coating)
 
 
 def between_planes(dims: Mapping[str, float], options: FieldOptions, pair: bool) -> Geometry:
@@ -101,15 +98,31 @@ def between_planes(dims: Mapping[str, float], options: FieldOptions, pair: bool)
     ``thickness + above`` embedding them, a plane under and over the stack."""
     lo, hi, t = dims["below"], dims["above"], dims["thickness"]
     traces = strips(dims, lo, options.top(dims), pair)
+    return Geometry(layers_between_planes(lo, hi, t, options), traces, True, True)
+
+
+def layers_over_plane(height: float, options: FieldOptions) -> tuple[Layer, ...]:
+    """The dielectric layers (bottom first) under traces ``height`` over their plane: one
+    layer of ``options.dielectric``, or the stackup's sheets (``options.stack``)."""
+    if options.stack is not None:
+        return merged(scaled(options.stack.below, height)[::-1])
+    return (Layer(height, options.dielectric),)
+
+
+def layers_between_planes(
+    below: float, above: float, thickness: float, options: FieldOptions
+) -> tuple[Layer, ...]:
+    """The dielectric layers (bottom first) around traces of ``thickness`` between two
+    planes, ``below`` over the lower one and ``above`` under the upper one: a core and a
+    prepreg embedding the traces, or the stackup's sheets (``options.stack``)."""
     if options.stack is not None:
         st = options.stack
-        down, up = list(scaled(st.below, lo)), list(scaled(st.above, hi))
+        down, up = list(scaled(st.below, below)), list(scaled(st.above, above))
         near = down if st.fill_below else up
-        near[0] = Layer(near[0].thickness + t, near[0].dielectric, near[0].name)
-        return Geometry(merged(tuple(down[::-1] + up)), traces, True, True)
-    above = options.dielectric_above or options.dielectric
-    layers = (Layer(lo, options.dielectric, "core"), Layer(t + hi, above, "prepreg"))
-    return Geometry(layers, traces, True, True)
+        near[0] = Layer(near[0].thickness + thickness, near[0].dielectric, near[0].name)
+        return merged(tuple(down[::-1] + up))
+    upper = options.dielectric_above or options.dielectric
+    return (Layer(below, options.dielectric, "core"), Layer(thickness + above, upper, "prepreg"))
 
 
 def scaled(layers: tuple[Layer, ...], total: float) -> tuple[Layer, ...]:
