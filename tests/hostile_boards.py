@@ -27,6 +27,7 @@ from hostile_strategies import (
     length,
     line_spec,
     sweep_spec,
+    toml_text,
 )
 from hypothesis import strategies as st
 
@@ -281,12 +282,18 @@ def stackup_scenario(draw) -> Case:
         doc["ports"] = {"reference": f"{z0:g} ohm"}
     named = draw(st.integers(0, 2)) == 0
     boards = [draw(board("host"))] + ([draw(board("module"))] if draw(st.booleans()) else [])
+    files: dict = {}
     if not named:
         boards = boards[:1]
         boards[0].name = ""
         doc["stackup"] = {"layers": boards[0].layers}
     else:
         doc["stackups"] = {b.name: {"layers": b.layers} for b in boards}
+    if draw(st.integers(0, 3)) == 0:  # the boards in a library file the scenario names
+        files["boards.toml"] = toml_text(
+            {k: doc.pop(k) for k in ("stackup", "stackups") if k in doc}
+        )
+        doc["library"] = ["boards.toml"]
     lines: dict = {}
     for k in range(draw(st.integers(1, 3))):
         b = draw(st.sampled_from(boards))
@@ -337,7 +344,6 @@ def stackup_scenario(draw) -> Case:
         if seg is not None:
             channel.append(seg)
     doc["channel"] = channel
-    files: dict = {}
     add_sections(draw, doc, files, f, any("capacitor" in s for s in channel), diff, z0)
     return Case(doc, files, diff)
 

@@ -226,8 +226,10 @@ def coupon_options(draw, nports: int) -> tuple[list[str], list[str], bool]:
     keys: list[str] = []
     ok = True
     if nports == 4 and draw(st.booleans()):
-        argv += ["--order", draw(st.sampled_from(["in-in-out-out", "in-out-in-out"]))]
+        order = draw(st.sampled_from(["in-in-out-out", "in-in-out-out", "in-out-in-out"]))
+        argv += ["--order", order]
         keys.append("--order")
+        ok = ok and order == "in-in-out-out"  # how the coupons are numbered
     if draw(st.integers(0, 3)) == 0:
         valid = ["single-ended"] if nports == 2 else ["differential", "common"]
         mode, fine = _maybe_hostile(
@@ -314,83 +316,99 @@ def extract_case(draw) -> CommandCase:
     return CommandCase(argv, files, tuple(keys), ok, "broken file" if broken else "options")
 
 
-#: what `fit --vary` may name, and some it may not
-VARY = ["dk", "df", "rq", "radius", "surface_ratio", "conductivity"]
+#: what `fit --vary` may name: the dielectric, the conductivity, and per foil model its
+#: roughness parameters
+VARY = ["dk", "df", "conductivity"]
+FOIL_VARY = {
+    "none": [],
+    "hammerstad": ["rq"],
+    "groiss": ["rq"],
+    "huray": ["radius", "surface_ratio"],
+}
+
+
+def _foil_model(name: str | None) -> str:
+    from hostile_strategies import LIBRARY
+
+    return "none" if name is None else getattr(LIBRARY.foils[name], "model", "none")
 
 
 @st.composite
 def fit_case(draw) -> CommandCase:
-    """``losslane fit FILES --lengths ... KIND ...`` (or ``--scenario --line``)."""
+    """``losslane fit FILES --lengths ... KIND ...`` (or ``--scenario --line``): valid, or
+    with one thing wrong (an option's value, a parameter the foil does not have, a line
+    the scenario does not hold)."""
     files, inches, nports = draw(coupons())
     names = list(files)
-    lengths, ok = draw(lengths_option(inches))
+    broken = draw(st.integers(0, 2)) == 0
+    fault = draw(st.sampled_from(["lengths", "vary", "band", "line", "names", "noise", "out"]))
+    fault = fault if broken else None
+    if fault == "lengths":
+        lengths, _ = draw(lengths_option(inches).filter(lambda x: not x[1]))
+    else:
+        lengths = ",".join(f"{x:g}" for x in inches) + "in"
     keys = ["--lengths", "FILE", "KIND", "--vary", "--foil", "--foil-model", *names]
     argv = ["fit", *[f"{{dir}}/{n}" for n in names], "--lengths", lengths]
     kind = draw(st.sampled_from(SINGLE if nports == 2 else PAIRS))
-    if draw(st.integers(0, 3)) == 0:  # the line of a scenario
-        spec = draw(line_spec(kind, DIELECTRICS, FOILS))
+    foils = [f for f in FOILS if _foil_model(f) != "graded"]  # a graded foil is not fitted
+    spec = draw(line_spec(kind, DIELECTRICS, foils))
+    if fault == "line" or draw(st.integers(0, 3)) == 0:  # the line of a scenario
         doc = {
             "sweep": {"start": "0 Hz", "stop": "1 GHz", "points": 3},
             "lines": {"coupon": spec},
             "channel": [{"line": "coupon", "length": "1 in"}],
         }
         files["coupon.toml"] = toml_text(doc)
-        line = draw(st.sampled_from(["coupon", "coupon", "nope"]))
+        line = "nope" if fault == "line" else "coupon"
         argv += ["--scenario", "{dir}/coupon.toml", "--line", line]
-        ok = ok and line == "coupon"
         keys += ["--scenario", "--line", "coupon.toml"]
     else:
-        spec = draw(line_spec(kind, DIELECTRICS, FOILS))
         argv.append(kind)
         for key in registry_dimensions(kind):
             argv += [f"--{key}", spec[key]]
         argv += ["--dielectric", spec["dielectric"]]
         if "foil" in spec:
             argv += ["--foil", spec["foil"]]
-    vary = draw(st.lists(st.sampled_from(VARY), min_size=1, max_size=3, unique=True))
-    if draw(st.integers(0, 9)) == 0:
-        vary.append(draw(st.sampled_from(["width", "x", "", "dk"])))
-        ok = False
+        if "conductivity" in spec:
+            argv += ["--conductivity", spec["conductivity"]]
+    model = _foil_model(spec.get("foil"))
+    if draw(st.integers(0, 3)) == 0:  # another roughness model, its parameters varied
+        model = draw(st.sampled_from(["hammerstad", "groiss", "huray"]))
+        argv += ["--foil-model", model]
+    pool = VARY + FOIL_VARY[model]
+    vary = draw(st.lists(st.sampled_from(pool), min_size=1, max_size=3, unique=True))
+    if model != _foil_model(spec.get("foil")) and not set(FOIL_VARY[model]) & set(vary):
+        vary.append(FOIL_VARY[model][0])
+    if fault == "vary":
+        others = [p for v in FOIL_VARY.values() for p in v if p not in FOIL_VARY[model]]
+        vary.append(draw(st.sampled_from(["width", "x", "", *others])))
     argv += ["--vary", ",".join(vary)]
-    # a roughness parameter must belong to the foil model: leave that to the command
-    if {"rq"} & set(vary) and {"radius", "surface_ratio"} & set(vary):
-        ok = False
-    if draw(st.integers(0, 3)) == 0:
-        band, fine = _maybe_hostile(
-            draw,
-            st.sampled_from(["1GHz,8GHz", "0.5GHz,9GHz"]),
-            st.sampled_from(["8GHz,1GHz", "0Hz,1GHz", "50GHz,60GHz", "1GHz", "x,y"]),
-            2,
-        )
-        argv += ["--band", band]
+    if fault == "band" or draw(st.integers(0, 3)) == 0:
+        good = st.sampled_from(["1GHz,8GHz", "0.5GHz,9GHz"])
+        bad = st.sampled_from(["8GHz,1GHz", "0Hz,1GHz", "50GHz,60GHz", "1GHz", "x,y"])
+        argv += ["--band", draw(bad if fault == "band" else good)]
         keys.append("--band")
-        ok = ok and fine
-    if draw(st.integers(0, 3)) == 0:
-        fm = draw(st.sampled_from(["none", "hammerstad", "groiss", "huray"]))
-        argv += ["--foil-model", fm]
-    if draw(st.integers(0, 3)) == 0:
-        lib, fine = _maybe_hostile(
-            draw,
-            st.just("{dir}/fitted.toml"),
-            st.sampled_from(["{dir}/no/such/x.toml", "{dir}", ""]),
-            3,
-        )
+    if fault in ("names", "out") or draw(st.integers(0, 3)) == 0:
+        lib = "{dir}/fitted.toml"
+        if fault == "out":
+            lib = draw(st.sampled_from(["{dir}/no/such/x.toml", "{dir}", ""]))
         argv += ["--write-library", lib]
         keys.append("--write-library")
-        ok = ok and fine
-        if draw(st.booleans()):
-            names_opt, fine = _maybe_hostile(
-                draw, st.sampled_from(["lam,cu", "lam"]), st.sampled_from(["a,b,c", ",", ""]), 2
-            )
-            argv += ["--names", names_opt]
+        if fault == "names" or draw(st.booleans()):
+            bad = st.sampled_from(["a,b,c", ",", ""])
+            argv += [
+                "--names",
+                draw(bad if fault == "names" else st.sampled_from(["lam,cu", "lam"])),
+            ]
             keys.append("--names")
-            ok = ok and fine
-    more, more_keys, fine = draw(coupon_options(nports))
-    argv += more
-    keys += more_keys
-    ok = ok and fine
+    if fault == "noise":
+        opt = draw(st.sampled_from(["--noise", "--noise-floor"]))
+        argv += [opt, draw(st.sampled_from(["nan", "inf", "-1", "x", ""]))]
+        keys.append(opt)
+    elif draw(st.integers(0, 3)) == 0:
+        argv += ["--noise", draw(st.sampled_from(["1e-3", "0.01"]))]
     argv.append("--json")
-    return CommandCase(argv, files, tuple(keys), False, "fit")  # fits may legitimately refuse
+    return CommandCase(argv, files, tuple(keys), fault is None, fault or "valid")
 
 
 def registry_dimensions(kind: str) -> tuple[str, ...]:

@@ -83,8 +83,8 @@ def _write_case(directory: Path, case: Case) -> Path:
         p = directory / name
         if isinstance(content, bytes):
             p.write_bytes(content)
-        else:
-            p.write_text(content, encoding="latin-1")
+        else:  # TOML is UTF-8; Touchstone files are read as Latin-1
+            p.write_text(content, encoding="utf-8" if name.endswith(".toml") else "latin-1")
     scenario = directory / "lane.toml"
     scenario.write_text(toml_text(case.doc), encoding="utf-8")
     return scenario
@@ -94,7 +94,7 @@ def _listing(directory: Path) -> set[Path]:
     return set(directory.rglob("*"))
 
 
-def _check_success(out: str, out_dir: Path, differential: bool, nports: int | None = None) -> None:
+def _check_success(out: str, out_dir: Path, case: Case) -> None:
     doc = strict_json(out)
     no_nan_reason(doc)
     assert finite_tree(doc)
@@ -105,13 +105,17 @@ def _check_success(out: str, out_dir: Path, differential: bool, nports: int | No
     no_nan_reason(strict_json(budget_json[0].read_text(encoding="utf-8")))
     net = read_touchstone(doc["touchstone"])
     s = np.asarray(net.s)
-    assert net.nports == (nports or (4 if differential else 2))
+    assert net.nports == (case.nports or (4 if case.differential else 2))
     assert np.all(np.isfinite(s))
-    if nports:  # a channel on group lines: the victim's own file too
+    if case.as_is:  # a file accepted as it is: the outputs say they carry no guarantee
+        assert doc["guaranteed_passive_reciprocal"] is False
+        return
+    assert doc["guaranteed_passive_reciprocal"] is True
+    if case.nports:  # a channel on group lines: the victim's own file too
         for p in written:
             if p.suffix.startswith(".s") and p.suffix.endswith("p"):
                 check_network(np.asarray(read_touchstone(p).s), 1e-9)
-    if differential:
+    if case.differential:
         il = -20 * np.log10(np.maximum(np.abs(s[:, 2, 0]), 1e-300))
         if float(np.max(il)) > PAIR_LOSS_LIMIT_DB:
             note(f"differential loss {np.max(il):.1f} dB: passivity not asserted")
@@ -133,8 +137,12 @@ def _run_build(case: Case, plots: bool = False) -> tuple[int, str, str, Path]:
     from losslane.cli import main
 
     stdout, stderr = io.StringIO(), io.StringIO()
-    with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
-        rc = main(argv)
+    try:
+        with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
+            rc = main(argv)
+    except BaseException:
+        _cleanup(d)  # a traceback fails the test; its scratch folder goes all the same
+        raise
     return rc, stdout.getvalue(), stderr.getvalue(), d
 
 
@@ -157,7 +165,7 @@ def test_valid_scenarios_build_passive_reciprocal_strict_outputs(case):
     try:
         note(err)
         assert rc == 0, err
-        _check_success(out, d / "out", case.differential)
+        _check_success(out, d / "out", case)
         assert [p.name for p in d.iterdir() if p.name.startswith(".")] == []
     finally:
         _cleanup(d)
@@ -169,7 +177,7 @@ def test_valid_scenarios_with_charts(case):
     rc, out, err, d = _run_build(case, plots=True)
     try:
         assert rc == 0, err
-        _check_success(out, d / "out", case.differential)
+        _check_success(out, d / "out", case)
     finally:
         _cleanup(d)
 
@@ -184,7 +192,7 @@ def test_broken_scenarios_are_refused_naming_the_key(case):
         note(err)
         assert rc in (0, 2), err
         if rc == 0:  # the mutation happened to be valid: the outputs must be sound
-            _check_success(out, d / "out", case.differential)
+            _check_success(out, d / "out", case)
             return
         msg = _refusal(err)
         assert out == ""
@@ -213,7 +221,7 @@ def _refused_or_sound(case: Case, plots: bool = False) -> None:
         note(err)
         assert rc in (0, 2), err
         if rc == 0:
-            _check_success(out, d / "out", case.differential, case.nports)
+            _check_success(out, d / "out", case)
             assert [p.name for p in d.iterdir() if p.name.startswith(".")] == []
             return
         assert case.what != "valid", err
@@ -400,8 +408,12 @@ def _run_command(case: CommandCase) -> tuple[int, str, str, Path, set[Path], lis
     note(repr(argv))
     before = _listing(d)
     stdout, stderr = io.StringIO(), io.StringIO()
-    with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
-        rc = main(argv)
+    try:
+        with contextlib.redirect_stdout(stdout), contextlib.redirect_stderr(stderr):
+            rc = main(argv)
+    except BaseException:
+        _cleanup(d)
+        raise
     return rc, stdout.getvalue(), stderr.getvalue(), d, before, argv
 
 

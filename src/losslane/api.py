@@ -785,14 +785,12 @@ def run_sweep(
 
     p = load_plan(plan)
     from losslane.report.channel import slug
+    from losslane.report.output import check_output_file
 
     target = Path(out) if out is not None else Path(f"{slug(p.name)}.parquet")
     if target.suffix.lower() not in (".parquet", ".csv"):
         raise LossLaneError(f"--out {str(target)!r}: the table is written as .parquet or .csv")
-    if not target.resolve().parent.is_dir():
-        raise LossLaneError(
-            f"--out {str(target)!r}: the folder {str(target.resolve().parent)!r} does not exist"
-        )
+    check_output_file(target, "--out", None)  # the one rule of output locations
     if workers is not None and (isinstance(workers, bool) or workers < 0):
         raise LossLaneError(f"--workers = {workers!r}: expected a whole number >= 0")
     table, warned = run(p, target, workers=workers, scheduler=scheduler, progress=progress)
@@ -1128,6 +1126,18 @@ def _fit_foil_model(section, vary: tuple[str, ...], foil_model: str | None, wher
     return model
 
 
+def _fit_message(message: str, where: Where, band_given: bool) -> str:
+    """A message of ``measure.fit`` in the caller's words: its keyword names as the
+    caller's options (``--band``), and a band the caller did not give as the extraction's."""
+    import re
+
+    if not band_given:
+        message = re.sub(r"^band = ", "the extraction's usable band ", message)
+    names = ("vary", "foil_model", "band", "mode")
+    pattern = r"\b(" + "|".join(names) + r")\b(?= = |:)"
+    return re.sub(pattern, lambda m: where.key(m.group(1)), message)
+
+
 def fit(
     files: Iterable[str | Path],
     lengths: str | Iterable[str],
@@ -1227,7 +1237,18 @@ def fit(
         raise LossLaneError(
             f"{k('band')} = {band!r} lies outside the measured band {ext.f[0]:g}..{ext.f[-1]:g} Hz"
         )
-    result = fit_materials(ext, section, vary_t, band=band_hz, foil_model=model)
+    usable = ext.usable_band_hz
+    if band_hz is None and (usable is None or not usable[0] < usable[1]):
+        found = "no point" if usable is None else f"only {usable[0]:g} Hz"
+        raise LossLaneError(
+            f"the extraction's usable band holds {found} (every other point is flagged: see "
+            f"`losslane extract` on these coupons); give {k('band')} START,STOP to choose the "
+            "band yourself"
+        )
+    try:
+        result = fit_materials(ext, section, vary_t, band=band_hz, foil_model=model)
+    except LossLaneError as exc:  # the fit's keywords, as this caller names them
+        raise LossLaneError(_fit_message(str(exc), where, band_hz is not None)) from None
     written = write_fit_files(result, out, plots) if out is not None else []
     if lib_path is not None:
         text_ = result.library_toml(entry[0], entry[1])

@@ -36,7 +36,7 @@ from dataclasses import dataclass
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness
-from losslane.spec import check_keys, quantity, suggest, text
+from losslane.spec import check_keys, dimension, suggest, text
 from losslane.units import OZ_COPPER
 
 #: the name of the unnamed ``[stackup]`` (named ones are ``[stackups.NAME]``)
@@ -306,7 +306,7 @@ def _layer(
                     f"(1 oz = {OZ_COPPER * 1e6:g} um, common practice)"
                 )
         key = "thickness" if "thickness" in entry else "weight"
-        t = quantity(lw, entry, key, "length", required=True)
+        t = dimension(lw, entry, key, required=True)  # a board dimension: 1 nm .. 1 m
         _positive(lw, key, entry[key], t)
         foil = None
         if "foil" in entry:
@@ -322,7 +322,7 @@ def _layer(
     diel = resolve_dielectric(d, f"{lw}.{role}")
     if "thickness" not in entry:
         raise LossLaneError(f'{lw}: missing thickness (a length, e.g. "3.5 mil")')
-    t = quantity(lw, entry, "thickness", "length", required=True)
+    t = dimension(lw, entry, "thickness", required=True)
     _positive(lw, "thickness", entry["thickness"], t)
     return StackLayer(lname, role, t, i, dielectric=diel)
 

@@ -39,7 +39,7 @@ from dataclasses import dataclass
 
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
-from losslane.spec import check_keys, quantity, text
+from losslane.spec import check_keys, dimension, text
 from losslane.stackup import StackLayer, Stackup, choose
 
 #: the drill form's keys
@@ -243,7 +243,7 @@ def _hole_bottom(
             )
         return st.depth_top(bd.name), bd.name
     if "stub" in body:
-        stub = quantity(where, body, "stub", "length", required=True)
+        stub = dimension(where, body, "stub", required=True, zero_ok=True)
         room = bottom_face - c_out if exit_ is not last else 0.0
         if stub < 0 or stub > room + 1e-12 * st.thickness:
             raise LossLaneError(
@@ -265,7 +265,7 @@ def _signal(st: Stackup, name: object, key: str) -> StackLayer:
 
 
 def _length(where: str, body: Mapping, key: str) -> float:
-    v = quantity(where, body, key, "length", required=True)
+    v = dimension(where, body, key, required=True)  # a board dimension: 1 nm .. 1 m
     if not v > 0:
         raise LossLaneError(f"{where}.{key} = {body[key]!r}: must be > 0")
     return v

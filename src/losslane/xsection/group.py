@@ -111,6 +111,7 @@ def member(members: tuple[Member, ...], name: str, key: str = "victim") -> Membe
 def parse_traces(spec: Mapping, where: str) -> tuple[GroupTrace, ...]:
     """The ``traces`` list of a group spec: tables with name, width, and spacing (a pair)
     and gap (required from the second trace on), lengths with units."""
+    from losslane.limits import check_dimension
     from losslane.spec import check_keys, key_name, quantity
 
     raw = spec.get("traces")
@@ -138,6 +139,9 @@ def parse_traces(spec: Mapping, where: str) -> tuple[GroupTrace, ...]:
         width = quantity(w, entry, "width", "length", required=True)
         spacing = quantity(w, entry, "spacing", "length")
         gap = quantity(w, entry, "gap", "length")
+        for key, v in (("width", width), ("spacing", spacing), ("gap", gap)):
+            if v is not None and v > 0:  # a board dimension: 1 nm .. 1 m (signs below)
+                check_dimension(v, f"{w}.{key}", entry[key])
         if not width > 0:
             raise LossLaneError(f"{w}.width = {entry['width']!r}: a trace needs width > 0")
         if spacing is not None and not spacing > 0:

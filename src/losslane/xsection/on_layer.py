@@ -30,6 +30,7 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 
 from losslane.errors import LossLaneError
+from losslane.limits import check_dimension
 from losslane.materials.dielectric import Dielectric
 from losslane.materials.roughness import Roughness
 from losslane.spec import check_keys, key_name, quantity, text
@@ -145,6 +146,7 @@ def section_on_layer(
         if v < 0 if key in MAY_BE_ZERO else v <= 0:
             bound = ">= 0" if key in MAY_BE_ZERO else "> 0"
             raise LossLaneError(f"{key_name(where, key)} = {spec[key]!r}: {key} must be {bound}")
+        check_dimension(v, key_name(where, key), spec[key], key in MAY_BE_ZERO)
         dims[key] = v
     if cls.outer_layer:
         dims["height"] = pl.distance_below if pl.outer == "top" else pl.distance_above
