@@ -225,7 +225,9 @@ def drill_via(draw, b: Board, pair: bool, stackup: str | None) -> dict | None:
     if end == "backdrill" and below:
         via["backdrill"] = b.layers[draw(st.sampled_from(below))]["name"]
     elif end == "stub" and z != cu[-1]:
-        via["stub"] = f"{draw(st.floats(0.0, 1.0)) * _room_mil(b, z) * 0.999:.4g} mil"
+        # no stub, or one of at least 1 % of the room (never a subnormal length)
+        share = draw(st.one_of(st.just(0.0), st.floats(0.01, 1.0)))
+        via["stub"] = f"{share * _room_mil(b, z) * 0.999:.4g} mil"
     elif end == "blind":
         via["blind"] = True
     if draw(st.integers(0, 3)) == 0:

@@ -1,22 +1,28 @@
 """Hostile input, property-based (issue 11): generated scenarios (valid, and valid ones with
-one thing broken), Touchstone texts (valid and corrupted) and command options. Whatever
-the input:
+one thing broken) -- plain channels, channels on stackups (lines on layers, drilled vias,
+skew) and on group lines with crosstalk, with budgets (checks, bands, masks), [plots],
+[time] and [compare] --, Touchstone texts (valid and corrupted), and the options of
+``line``, ``build``, ``inspect``, ``extract``, ``fit`` and ``sweep`` (plans valid and
+broken). Whatever the input:
 
-* the exit code is 0 or 2 and nothing raises (a traceback fails the test);
+* the exit code is 0 or 2 (a sweep: 1 when some of its cases failed, each error in its
+  table) and nothing raises (a traceback fails the test);
 * a refusal is one ``error:`` line naming the offending key -- a missing key as missing,
   a bad imported file by its path -- and leaves no file behind;
 * a success prints strict JSON (RFC 8259: no NaN or Infinity) with no NaN hidden in it,
   writes only the files it lists, and its S-parameters are finite, passive (largest
   singular value <= 1 + 1e-9) and reciprocal (max |S - S^T| <= 1e-9) -- the IEEE
-  370-2020 passivity and reciprocity criteria at a 1e-9 tolerance.
+  370-2020 passivity and reciprocity criteria at a 1e-9 tolerance -- unless a file was
+  accepted ``as_is`` (the outputs then say they carry no guarantee).
 
 Excluded for now, and why: differential channels whose insertion loss exceeds 100 dB are
 not held to the passivity/reciprocity bound (very lossy coupled pairs lose precision in
 the modal path; that is being fixed separately), and the generated valid channels stay
 well below it (lines of a few inches, sweeps to 40 GHz). Imported files in the valid
 channels always hold a 0 Hz point (the DC extrapolation of files without one is not
-exercised here). The field solver is not driven by hypothesis (a solve per example is
-too slow for ``make test``; its inputs go through the same key checks).
+exercised here). The field solver runs at its coarsest accuracy, and only where a line
+needs it (a mask, two laminates, a group of traces) or asks for it; group channels get a
+handful of examples (a solve per example).
 
 Example counts are sized for ``make test`` (well under two minutes on two cores);
 ``make soak`` runs the same properties with twenty times as many random examples.
@@ -171,8 +177,8 @@ def test_valid_scenarios_build_passive_reciprocal_strict_outputs(case):
         _cleanup(d)
 
 
-@settings(max_examples=examples(4))
-@given(valid_scenario())
+@settings(max_examples=examples(6))
+@given(st.one_of(valid_scenario(), valid_scenario(), stackup_scenario(), group_scenario()))
 def test_valid_scenarios_with_charts(case):
     rc, out, err, d = _run_build(case, plots=True)
     try:
@@ -234,26 +240,26 @@ def _refused_or_sound(case: Case, plots: bool = False) -> None:
         _cleanup(d)
 
 
-@settings(max_examples=examples(30))
+@settings(max_examples=examples(40))
 @given(stackup_scenario())
 def test_valid_stackup_scenarios(case):
     _refused_or_sound(case)
 
 
-@settings(max_examples=examples(80))
+@settings(max_examples=examples(120))
 @given(broken_scenario(stackup_scenario()))
 def test_broken_stackup_scenarios(case):
     note(f"{case.what}: {case.key}")
     _refused_or_sound(case)
 
 
-@settings(max_examples=examples(4))
+@settings(max_examples=examples(5))
 @given(group_scenario())
 def test_valid_group_scenarios(case):
     _refused_or_sound(case)
 
 
-@settings(max_examples=examples(8))
+@settings(max_examples=examples(12))
 @given(broken_scenario(group_scenario()))
 def test_broken_group_scenarios(case):
     note(f"{case.what}: {case.key}")
@@ -455,7 +461,7 @@ def _command_property(case: CommandCase) -> None:
         note(err)
         assert rc in (0, 2), err
         if rc == 2:
-            assert not case.valid, err
+            assert not case.valid or any(m in err for m in case.may_refuse), err
             _command_refused(case, out, err, d, before)
         else:
             _command_succeeded(out, d, before)
@@ -463,19 +469,19 @@ def _command_property(case: CommandCase) -> None:
         _cleanup(d)
 
 
-@settings(max_examples=examples(30))
+@settings(max_examples=examples(40))
 @given(inspect_case())
 def test_inspect_options(case):
     _command_property(case)
 
 
-@settings(max_examples=examples(20))
+@settings(max_examples=examples(30))
 @given(extract_case())
 def test_extract_options(case):
     _command_property(case)
 
 
-@settings(max_examples=examples(8))
+@settings(max_examples=examples(10))
 @given(fit_case())
 def test_fit_options(case):
     _command_property(case)
@@ -511,7 +517,7 @@ def _check_table(doc: dict, cases: int | None, failed_ok: bool) -> None:
             assert np.all(np.isfinite(values)), name
 
 
-@settings(max_examples=examples(12))
+@settings(max_examples=examples(15))
 @given(sweep_case())
 def test_valid_sweep_plans(case):
     rc, out, err, d, before, _ = _run_command(case)
@@ -525,7 +531,7 @@ def test_valid_sweep_plans(case):
         _cleanup(d)
 
 
-@settings(max_examples=examples(40))
+@settings(max_examples=examples(60))
 @given(broken_sweep_case())
 def test_broken_sweep_plans(case):
     rc, out, err, d, before, _ = _run_command(case)

@@ -347,6 +347,7 @@ def test_plan_keys_of_the_wrong_type_are_refused_naming_them(capsys, tmp_path, t
     [
         ("[base]\nkind", "[vary.x]\nkind", "[base] = 'x'"),
         ('at = ["1 GHz"]', "at = 3", "[results].at = 3"),
+        ('thickness = "1.4 mil"', 'thickness = "1.4 mil"\nwidht = "5 mil"', "[base]: unknown key"),
         ('at = ["1 GHz"]', 'at = ["1 GHz"]\ntouchstone = "yes"', "[results].touchstone"),
     ],
 )

@@ -306,7 +306,8 @@ def _layer(
                     f"(1 oz = {OZ_COPPER * 1e6:g} um, common practice)"
                 )
         key = "thickness" if "thickness" in entry else "weight"
-        t = dimension(lw, entry, key, required=True)  # a board dimension: 1 nm .. 1 m
+        # a board dimension (1 nm .. 1 m); zero passes here so that its message says > 0
+        t = dimension(lw, entry, key, required=True, zero_ok=True)
         _positive(lw, key, entry[key], t)
         foil = None
         if "foil" in entry:
@@ -322,7 +323,7 @@ def _layer(
     diel = resolve_dielectric(d, f"{lw}.{role}")
     if "thickness" not in entry:
         raise LossLaneError(f'{lw}: missing thickness (a length, e.g. "3.5 mil")')
-    t = dimension(lw, entry, "thickness", required=True)
+    t = dimension(lw, entry, "thickness", required=True, zero_ok=True)
     _positive(lw, "thickness", entry["thickness"], t)
     return StackLayer(lname, role, t, i, dielectric=diel)
 

@@ -114,6 +114,14 @@ def _x_values(plan, tbl, x: str) -> tuple[list, str]:
     return [None if v is None else v / factor for v in metres], f"{x} ({m.group(2)})"
 
 
+def _safe(column: str) -> str:
+    """A column name as part of a file name: what is not a letter, digit, dot, dash or
+    underscore becomes a dash (a key written with a slash stays in the folder)."""
+    import re
+
+    return re.sub(r"[^A-Za-z0-9._-]+", "-", column)
+
+
 @user_text
 def sweep_charts(result, stem: Path) -> list[Path]:
     """A result against one varied parameter grouped by another (the plan's ``chart``, or
@@ -167,7 +175,7 @@ def sweep_charts(result, stem: Path) -> list[Path]:
                 heading += f"\n(one line per {', '.join(others)})"
             ax.set_title(heading, fontsize=10)
             fig.tight_layout()
-            out.append(save_figure(fig, stem.with_name(stem.name + f"-{y}.png")))
+            out.append(save_figure(fig, stem.with_name(f"{stem.name}-{_safe(y)}.png")))
         finally:
             plt.close(fig)
     if plan.random and col in tbl.column_names:
@@ -181,7 +189,8 @@ def sweep_charts(result, stem: Path) -> list[Path]:
                 ax.set_ylabel("cases")
                 ax.grid(True, alpha=0.3)
                 fig.tight_layout()
-                out.append(save_figure(fig, stem.with_name(stem.name + f"-{col}-histogram.png")))
+                name = f"{stem.name}-{_safe(col)}-histogram.png"
+                out.append(save_figure(fig, stem.with_name(name)))
             finally:
                 plt.close(fig)
     return out

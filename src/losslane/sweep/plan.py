@@ -416,8 +416,12 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
         kinds = [
             v for v in ([base["kind"]] + [x for p in params if p.key == "kind" for x in p.values])
         ]
+        from losslane.xsection.factory import NOTE_KEY, spec_keys
+
+        known = {NOTE_KEY, "layer", "stackup"}  # a line on a stackup layer
         for k in kinds:
-            registry.model(str(k), "[base].kind")
+            known |= set(spec_keys(registry.model(str(k), "[base].kind"), "field"))
+        check_keys("[base]", base, sorted(known))  # a typo is a bad plan, not a failed case
     else:
         for p in params:
             if "." not in p.key:
