@@ -23,49 +23,19 @@ Run standalone with ``python benchmarks/bench_build.py``.
 
 from __future__ import annotations
 
-import os
-import resource
 import statistics
-import subprocess
 import sys
 import tempfile
-import time
 from pathlib import Path
 
-HERE = Path(__file__).resolve().parent
-SRC = HERE.parent / "src"
+from benchkit import HERE, losslane_argv, print_rows, timed_process
+
 SCENARIO = HERE / "data" / "twenty-segments.toml"
 SKRF_SCRIPT = HERE / "skrf_equivalent.py"
 RUNS = 5
 RATIO_TARGET = 1 / 3
 DEMO_TARGET_S = 1.5
 DEMO_PLOTS_TARGET_S = 5.0
-
-
-def _env() -> dict[str, str]:
-    path = os.environ.get("PYTHONPATH", "")
-    env = {**os.environ, "PYTHONPATH": str(SRC) + (os.pathsep + path if path else "")}
-    # as on a user's machine: compiled bytecode is cached after the first run (installed
-    # packages such as scikit-rf have theirs from pip already); some shells set
-    # PYTHONDONTWRITEBYTECODE, which would recompile losslane's sources on every run
-    env.pop("PYTHONDONTWRITEBYTECODE", None)
-    return env
-
-
-def _cpu_children() -> float:
-    r = resource.getrusage(resource.RUSAGE_CHILDREN)
-    return r.ru_utime + r.ru_stime
-
-
-def _wall(argv: list[str], cwd: Path) -> tuple[float, float]:
-    """(wall, CPU) seconds of one run of ``argv`` in a new process."""
-    c0 = _cpu_children()
-    t0 = time.perf_counter()
-    r = subprocess.run(argv, cwd=cwd, env=_env(), capture_output=True, text=True, timeout=300)
-    dt = time.perf_counter() - t0
-    if r.returncode != 0:
-        raise RuntimeError(f"{' '.join(argv)} failed ({r.returncode}):\n{r.stderr}")
-    return dt, _cpu_children() - c0
 
 
 def _median_walls(*argv_for_run, runs: int = RUNS) -> list[tuple[float, float]]:
@@ -77,12 +47,8 @@ def _median_walls(*argv_for_run, runs: int = RUNS) -> list[tuple[float, float]]:
             for i, make in enumerate(argv_for_run):
                 d = Path(tmp) / f"run{k}-{i}"
                 d.mkdir()
-                times[i].append(_wall(make(d), d))
+                times[i].append(timed_process(make(d), d))
     return [(statistics.median(w for w, _ in t), statistics.median(c for _, c in t)) for t in times]
-
-
-def _losslane(*args: str) -> list[str]:
-    return [sys.executable, "-m", "losslane", *args]
 
 
 def _top_loss_db(path: Path) -> float:
@@ -98,20 +64,20 @@ def run() -> list[tuple[str, float, float | None, str]]:
     # warm for every timed run alike
     with tempfile.TemporaryDirectory() as tmp:
         d = Path(tmp)
-        _wall(_losslane("build", str(SCENARIO), "--no-plots", "--out", "a"), d)
-        _wall([sys.executable, str(SKRF_SCRIPT), str(SCENARIO), "b"], d)
+        timed_process(losslane_argv("build", str(SCENARIO), "--no-plots", "--out", "a"), d)
+        timed_process([sys.executable, str(SKRF_SCRIPT), str(SCENARIO), "b"], d)
         il_ours = _top_loss_db(d / "a" / "twenty-segments.s2p")
         il_skrf = _top_loss_db(d / "b" / "twenty-segments.s2p")
-        _wall(_losslane("demo", "--out", "c"), d)  # matplotlib's font cache, if any
+        timed_process(losslane_argv("demo", "--out", "c"), d)  # matplotlib's font cache, if any
 
     t_ours, t_skrf = _median_walls(
-        lambda d: _losslane("build", str(SCENARIO), "--no-plots", "--out", str(d / "o")),
+        lambda d: losslane_argv("build", str(SCENARIO), "--no-plots", "--out", str(d / "o")),
         lambda d: [sys.executable, str(SKRF_SCRIPT), str(SCENARIO), str(d)],
         runs=RUNS + 4,
     )
     t_demo, t_plots = _median_walls(
-        lambda d: _losslane("demo", "--no-plots", "--out", str(d / "o")),
-        lambda d: _losslane("demo", "--out", str(d / "o")),
+        lambda d: losslane_argv("demo", "--no-plots", "--out", str(d / "o")),
+        lambda d: losslane_argv("demo", "--out", str(d / "o")),
     )
     label = "20 microstrip segments, 10 001 points, new process"
     return [
@@ -127,8 +93,4 @@ def run() -> list[tuple[str, float, float | None, str]]:
 
 
 if __name__ == "__main__":
-    rows = run()
-    width = max(len(r[0]) for r in rows)
-    for name, measured, target, unit in rows:
-        goal = "" if target is None else f"   (target {target:.3g} {unit})"
-        print(f"{name:<{width}}  {measured:8.3g} {unit}{goal}")
+    print_rows(run())

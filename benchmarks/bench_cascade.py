@@ -11,23 +11,12 @@ Run standalone with ``python benchmarks/bench_cascade.py`` (PYTHONPATH=src).
 
 from __future__ import annotations
 
-import statistics
-import time
-
 import numpy as np
+from benchkit import median_time, print_rows
 
 POINTS = 10_001
 SEGMENTS = 20
 SPEEDUP_TARGET = 10.0
-
-
-def _median_time(fn, repeats: int) -> float:
-    times = []
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times)
 
 
 def _sections():
@@ -78,15 +67,15 @@ def run() -> list[tuple[str, float, float | None, str]]:
     def rlgc_all():
         return [s.rlgc(f) for s in sections]
 
-    t_build = _median_time(build, 3)
+    t_build = median_time(build, 3)
     rlgcs = rlgc_all()
-    t_rlgc = _median_time(rlgc_all, 3)
+    t_rlgc = median_time(rlgc_all, 3)
 
     def abcd_all():
         lines = [UniformLine.from_rlgc(r) for r in rlgcs]
         return [lines[k % len(sections)].scaled_abcd(lengths[k]) for k in range(SEGMENTS)]
 
-    t_abcd = _median_time(abcd_all, 3)
+    t_abcd = median_time(abcd_all, 3)
     items = build()
     nets = [block_network(b, f, 50.0) for b in blocks]
 
@@ -110,9 +99,9 @@ def run() -> list[tuple[str, float, float | None, str]]:
     assert diff < 1e-9, f"cascade results differ from scikit-rf by {diff:g}"
     assert np.max(np.abs(matmul_variant() - a.s)) < 1e-12
 
-    t_ours = _median_time(ours, 7)
-    t_theirs = _median_time(theirs, 5)
-    t_matmul = _median_time(matmul_variant, 5)
+    t_ours = median_time(ours, 7)
+    t_theirs = median_time(theirs, 5)
+    t_matmul = median_time(matmul_variant, 5)
     label = f"{SEGMENTS} segments x {POINTS} points"
     return [
         (
@@ -145,10 +134,7 @@ def run() -> list[tuple[str, float, float | None, str]]:
 
 if __name__ == "__main__":
     rows = run()
-    width = max(len(r[0]) for r in rows)
-    for name, measured, target, unit in rows:
-        goal = "" if target is None else f"   (target {target:g} {unit})".rstrip()
-        print(f"{name:<{width}}  {measured:10.4g} {unit}{goal}")
+    print_rows(rows)
     speedup = 1.0 / rows[0][1]
     if speedup < SPEEDUP_TARGET:
         raise SystemExit(f"speed-up {speedup:.3g}x is below the {SPEEDUP_TARGET:g}x goal")

@@ -11,40 +11,21 @@ runs, the three commands taking turns run by run. Run standalone with
 
 from __future__ import annotations
 
-import os
-import resource
 import statistics
-import subprocess
-import sys
 import tempfile
-import time
 from pathlib import Path
 
-HERE = Path(__file__).resolve().parent
-SRC = HERE.parent / "src"
+from benchkit import HERE, losslane_argv, print_rows, timed_process
+
 KU = HERE.parent / "examples" / "ku-feed-band.toml"
 TARGET_S = 5.0
 RUNS = 3
 
 
-def _env() -> dict[str, str]:
-    path = os.environ.get("PYTHONPATH", "")
-    env = {**os.environ, "PYTHONPATH": str(SRC) + (os.pathsep + path if path else "")}
-    env.pop("PYTHONDONTWRITEBYTECODE", None)  # bytecode cached, as on a user's machine
-    return env
-
-
 def _timed(args: list[str], cwd: Path) -> tuple[float, float]:
-    """(wall, CPU) seconds of one `losslane ...` run in a new process."""
-    r0 = resource.getrusage(resource.RUSAGE_CHILDREN)
-    t0 = time.perf_counter()
-    argv = [sys.executable, "-m", "losslane", *args]
-    r = subprocess.run(argv, cwd=cwd, env=_env(), capture_output=True, text=True, timeout=300)
-    wall = time.perf_counter() - t0
-    r1 = resource.getrusage(resource.RUSAGE_CHILDREN)
-    if r.returncode not in (0, 1):  # 1: the Ku example's band fails (--strict is not set)
-        raise RuntimeError(f"{' '.join(argv)} failed ({r.returncode}):\n{r.stderr}")
-    return wall, (r1.ru_utime + r1.ru_stime) - (r0.ru_utime + r0.ru_stime)
+    """(wall, CPU) seconds of one `losslane ...` run in a new process (exit 1 accepted: the
+    Ku example's band fails, and --strict is not set)."""
+    return timed_process(losslane_argv(*args), cwd, ok=(0, 1))
 
 
 COMMANDS = (
@@ -73,8 +54,4 @@ def run() -> list[tuple[str, float, float | None, str]]:
 
 
 if __name__ == "__main__":
-    rows = run()
-    width = max(len(r[0]) for r in rows)
-    for name, measured, target, unit in rows:
-        goal = "" if target is None else f"   (target {target:.3g} {unit})"
-        print(f"{name:<{width}}  {measured:8.3g} {unit}{goal}")
+    print_rows(run())

@@ -19,13 +19,11 @@ Run standalone with ``python benchmarks/bench_crosstalk.py``.
 from __future__ import annotations
 
 import statistics
-import sys
 import time
 import warnings
-from pathlib import Path
 
-HERE = Path(__file__).resolve().parent
-SRC = HERE.parent / "src"
+from benchkit import print_rows, use_source_tree
+
 REPEATS = 3
 SOLVE_TARGET_S = 3.0
 BUILD_TARGET_S = 2.0
@@ -75,8 +73,7 @@ def _median(fn, prepare=None) -> float:
 
 
 def run() -> list[tuple[str, float, float | None, str]]:
-    if SRC.is_dir() and str(SRC) not in sys.path:
-        sys.path.insert(0, str(SRC))
+    use_source_tree()
     import numpy as np
 
     from losslane.channel import build_channel
@@ -140,8 +137,4 @@ def run() -> list[tuple[str, float, float | None, str]]:
 
 
 if __name__ == "__main__":
-    rows = run()
-    width = max(len(r[0]) for r in rows)
-    for name, measured, target, unit in rows:
-        goal = "" if target is None else f"   (target {target:.3g} {unit})"
-        print(f"{name:<{width}}  {measured:8.3g} {unit}{goal}")
+    print_rows(run())

@@ -9,25 +9,16 @@ wall time in a new process (median of repeats).
 from __future__ import annotations
 
 import os
-import statistics
 import subprocess
 import sys
-import time
 import warnings
 from pathlib import Path
+
+from benchkit import median_time
 
 POINTS = 10_001
 REPEATS = 15
 HELP_REPEATS = 7
-
-
-def _median_time(fn, repeats: int) -> float:
-    times = []
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times)
 
 
 def _sections():
@@ -62,7 +53,7 @@ def run() -> list[tuple[str, float, float | None, str]]:
         warnings.simplefilter("ignore", LossLaneWarning)  # 100 GHz is past some ranges
         for name, section in _sections().items():
             section.rlgc(f)  # warm-up: lazy imports, caches
-            t = _median_time(lambda s=section: s.rlgc(f), REPEATS)
+            t = median_time(lambda s=section: s.rlgc(f), REPEATS)
             rows.append((f"{name} rlgc(), {POINTS} points", t * 1e3, 20.0, "ms"))
 
     import losslane
@@ -72,7 +63,7 @@ def run() -> list[tuple[str, float, float | None, str]]:
     env["PYTHONPATH"] = src + os.pathsep + env.get("PYTHONPATH", "")
     cmd = [sys.executable, "-m", "losslane", "--help"]
     subprocess.run(cmd, env=env, capture_output=True, check=True)  # warm the file cache
-    t = _median_time(
+    t = median_time(
         lambda: subprocess.run(cmd, env=env, capture_output=True, check=True), HELP_REPEATS
     )
     rows.append(("losslane --help, new process", t, 0.3, "s"))

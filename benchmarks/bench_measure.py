@@ -10,21 +10,12 @@ Targets (in-process, after a warm-up call, medians of repeats):
 
 from __future__ import annotations
 
-import statistics
-import time
 import warnings
+
+from benchkit import median_time
 
 REPEATS = 5
 FIT_REPEATS = 3
-
-
-def _median_time(fn, repeats: int) -> float:
-    times = []
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times)
 
 
 def run() -> list[tuple[str, float, float | None, str]]:
@@ -56,9 +47,9 @@ def run() -> list[tuple[str, float, float | None, str]]:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", LossLaneWarning)
         ext = extract_line(nets, lengths)
-        t_ext = _median_time(lambda: extract_line(nets, lengths), REPEATS)
+        t_ext = median_time(lambda: extract_line(nets, lengths), REPEATS)
         rows.append(("extract_line, 3 coupons x 4000 points", 1e3 * t_ext, 300.0, "ms"))
         fit_materials(ext, start, ("dk", "df", "rq"))
-        t_fit = _median_time(lambda: fit_materials(ext, start, ("dk", "df", "rq")), FIT_REPEATS)
+        t_fit = median_time(lambda: fit_materials(ext, start, ("dk", "df", "rq")), FIT_REPEATS)
         rows.append(("fit_materials dk, df, rq over 4000 points", t_fit, 3.0, "s"))
     return rows

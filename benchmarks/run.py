@@ -11,7 +11,7 @@ Convention for benchmark modules (add your own as ``benchmarks/bench_<topic>.py`
 * lower is better: a row passes when ``measured <= target``. Express a "higher is better"
   goal as its reciprocal or as a ratio that should stay below a bound;
 * ``run`` must not print, must finish in well under a minute, and must not depend on
-  other benchmark modules.
+  other benchmark modules (shared helpers live in ``benchkit.py``, which is not one).
 
 Usage: ``python benchmarks/run.py [NAME ...]`` runs all modules, or only those whose file
 name contains one of the NAMEs. The exit code is 0 even when a target is missed: speed

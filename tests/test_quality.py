@@ -176,7 +176,7 @@ def test_negligible_entries_are_left_out_but_small_noise_is_not():
     assert 30 < q.causality < 70
 
 
-def test_vectorized_metrics_equal_a_literal_transcription_of_the_standard():
+def test_vectorized_metrics_equal_the_ieee370_definitions_evaluated_point_by_point():
     # the formulas of IEEE 370-2020 written out point by point and entry by entry, on a
     # random 4-port with every kind of violation; reproducible to rounding
     rng = np.random.default_rng(3)

@@ -1383,6 +1383,10 @@ def inspect(
             raise LossLaneError(f"{k(key)} = {v!r}: must be > 0")
     if zr is not None and not zr > 0:
         raise LossLaneError(f"{k('z_ref')} = {zr!r} ohm: must be > 0 ohm")
+    if out is not None:
+        from losslane.report.channel import prepare_out_dir
+
+        prepare_out_dir(out)  # before any work, as the other commands do
     if isinstance(path_or_network, (str, Path)):
         net = read_touchstone(path_or_network)
         source = str(path_or_network)
@@ -1421,8 +1425,8 @@ def inspect(
         raise LossLaneError(f"touchstone file {source!r}: {exc}") from None
     result = InspectResult(insp, source)
     if out is not None:
-        from losslane.report.channel import prepare_out_dir, slug
+        from losslane.report.channel import slug
         from losslane.report.inspect import write_inspect
 
-        result.files = write_inspect(insp, source, prepare_out_dir(out), slug(stem_from))
+        result.files = write_inspect(insp, source, out, slug(stem_from))
     return result

@@ -101,6 +101,15 @@ _LIBRARY_OPTION = click.option(
     help="extra library file(s) with [dielectrics.*] / [foils.*] entries",
 )
 _NO_PLOTS_OPTION = click.option("--no-plots", is_flag=True, help="skip the PNG plots")
+# checked by the api (check_order), whose refusal names the option and the valid values
+_ORDER_OPTION = click.option(
+    "--order",
+    default="in-in-out-out",
+    show_default=True,
+    metavar="ORDER",
+    help="4-port numbering: in-in-out-out (legs 1->3 and 2->4) or in-out-in-out "
+    "(legs 1->2 and 3->4)",
+)
 _SKIP_FIT_OPTION = click.option(
     "--skip-fit",
     is_flag=True,
@@ -613,13 +622,7 @@ def _coupon_options(func):
             help="each file's line length with a unit, in the order of the files "
             "(e.g. 2in,6in or 2,5,9in)",
         ),
-        click.option(
-            "--order",
-            default="in-in-out-out",
-            show_default=True,
-            metavar="ORDER",
-            help="4-port numbering of the files: in-in-out-out or in-out-in-out",
-        ),
+        _ORDER_OPTION,
         click.option(
             "--mode",
             metavar="MODE",
@@ -866,13 +869,7 @@ def sweep_command(
 
 @cli.command("inspect")
 @click.argument("file", type=click.Path(dir_okay=False))
-@click.option(
-    "--order",
-    type=click.Choice(["in-in-out-out", "in-out-in-out"]),
-    default="in-in-out-out",
-    show_default=True,
-    help="4-port numbering: legs run 1->3 and 2->4, or 1->2 and 3->4",
-)
+@_ORDER_OPTION
 @click.option(
     "--rise-time",
     metavar="TIME",

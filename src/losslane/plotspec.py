@@ -18,7 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.spec import check_keys, quantity
+from losslane.spec import check_keys, flag, quantity
 from losslane.units import parse_quantity
 
 PLOT_KEYS = ("focus", "loss_range", "auto_focus", "delay_aperture", "rf_views")
@@ -47,13 +47,6 @@ def _pair(where: str, spec: Mapping, key: str, kind: str, example: str) -> tuple
     return lo, hi
 
 
-def _flag(where: str, spec: Mapping, key: str, default: bool) -> bool:
-    value = spec.get(key, default)
-    if not isinstance(value, bool):
-        raise LossLaneError(f"{where}.{key} = {value!r}: expected true or false")
-    return value
-
-
 def parse_plots(spec: object) -> PlotOptions:
     """``[plots]`` -> PlotOptions; every error names the key."""
     where = "[plots]"
@@ -77,9 +70,9 @@ def parse_plots(spec: object) -> PlotOptions:
     return PlotOptions(
         focus,
         loss_range,
-        _flag(where, spec, "auto_focus", True),
+        flag(where, spec, "auto_focus", True),
         aperture,
-        _flag(where, spec, "rf_views", True),
+        flag(where, spec, "rf_views", True),
     )
 
 

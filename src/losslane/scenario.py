@@ -26,7 +26,7 @@ from losslane.materials.roughness import Roughness
 from losslane.network.ports import DEFAULT_ORDER, ORDERS
 from losslane.plotspec import PlotOptions, parse_plots
 from losslane.signalling import MODULATIONS, baud_rate, nyquist_frequency
-from losslane.spec import check_keys, dimension, quantity, suggest, text
+from losslane.spec import check_keys, dimension, flag, quantity, suggest, text
 from losslane.stackup import Stackup, board_stackups
 from losslane.timesettings import TimeSettings, parse_time
 from losslane.units import parse_quantity
@@ -504,12 +504,13 @@ def _segment(
         check_readable(p, f"{w} = {fname!r}: touchstone file")  # a directory, a device
         if not re.search(r"\.s\d+p$", p.name, re.IGNORECASE):
             raise LossLaneError(f"{w} = {fname!r}: expected a Touchstone file (.s2p, .s4p)")
-        as_is = entry.get("as_is", False)
-        if not isinstance(as_is, bool):
-            raise LossLaneError(
-                f"{where}.as_is = {as_is!r}: expected true or false (true accepts a file that "
-                "is not passive or reciprocal as it is)"
-            )
+        as_is = flag(
+            where,
+            entry,
+            "as_is",
+            False,
+            "true accepts a file that is not passive or reciprocal as it is",
+        )
         return Segment(i, "touchstone", name or p.stem, path=p, order=order, as_is=as_is)
     if not isinstance(body, Mapping):
         raise LossLaneError(f"{w} = {body!r}: expected an inline table, e.g. {kind} = {{ ... }}")
@@ -681,11 +682,7 @@ def _budget(spec: object) -> Budget:
             f"{where}.max_icn = {spec['max_icn']!r}: the limit on the integrated crosstalk "
             'noise is > 0 V (e.g. "5 mV") and needs data_rate'
         )
-    fit = spec.get("fit", True)
-    if not isinstance(fit, bool):
-        raise LossLaneError(
-            f"{where}.fit = {fit!r}: expected true or false (false: no fitted insertion loss)"
-        )
+    fit = flag(where, spec, "fit", True, "false: no fitted insertion loss")
     return Budget(
         rate,
         modulation,

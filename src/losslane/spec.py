@@ -144,6 +144,15 @@ def number(
     return v
 
 
+def flag(where: str, table: Mapping, key: str, default: bool, meaning: str = "") -> bool:
+    """A true/false key; ``meaning`` (e.g. "true: ...") goes into the refusal in brackets."""
+    value = table.get(key, default)
+    if not isinstance(value, bool):
+        why = f" ({meaning})" if meaning else ""
+        raise LossLaneError(f"{key_name(where, key)} = {value!r}: expected true or false{why}")
+    return value
+
+
 def text(
     where: str,
     table: Mapping,

@@ -39,7 +39,7 @@ from dataclasses import dataclass
 
 from losslane.errors import LossLaneError
 from losslane.materials.dielectric import Dielectric
-from losslane.spec import check_keys, dimension, text
+from losslane.spec import check_keys, dimension, flag, text
 from losslane.stackup import StackLayer, Stackup, choose
 
 #: the drill form's keys
@@ -180,18 +180,12 @@ def drill_via(
             )
     elif "antipad_shape" in body:
         raise LossLaneError(f"{where}.antipad_shape: only a via pair (with pitch) has a shape")
-    upward = body.get("upward", False)
-    if not isinstance(upward, bool):
-        raise LossLaneError(
-            f"{where}.upward = {upward!r}: expected true or false (true: the signal enters at "
-            "'to' and leaves at 'from')"
-        )
-    blind = body.get("blind", False)
-    if not isinstance(blind, bool):
-        raise LossLaneError(
-            f"{where}.blind = {blind!r}: expected true or false (true: the hole starts at the "
-            "entry layer, no barrel above it)"
-        )
+    upward = flag(
+        where, body, "upward", False, "true: the signal enters at 'to' and leaves at 'from'"
+    )
+    blind = flag(
+        where, body, "blind", False, "true: the hole starts at the entry layer, no barrel above it"
+    )
     cu = st.copper
     top_face = st.depth_top(cu[0].name)
     bottom_face = st.depth_bottom(cu[-1].name)

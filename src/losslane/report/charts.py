@@ -274,12 +274,16 @@ def title(ax, text: str, size: float = 11, width: int = 100) -> int:
     return len(lines)
 
 
-def stamp(fig) -> None:
-    """The caution every chart carries."""
+CHART_CAUTION = "estimate - confirm with measured coupons"
+
+
+def stamp(fig, text: str = CHART_CAUTION) -> None:
+    """A small note in the chart's lower right corner: by default the caution every chart
+    carries."""
     fig.text(
         0.995,
         0.005,
-        "estimate - confirm with measured coupons",
+        text,
         ha="right",
         va="bottom",
         fontsize=7,

@@ -12,7 +12,17 @@ from pathlib import Path
 
 import numpy as np
 
-from losslane.report.charts import Curve, Marker, db_plot, pyplot, save_figure, to_db, user_text
+from losslane.report.charts import (
+    CHART_CAUTION,
+    Curve,
+    Marker,
+    db_plot,
+    pyplot,
+    save_figure,
+    stamp,
+    to_db,
+    user_text,
+)
 from losslane.report.text import table, verdict
 
 __all__ = [
@@ -144,15 +154,7 @@ def step_chart(path: Path, xt, title: str) -> Path:
         ax.legend(fontsize=8)
         ax.axvline(0.0, color="0.35", lw=0.9, ls=":")
     fig.suptitle(title, fontsize=11)
-    fig.text(
-        0.995,
-        0.005,
-        f"edge 10-90 % {w.rise_time_s * 1e12:.3g} ps; estimate - confirm with measured coupons",
-        ha="right",
-        va="bottom",
-        fontsize=7,
-        color="0.45",
-    )
+    stamp(fig, f"edge 10-90 % {w.rise_time_s * 1e12:.3g} ps; {CHART_CAUTION}")
     fig.tight_layout()
     try:
         return save_figure(fig, path)

@@ -9,14 +9,13 @@ inspecting a build's own output into the build's directory replaces none of its 
 
 from __future__ import annotations
 
-import shutil
-import tempfile
 from html import escape
 from pathlib import Path
 
 from losslane import __version__
 from losslane.atomic import write_text
-from losslane.report.page import STYLE, data_uri
+from losslane.report.output import write_staged
+from losslane.report.page import PAGE_END, figure_html, page_head
 from losslane.report.timeviews import (
     profile_chart,
     pulse_chart,
@@ -57,16 +56,7 @@ def inspect_text(result) -> str:
 
 
 def _page(insp, source: str | None, title: str, figures: list[tuple[str, bytes]]) -> str:
-    parts = [
-        "<!DOCTYPE html>",
-        '<html lang="en">',
-        "<head>",
-        '<meta charset="utf-8">',
-        f"<title>{escape(title)}</title>",
-        f"<style>{STYLE}</style>",
-        "</head>",
-        "<body>",
-        f"<h1>{escape(title)}</h1>",
+    parts = page_head(title) + [
         f'<p class="meta">{escape(heading(insp, source))}</p>',
         f'<p class="meta">inspected by losslane {escape(__version__)}</p>',
         f'<p class="caution">{escape(PAGE_NOTE)}</p>',
@@ -74,21 +64,16 @@ def _page(insp, source: str | None, title: str, figures: list[tuple[str, bytes]]
         views_html(insp),
         '<h2 id="charts">Charts</h2>',
     ]
-    for caption, png in figures:
-        parts.append(
-            f'<figure><img src="{data_uri(png)}" alt="{escape(caption)}">'
-            f"<figcaption>{escape(caption)}</figcaption></figure>"
-        )
-    parts += ["</body>", "</html>", ""]
+    parts += [figure_html(caption, png) for caption, png in figures]
+    parts += PAGE_END
     return "\n".join(parts)
 
 
 def write_inspect(insp, source: str | None, out_dir: Path | str, stem: str) -> list[Path]:
     """Write the charts and the page of ``insp`` (an Inspection of ``source``) into
     ``out_dir`` (created if missing; its parent must exist); returns their final paths."""
-    out = Path(out_dir)
-    stage = Path(tempfile.mkdtemp(prefix=".losslane-inspect-", dir=out.resolve().parent))
-    try:
+
+    def write(stage: Path) -> list[Path]:
         name = source or stem
         charts = [
             (
@@ -121,16 +106,9 @@ def write_inspect(insp, source: str | None, out_dir: Path | str, stem: str) -> l
         page = write_text(
             stage / f"{stem}-inspect.html", _page(insp, source, f"{name}: inspection", figures)
         )
-        files = [p for p, _ in charts] + [page]
-        out.mkdir(exist_ok=True)
-        final = []
-        for p in files:
-            target = out / p.name
-            p.replace(target)
-            final.append(target)
-        return final
-    finally:
-        shutil.rmtree(stage, ignore_errors=True)
+        return [p for p, _ in charts] + [page]
+
+    return write_staged(out_dir, write)
 
 
 __all__ = ["heading", "inspect_text", "write_inspect"]

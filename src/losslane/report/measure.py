@@ -10,15 +10,13 @@ inside the chart functions (Agg backend).
 
 from __future__ import annotations
 
-import shutil
-import tempfile
-from collections.abc import Callable
 from pathlib import Path
 from typing import TYPE_CHECKING
 
 import numpy as np
 
 from losslane.report.charts import pyplot, save_figure, user_text
+from losslane.report.output import write_staged
 from losslane.report.text import table
 
 if TYPE_CHECKING:
@@ -33,7 +31,6 @@ __all__ = [
     "fit_text",
     "write_extract_files",
     "write_fit_files",
-    "write_staged",
 ]
 
 EXTRACT_FILES = ("extract-loss.png", "extract-eps-eff.png", "extract-curves.csv")
@@ -45,27 +42,6 @@ LINE_COLOUR = "#3b75af"
 
 
 # ----------------------------------------------------------------------- writing
-
-
-def write_staged(out: Path | str, write: Callable[[Path], list[Path]]) -> list[Path]:
-    """Call ``write(stage)`` to make files in a staging directory beside ``out``, then move
-    them into ``out`` (created if missing); returns their final paths. On any failure the
-    staging directory is removed and ``out`` is left as it was."""
-    from losslane.report.channel import prepare_out_dir
-
-    out = prepare_out_dir(out)
-    stage = Path(tempfile.mkdtemp(prefix=".losslane-measure-", dir=out.resolve().parent))
-    try:
-        made = write(stage)
-        out.mkdir(exist_ok=True)
-        final = []
-        for p in made:
-            target = out / p.name
-            p.replace(target)
-            final.append(target)
-        return final
-    finally:
-        shutil.rmtree(stage, ignore_errors=True)
 
 
 def write_extract_files(

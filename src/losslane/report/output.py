@@ -19,6 +19,9 @@ from __future__ import annotations
 import os
 import re
 import secrets
+import shutil
+import tempfile
+from collections.abc import Callable
 from pathlib import Path
 
 from losslane.errors import LossLaneError
@@ -127,6 +130,29 @@ def check_targets(directory: Path, names: list[str], key: str = "--out") -> None
             )
 
 
+def write_staged(
+    out: Path | str, write: Callable[[Path], list[Path]], key: str = "--out"
+) -> list[Path]:
+    """Call ``write(stage)`` to make files in a staging directory beside ``out``, then move
+    them into ``out`` (checked by ``check_output_dir``; created if missing); returns their
+    final paths. On any failure the staging directory is removed and ``out`` is left as it
+    was (no name is moved in while one of them would replace a directory)."""
+    out = check_output_dir(out, key)
+    stage = Path(tempfile.mkdtemp(prefix=".losslane-stage-", dir=out.resolve().parent))
+    try:
+        made = write(stage)
+        check_targets(out, [p.name for p in made], key)
+        out.mkdir(exist_ok=True)
+        final = []
+        for p in made:
+            target = out / p.name
+            p.replace(target)
+            final.append(target)
+        return final
+    finally:
+        shutil.rmtree(stage, ignore_errors=True)
+
+
 __all__ = [
     "MAX_STEM",
     "PICTURE_FORMATS",
@@ -134,4 +160,5 @@ __all__ = [
     "check_output_file",
     "check_targets",
     "file_stem",
+    "write_staged",
 ]

@@ -13,7 +13,15 @@ from html import escape
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from losslane.report.charts import Curve, Marker, label_vline, pyplot, save_figure, user_text
+from losslane.report.charts import (
+    Curve,
+    Marker,
+    label_vline,
+    pyplot,
+    save_figure,
+    stamp,
+    user_text,
+)
 from losslane.report.text import table
 
 if TYPE_CHECKING:
@@ -113,15 +121,7 @@ def difference_chart(
     if ghz.size > 1:
         a1.set_xlim(ghz[0], ghz[-1])
     a1.set_title(title, fontsize=11)
-    fig.text(
-        0.995,
-        0.005,
-        "positive: the model predicts more loss than measured",
-        ha="right",
-        va="bottom",
-        fontsize=7,
-        color="0.45",
-    )
+    stamp(fig, "positive: the model predicts more loss than measured")
     fig.tight_layout()
     try:
         return save_figure(fig, path)

@@ -69,6 +69,33 @@ def data_uri(png: bytes) -> str:
     return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
 
 
+def page_head(title: str) -> list[str]:
+    """The opening lines of a self-contained page (the style sheet inline) up to its
+    heading; the caller adds the body and closes with ``PAGE_END``."""
+    return [
+        "<!DOCTYPE html>",
+        '<html lang="en">',
+        "<head>",
+        '<meta charset="utf-8">',
+        f"<title>{escape(title)}</title>",
+        f"<style>{STYLE}</style>",
+        "</head>",
+        "<body>",
+        f"<h1>{escape(title)}</h1>",
+    ]
+
+
+PAGE_END = ("</body>", "</html>", "")
+
+
+def figure_html(caption: str, png: bytes) -> str:
+    """One chart embedded in the page, with its caption."""
+    return (
+        f'<figure><img src="{data_uri(png)}" alt="{escape(caption)}">'
+        f"<figcaption>{escape(caption)}</figcaption></figure>"
+    )
+
+
 def _num(v: float | None, fmt: str) -> str:
     return "-" if v is None else format(v, fmt)
 
@@ -275,16 +302,7 @@ def render_report(
     ``summary`` the rows of the terminal summary (at_hz, insertion_loss_db,
     return_loss_in_db, return_loss_out_db); ``sections``: more HTML sections (crosstalk),
     placed before the charts."""
-    parts = [
-        "<!DOCTYPE html>",
-        '<html lang="en">',
-        "<head>",
-        '<meta charset="utf-8">',
-        f"<title>{escape(title)}</title>",
-        f"<style>{STYLE}</style>",
-        "</head>",
-        "<body>",
-        f"<h1>{escape(title)}</h1>",
+    parts = page_head(title) + [
         "".join(f'<p class="meta">{escape(m)}</p>' for m in meta),
         f'<p class="caution"><strong>Caution:</strong> {escape(CAUTION)}</p>',
     ]
@@ -325,10 +343,7 @@ def render_report(
     parts.append('<h2 id="charts">Charts</h2>')
     if figures:
         for fig in figures:
-            parts.append(
-                f'<figure><img src="{data_uri(fig.png)}" alt="{escape(fig.caption)}">'
-                f"<figcaption>{escape(fig.caption)}</figcaption></figure>"
-            )
+            parts.append(figure_html(fig.caption, fig.png))
     else:
         parts.append("<p>Charts were not drawn for this build (--no-plots).</p>")
     parts.append('<h2 id="warnings">Warnings</h2>')
@@ -345,7 +360,7 @@ def render_report(
     parts.append('<h2 id="files">Files of this build</h2>')
     parts.append("<ul>" + "".join(f"<li>{escape(n)}</li>" for n in files) + "</ul>")
     parts.append(f'<p class="caution">{escape(CAUTION)}</p>')
-    parts += ["</body>", "</html>", ""]
+    parts += PAGE_END
     return "\n".join(parts)
 
 

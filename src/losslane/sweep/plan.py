@@ -37,7 +37,7 @@ from pathlib import Path
 import numpy as np
 
 from losslane.errors import LossLaneError
-from losslane.spec import check_keys, suggest
+from losslane.spec import check_keys, flag, suggest
 from losslane.units import parse_frequency, parse_quantity
 
 TOP_KEYS = (
@@ -451,12 +451,9 @@ def parse_plan(source: str, base_dir: Path | str = ".", path: Path | None = None
     at_hz = tuple(parse_frequency(a, "[results].at") for a in at)
     if any(not math.isfinite(x) or x < 0 for x in at_hz):
         raise LossLaneError(f"[results].at = {at!r}: frequencies are >= 0 Hz")
-    touchstone = results.get("touchstone", False)
-    if not isinstance(touchstone, bool):
-        raise LossLaneError(
-            f"[results].touchstone = {touchstone!r}: expected true or false (true: each "
-            "case's Touchstone file is written)"
-        )
+    touchstone = flag(
+        "[results]", results, "touchstone", False, "true: each case's Touchstone file is written"
+    )
     rank = results.get("rank")
     if rank is not None and (not isinstance(rank, str) or not rank.strip()):
         raise LossLaneError(f"[results].rank = {rank!r}: expected a column name")
