@@ -270,6 +270,9 @@ def test_text_output_says_3_sigma(capsys) -> None:
     [
         (["--width-tol", "0.5"], ("--width-tol", "unit")),
         (["--width-tol", "-0.5mil"], ("--width-tol", ">= 0")),
+        # a percentage that overflows to inf is named as not finite, not as negative
+        (["--width-tol", "1e400%"], ("--width-tol", "finite")),
+        (["--dk-tol", "1e400"], ("--dk-tol", "finite")),
         (["--width-tol", "8mil"], ("--width-tol", "smaller")),
         (["--dk-tol", "5mil"], ("--dk-tol",)),
         (["--dk-tol", "3.0"], ("--dk-tol", "air")),
