@@ -16,7 +16,7 @@ worst deviation per geometry and the whole line's R and L against the eddy solut
     python tools/fit_strip_transition.py            # fit and print
     python tools/fit_strip_transition.py --write    # and rewrite the block in conductor.py
 
-Eddy solves are kept in ``--cache`` (a pickle, written as the run goes). About 20 minutes
+Eddy solves are kept in ``--cache`` (a pickle, written as the run goes). About 10 minutes
 for the 51 geometries on the two-core development machine (1 kHz .. 10 GHz, 25 points).
 """
 
