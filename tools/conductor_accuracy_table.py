@@ -34,6 +34,7 @@ from losslane.xsection import registry
 from losslane.xsection.base import Metal
 from losslane.xsection.fieldsolve.layouts import FieldOptions
 from losslane.xsection.fieldsolve.section import FieldSection
+from losslane.xsection.validity import Quantities, check_limits
 
 AIR = ConstantDielectric(1.0, name="air")
 F = np.array([0.0, 1e3, 1e4, 1e5, 3e5, 1e6, 3e6, 1e7, 3e7, 1e8, 3e8, 1e9, 3e9, 1e10])
@@ -62,13 +63,13 @@ def sample(kind: str, rng) -> tuple[dict, float]:
 
 
 def declared(kind: str, dims: dict) -> bool:
-    """Whether ``dims`` lie inside every static validity range of ``kind`` (a typical
-    laminate, Dk 3.5; the dispersion ranges are not the conductor model's business)."""
-    cls = registry.model(kind)
+    """Whether ``dims`` lie inside every static validity range of ``kind`` (its class's
+    ``limits`` at DC, on a typical laminate of Dk 3.5; the dispersion ranges are not the
+    conductor model's business)."""
     with warnings.catch_warnings():
         warnings.simplefilter("error", LossLaneWarning)
         try:
-            cls(**dims, dielectric=ConstantDielectric(3.5, name="typical")).rlgc(np.zeros(1))
+            check_limits(registry.model(kind).limits, Quantities(dims, 3.5, np.zeros(1)))
         except LossLaneWarning:
             return False
     return True

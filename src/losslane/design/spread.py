@@ -63,10 +63,8 @@ def parse_tolerance(value: object, key: str, nominal: float, where: Where | None
             tol = parse_length(value.strip().lstrip("±"), name)
     else:
         raise LossLaneError(f"{name} = {value!r}: expected a tolerance such as 0.5mil or 10%")
-    if not math.isfinite(tol):
+    if not (math.isfinite(tol) and tol >= 0):
         raise LossLaneError(f"{name} = {value!r}: a +/- tolerance must be a finite number >= 0")
-    if tol < 0:
-        raise LossLaneError(f"{name} = {value!r}: a +/- tolerance must be >= 0")
     return tol
 
 

@@ -16,6 +16,7 @@ read and written through scikit-rf.
 
 from __future__ import annotations
 
+import io
 import os
 import warnings
 from collections.abc import Iterable
@@ -62,13 +63,18 @@ def read_touchstone(path: str | os.PathLike) -> skrf.Network:
     from losslane.userfiles import read_bytes
 
     p = Path(path)
+    data = read_bytes(p, "touchstone file")
     # Touchstone is ASCII; Latin-1 reads any byte a comment may hold
-    scan = scan_touchstone(read_bytes(p, "touchstone file").decode("latin-1"), p)
+    scan = scan_touchstone(data.decode("latin-1"), p)
+    # scikit-rf parses the bytes already read (it takes the port count and the network's
+    # name from the file object's name), so the file is read once
+    stream = io.BytesIO(data)
+    stream.name = str(p)
     try:
         # absurd values overflow in scikit-rf's conversions; _check_values names them
         with warnings.catch_warnings(), np.errstate(all="ignore"):
             warnings.simplefilter("ignore", RuntimeWarning)
-            net = skrf.Network(str(p))
+            net = skrf.Network(stream)
     except Exception as exc:  # skrf raises many types on malformed files
         raise LossLaneError(
             f"touchstone file '{p}' could not be read as Touchstone 1.x/2.x: {exc}"
