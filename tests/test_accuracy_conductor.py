@@ -52,6 +52,9 @@ CASES = {
     "microstrip 4/3 mil, 0.5 oz on a 1 oz plane": microstrip(4.0, 3.0, 0.5, 1.0),
     "stripline 4.5 mil, 5/7 mil, 1 oz, 1 oz planes": stripline(4.5, 5.0, 7.0, 1.0, 1.0),
     "stripline 7 mil, 6/6 mil, 2 oz, 0.5 oz planes": stripline(7.0, 6.0, 6.0, 2.0, 0.5),
+    # a wide thin strip (w/t 29), where the slab-plus-relaxation shape alone was 3-4.5 %
+    # off in the transition (its R/R_dc climbs slowly for a decade before the skin effect)
+    "microstrip 20/10 mil, 0.5 oz on a 1 oz plane": microstrip(20.0, 10.0, 0.5, 1.0),
 }
 
 
@@ -71,6 +74,28 @@ def test_resistance_and_inductance_against_the_eddy_current_solution(name: str) 
     # 1-100 MHz band stays within the same 3 % as the rest
     band = (F >= 1e6) & (F <= 1e8)
     assert np.max(np.abs(dr[band])) < 0.03
+
+
+def test_the_fitted_correction_leaves_dc_and_the_skin_limit_alone() -> None:
+    # the correction's terms vanish at DC and at high frequency: the DC resistance stays
+    # 1/(sigma w t) (hand calculation), the DC internal inductance and the high-frequency
+    # R and L_int (Wheeler's limit) stay those of the shape without it; in between it
+    # moves R by a few per cent at most
+    from losslane.materials import conductor as cond
+
+    g, w, t = 900.0, 20 * MIL, 0.5 * OZ_COPPER
+    f = np.array([0.0, 1e5, 1e7, 3e7, 1e8, 1e12])
+    args = (f, cond.COPPER, g, g * w * t, 1.0, w / t, 2.0)
+    r_on, l_on = cond.strip_impedance(*args)
+    r_off, l_off = cond.strip_impedance(*args, corrected=False)
+    assert cond.CORRECTION, "the fitted correction is in place"
+    assert r_on[0] == r_off[0] == pytest.approx(1 / (cond.COPPER.sigma * w * t), rel=1e-12)
+    assert l_on[0] == pytest.approx(l_off[0], rel=1e-9)
+    # (each term falls as 1/f there against R's sqrt(f): 5e-6 at 1 THz)
+    assert r_on[-1] == pytest.approx(r_off[-1], rel=2e-5)
+    assert l_on[-1] == pytest.approx(l_off[-1], rel=1e-3)
+    moved = np.abs(r_on / r_off - 1)
+    assert 0.005 < moved.max() < 0.06, moved
 
 
 def test_roughness_multiplies_the_smooth_surface_loss() -> None:

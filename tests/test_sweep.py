@@ -131,6 +131,21 @@ at = ["5 GHz"]
         assert row["error"] is None and row["z0_ohm_5GHz"] == want["z0_ohm"][0]
 
 
+def test_a_list_that_mixes_text_and_numbers_is_a_text_column(tmp_path, capsys) -> None:
+    # found by the hostile-input suite: ["5 mil", 6] crashed the table writer (a column
+    # of text and whole numbers); the value without a unit fails as its own case
+    text = LINE_PLAN.format(kind="microstrip", extra="")
+    text = text.replace('width = ["4 mil", "5 mil", "6 mil"]', 'width = ["5 mil", 6]')
+    plan = write(tmp_path, "p.toml", text)
+    rc, out, err = run(capsys, "sweep", str(plan), "--out", str(tmp_path / "t.parquet"),
+                       "--workers", "0", "--json", "--no-plots")  # fmt: skip
+    assert rc in (0, 1) and "Traceback" not in err
+    rows = pq.read_table(tmp_path / "t.parquet").to_pylist()
+    assert {r["width"] for r in rows} == {"5 mil", "6"}
+    for r in rows:
+        assert (r["error"] is None) == (r["width"] == "5 mil"), r
+
+
 def test_an_interrupted_run_resumes_to_the_same_table(tmp_path) -> None:
     text = LINE_PLAN.format(kind="microstrip", extra="chunk = 2").replace("chunk = 2", "")
     text = "chunk = 2\n" + text

@@ -44,6 +44,18 @@ def case_values(plan: Plan, case: int) -> dict[str, object]:
     return out
 
 
+def _one_type(values: tuple) -> list:
+    """A list's values in one column type, so that every part of the table agrees: whole
+    and decimal numbers as decimals, and a list that mixes text with other values as text
+    (``true``/``false`` as TOML writes them)."""
+    types = {type(v) for v in values}
+    if types <= {int, float}:
+        return [float(v) for v in values] if float in types else list(values)
+    if len(types) == 1:
+        return list(values)
+    return [str(v).lower() if isinstance(v, bool) else str(v) for v in values]
+
+
 def value_columns(plan: Plan, idx: dict[str, np.ndarray]) -> dict[str, list | np.ndarray]:
     """The varied columns of the cases whose value indices are ``idx``: each key's value
     as written, and lengths also in metres (``<key>_m``)."""
@@ -55,7 +67,7 @@ def value_columns(plan: Plan, idx: dict[str, np.ndarray]) -> dict[str, list | np
             cols[p.key] = [f"{v!r} m" for v in si.tolist()]
             cols[f"{p.key}_m"] = si
         else:
-            values = np.asarray(p.values, dtype=object)
+            values = np.asarray(_one_type(p.values), dtype=object)
             cols[p.key] = values[i].tolist()
             if p.length and p.si is not None:
                 cols[f"{p.key}_m"] = np.asarray(p.si, float)[i]

@@ -367,8 +367,8 @@ class CrossSection:
             }
         out["conductor"] = (
             "strip: exact DC resistance, DC-to-skin transition fitted to the eddy-current "
-            "solver, Wheeler's rule at high frequency; returns: closed-form slab under a "
-            "line current"
+            "solver (over planes with a fitted correction in w/t and w/h), Wheeler's rule at "
+            "high frequency; returns: closed-form slab under a line current"
         )
         return out
 

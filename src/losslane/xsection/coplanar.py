@@ -1296,6 +1296,7 @@ class Coplanar(CrossSection):
                 m.foil,
                 aspect=w / t,
                 proximity=w / (np.minimum(s, h) if self.grounded else s),
+                corrected=False,  # the correction is fitted on strips over planes
             ),
             ConductorGroup("coplanar grounds", g_cop, t, m.conductor, m.foil, wide=True),
         ]

@@ -122,6 +122,9 @@ class ConductorGroup:
     #: a return group of one mode of a symmetric pair: (h, d, sign) of the two line
     #: currents its return sees (``materials.conductor.pair_return_shape``)
     pair: tuple | None = None
+    #: whether the strip's transition carries the fitted correction
+    #: (``materials.conductor.transition_correction``; fitted on strips over planes)
+    corrected: bool = True
 
 
 @dataclass(frozen=True)
@@ -215,7 +218,14 @@ def group_impedances(
         if not grp.wide:
             k = grp.roughness.factor(f, grp.conductor)
             out[i] = strip_impedance(
-                f, grp.conductor, grp.geometry_factor, grp.depth, k, grp.aspect, grp.proximity
+                f,
+                grp.conductor,
+                grp.geometry_factor,
+                grp.depth,
+                k,
+                grp.aspect,
+                grp.proximity,
+                grp.corrected,
             )
     if returns:
         cond = groups[returns[0]].conductor
