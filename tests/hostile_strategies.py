@@ -340,16 +340,19 @@ def touchstone_text(
 
 
 @st.composite
-def model_file(draw, nports: int, f_top: float, z0: float, gain: float = 0.0) -> str:
+def model_file(draw, nports: int, f_top: float, z0: float, gain: float = 0.0, inside=None) -> str:
     """A valid Touchstone text of a lossy line (2-port) or two lines of a pair (4-port,
     numbered in-in-out-out), from 0 Hz to at least ``f_top``; ``gain`` scales S by
-    1 + gain (a measurement's calibration error: not passive)."""
+    1 + gain (a measurement's calibration error: not passive). ``inside`` = (lo, hi): at
+    least one point lies there (a measurement to compare with a sweep over lo..hi)."""
     points = draw(st.integers(2, 30))
     top = f_top * draw(st.floats(1.0, 1.5))
     f = np.linspace(0.0, top, points)
     if points > 2 and draw(st.booleans()):
         f = np.unique(np.round(f, 0))
         f[-1] = max(f[-1], np.ceil(f_top))
+    if inside is not None and not np.any((f >= inside[0]) & (f <= inside[1])):
+        f = np.unique(np.append(f, 0.5 * (inside[0] + inside[1])))
     lines = [
         lossy_line_s(
             f,
@@ -515,9 +518,9 @@ def add_sections(draw, doc: dict, files: dict, f: np.ndarray, dc_block: bool, di
         # the sweep)
         fname = f"measured.s{nports}p"
         reach = draw(st.floats(0.3, 1.2)) if f[0] == 0 else draw(st.floats(1.0, 1.2))
-        files[fname] = draw(
-            model_file(nports, float(f[-1]) * reach, z0, gain=draw(st.sampled_from([0, 0, 1e-3])))
-        )
+        gain = draw(st.sampled_from([0, 0, 1e-3]))
+        span = (float(f[0]), float(f[-1]))
+        files[fname] = draw(model_file(nports, float(f[-1]) * reach, z0, gain=gain, inside=span))
         compare: dict = {"measured": fname}
         if diff and draw(st.booleans()):
             compare["order"] = draw(st.sampled_from(ORDERS))
