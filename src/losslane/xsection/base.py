@@ -167,7 +167,13 @@ def modal_strip_and_planes(
         for m, g in factors(recede).items():
             out[m].append(
                 ConductorGroup(
-                    name, g, metal.plane_thickness, metal.conductor, metal.plane_roughness, True
+                    name,
+                    g,
+                    metal.plane_thickness,
+                    metal.conductor,
+                    metal.plane_roughness,
+                    True,
+                    between=len(planes) == 2,
                 )
             )
     if set(out) == {"even", "odd"} and planes:

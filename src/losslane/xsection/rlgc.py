@@ -122,6 +122,9 @@ class ConductorGroup:
     #: a return group of one mode of a symmetric pair: (h, d, sign) of the two line
     #: currents its return sees (``materials.conductor.pair_return_shape``)
     pair: tuple | None = None
+    #: a return plane of a line between two planes (a stripline's; their coupling while
+    #: the current spreads, ``materials.conductor.two_plane_excess``)
+    between: bool = False
     #: whether the strip's transition carries the fitted correction
     #: (``materials.conductor.transition_correction``; fitted on strips over planes)
     corrected: bool = True
@@ -238,7 +241,9 @@ def group_impedances(
             for i in returns
         ]
         pair = groups[returns[0]].pair
-        for i, z in zip(returns, return_impedance(f, cond, parts, pair=pair), strict=True):
+        two = len(returns) == 2 and all(groups[i].between for i in returns)
+        zs = return_impedance(f, cond, parts, pair=pair, two_planes=two)
+        for i, z in zip(returns, zs, strict=True):
             out[i] = z
     return out
 
