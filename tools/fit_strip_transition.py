@@ -13,16 +13,16 @@ eps = (e0 + e1 ln(w/t) + e2 ln(w/h)) / (1 + (w/(8 h))^2) by least squares on
 R_strip(model) / R_strip(eddy) - 1 over 0.1 <= tau/delta <= 25; then the correction
 added to (Phi - 1)/s (``materials.conductor.transition_correction``: band-pass terms
 between fixed poles, coefficients quadratic in ln(w/t) and ln(w/h)) by a minimax linear
-program, and prints the worst deviations per geometry and the whole line's R and L
-against the eddy solution.
+program over the typical grid and the thick-copper corner (``corner_set``), and prints
+the worst deviations per geometry and the whole line's R and L against the eddy
+solution.
 
     python tools/fit_strip_transition.py            # fit and print
     python tools/fit_strip_transition.py --write    # and rewrite both blocks of conductor.py
-    python tools/fit_strip_transition.py --corners  # and report the thick-copper corner
 
-Eddy solves are kept in ``--cache`` (a pickle, written as the run goes). About 10 minutes
-for the 51 geometries on the two-core development machine (1 kHz .. 10 GHz, 25 points),
-5 more for the 24 of ``--corners``.
+Eddy solves are kept in ``--cache`` (a pickle, written as the run goes). About 15 minutes
+for the 51 typical and 24 corner geometries on the two-core development machine
+(1 kHz .. 10 GHz, 25 points).
 """
 
 from __future__ import annotations
@@ -83,8 +83,9 @@ def stripline(w: float, lo: float, hi: float, t_oz: float, p_oz: float):
 
 def corner_set() -> list:
     """Geometries of the thick-copper corner of the declared ranges (strips about as thick
-    as wide, t/b to 0.24, t/h to 0.48): not fitted (fitting them as well raised the error
-    on typical random geometries), reported with ``--corners``."""
+    as wide, t/b to 0.24, t/h to 0.48): the correction is fitted to them as well (with the
+    planes' balance among its terms; without it, fitting them raised the error on typical
+    geometries), the shape is not."""
     out = []
     for t_oz, aspect, ratio in itertools.product([1, 2], [1.3, 2.0], [0.2, 0.24]):
         tm = t_oz * OZ_COPPER / MIL
@@ -165,6 +166,7 @@ def strip_data(cases: list, solved: dict) -> list:
                 "y": solved[label]["strip"][1:] / r_dc,
                 "aspect": float(g.aspect),
                 "proximity": float(g.proximity),
+                "balance": float(g.balance),
                 "x_l": tau / delta[hf],
                 "band": f[hf] <= 1e7,
                 "l_rest": rl.l[:, 0, 0] - l_strip,
@@ -202,13 +204,15 @@ WEIGHT_OUTSIDE = 0.3
 L_ALLOWED = 0.012
 
 
-def correction_terms(x: np.ndarray, aspect: float, proximity: float) -> np.ndarray:
+def correction_terms(
+    x: np.ndarray, aspect: float, proximity: float, balance: float = 0.0
+) -> np.ndarray:
     """The correction's basis at tau/delta = x: one complex column per (pole, feature),
     the term's contribution to (Phi - 1)/s."""
     s = 2j * np.asarray(x)[:, None] ** 2
     poles = 2 * CORRECTION_POLES**2
     band = 1 / (s + poles[:-1]) - 1 / (s + poles[1:])
-    feats = np.array([float(v) for v in cond.correction_features(aspect, proximity)])
+    feats = np.array([float(v) for v in cond.correction_features(aspect, proximity, balance)])
     return np.einsum("fk,j->fkj", band, feats).reshape(len(x), -1)
 
 
@@ -275,12 +279,12 @@ def fit_correction(rows: list) -> np.ndarray:
         x = r["x"][sel]
         a, d, e = cond.transition_shape(r["aspect"], r["proximity"])
         s = 2j * x[:, None] ** 2
-        terms = (s * correction_terms(x, r["aspect"], r["proximity"])).real
+        terms = (s * correction_terms(x, r["aspect"], r["proximity"], r["balance"])).real
         r_rows.append(w * terms / r["y"][sel][:, None])
         r_y.append(w * (1 - model_ratio(x, a, d, e) / r["y"][sel]))
         lx = r["x_l"]
         l_model = r["l_rest"] + model_inductance(lx, a, d, e) * r["l_scale"]
-        terms = correction_terms(lx, r["aspect"], r["proximity"]).real * r["l_scale"]
+        terms = correction_terms(lx, r["aspect"], r["proximity"], r["balance"]).real * r["l_scale"]
         l_rows.append(terms / r["l_eddy"][:, None])
         l_y.append(1 - l_model / r["l_eddy"])
         l_bound.append(np.maximum(np.abs(l_y[-1]), L_ALLOWED))
@@ -337,7 +341,8 @@ def write_correction(c: np.ndarray, box: tuple, note: str) -> Path:
         "fitted transition correction",
         [
             "#: tau/delta of the poles; the box of (ln(w/t), ln(w/h)) fitted; one row of",
-            "#: coefficients (of 1, a, p, a^2, a p, p^2) per band between adjacent poles",
+            "#: coefficients (of 1, a, p, a^2, a p, p^2, r, r a, r p) per band between adjacent",
+            "#: poles",
             "CORRECTION_POLES: tuple[float, ...] = ("
             + ", ".join(f"{v:.6f}" for v in CORRECTION_POLES)
             + ")",
@@ -396,12 +401,11 @@ def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--write", action="store_true")
     ap.add_argument("--cache", default="/tmp/losslane-fit-cache/strip-transition.pickle")
-    ap.add_argument("--corners", action="store_true", help="also report the corner set")
     args = ap.parse_args()
-    cases = training_set()
-    solved = solve(cases, Path(args.cache))
+    cases, corners = training_set(), corner_set()
+    solved = solve(cases + corners, Path(args.cache))
     rows = strip_data(cases, solved)
-    q = fit(rows)
+    q = fit(rows)  # the shape: the typical grid only
     n = len(KNOTS)
     cond.TRANSITION_KNOTS = tuple(KNOTS)
     cond.TRANSITION_ALPHA, cond.TRANSITION_D = tuple(q[:n]), tuple(q[n : 2 * n])
@@ -412,6 +416,8 @@ def main() -> None:
         f"planes); strip R within {100 * worst.max():.1f} % for 0.1 <= tau/delta <= 25"
     )
     print(note)
+    rows = rows + strip_data(corners, solved)  # the correction: both sets
+    worst = strip_errors(rows, None)
     la = [np.log(r["aspect"]) for r in rows]
     lp = [np.log(r["proximity"]) for r in rows]
     box = ((min(la), max(la)), (min(lp), max(lp)))
@@ -435,14 +441,9 @@ def main() -> None:
     if args.write:
         print(f"wrote {write_block(q, note)}")
         print(f"wrote {write_correction(c, box, note_c)}")
-    for label, er, el in line_errors(cases, solved):
-        print(f"{label}: whole line R {100 * er:.2f} %, L (>= 1 MHz) {100 * el:.2f} %")
-    if args.corners:
-        corners = corner_set()
-        solved = solve(corners, Path(args.cache))
-        for label, er, el in line_errors(corners, solved):
-            inside = "" if declared(label) else " (outside the declared ranges)"
-            print(f"corner {label}{inside}: whole line R {100 * er:.2f} %, L {100 * el:.2f} %")
+    for label, er, el in line_errors(cases + corners, solved):
+        where = "" if declared(label) else " (outside the declared ranges)"
+        print(f"{label}{where}: whole line R {100 * er:.2f} %, L (>= 1 MHz) {100 * el:.2f} %")
 
 
 def strip_errors(rows: list, c: np.ndarray | None) -> np.ndarray:
@@ -455,7 +456,11 @@ def strip_errors(rows: list, c: np.ndarray | None) -> np.ndarray:
         a, d, e = cond.transition_shape(r["aspect"], r["proximity"])
         ratio = model_ratio(x, a, d, e)
         if c is not None:
-            terms = 2j * x[:, None] ** 2 * correction_terms(x, r["aspect"], r["proximity"])
+            terms = (
+                2j
+                * x[:, None] ** 2
+                * correction_terms(x, r["aspect"], r["proximity"], r["balance"])
+            )
             ratio = ratio + terms.real @ c.ravel()
         out.append(np.abs(ratio / r["y"][sel] - 1).max())
     return np.array(out)

@@ -433,7 +433,8 @@ PROXIMITY_FADE = 8.0
 
 # BEGIN fitted transition correction (written by tools/fit_strip_transition.py; do not edit)
 #: tau/delta of the poles; the box of (ln(w/t), ln(w/h)) fitted; one row of
-#: coefficients (of 1, a, p, a^2, a p, p^2) per band between adjacent poles
+#: coefficients (of 1, a, p, a^2, a p, p^2, r, r a, r p) per band between adjacent
+#: poles
 CORRECTION_POLES: tuple[float, ...] = (
     0.250000,
     0.406813,
@@ -448,48 +449,111 @@ CORRECTION_POLES: tuple[float, ...] = (
 )
 CORRECTION_BOX: tuple[tuple[float, float], tuple[float, float]] = (
     (0.090597, 3.556333),
-    (-0.493527, 1.487220),
+    (-0.653926, 1.487220),
 )
 CORRECTION: tuple[tuple[float, ...], ...] = (
-    (-0.008441, 0.007549, 0.015881, -0.004405, -0.000669, -0.007550),
-    (0.038093, -0.060324, -0.069238, 0.028242, 0.024061, 0.032662),
-    (-0.067212, 0.170057, 0.119673, -0.069312, -0.073485, -0.059794),
-    (0.081825, -0.220273, -0.184653, 0.089326, 0.048604, 0.118112),
-    (-0.064625, 0.056925, 0.211443, -0.022414, -0.060462, -0.147966),
-    (0.148000, 0.322656, -0.304649, -0.150444, 0.114012, 0.116706),
-    (-0.085972, -0.699652, 0.282567, 0.297603, -0.051611, -0.130464),
-    (-0.053296, 1.274120, -0.137633, -0.497833, 0.051639, 0.075265),
-    (-0.679146, -0.386752, 1.245899, 0.259091, -0.260945, -0.504900),
+    (-0.002436, -0.005456, 0.019792, 0.000618, 0.005623, -0.023205, 0.000601, 0.000403, 0.004699),
+    (-0.017816, 0.025699, -0.082975, 0.000923, -0.023247, 0.155001, -0.029415, 0.005763, -0.020815),
+    (0.024370, 0.014328, 0.184000, -0.021700, 0.000325, -0.318736, 0.094884, -0.035215, 0.007168),
+    (0.106860, -0.140477, -0.374291, 0.050611, 0.062403, 0.336778, -0.112533, 0.075820, 0.051194),
+    (
+        -0.070756,
+        -0.054487,
+        0.442309,
+        0.021193,
+        -0.075927,
+        -0.469951,
+        0.165666,
+        -0.080202,
+        -0.061458,
+    ),
+    (0.167456, 0.462751, -0.875563, -0.192907, 0.303676, 0.523607, 0.031307, -0.037558, 0.095405),
+    (0.020728, -0.659785, 1.389358, 0.257485, -0.515557, -1.068028, -0.123871, 0.058622, -0.140580),
+    (0.854703, 0.291356, -1.176990, -0.249559, 0.700457, 0.588657, -0.580084, 0.404109, 0.195079),
+    (-2.199568, 1.020736, 1.086148, -0.050800, -0.752639, -0.053307, 1.016712, -0.805326, 0.225980),
 )
 CORRECTION_NOTE = (
-    "minimax over 51 eddy-current solves (40 inside the declared ranges): strip R within "
-    "1.5 % inside, 3.6 % outside, 0.05 <= tau/delta <= 40"
+    "minimax over 75 eddy-current solves (64 inside the declared ranges): strip R within "
+    "2.0 % inside, 6.5 % outside, 0.05 <= tau/delta <= 40"
 )
 # END fitted transition correction
 
 
-def correction_features(aspect: ArrayLike, proximity: ArrayLike) -> list[np.ndarray]:
+def correction_features(
+    aspect: ArrayLike, proximity: ArrayLike, balance: ArrayLike = 0.0
+) -> list[np.ndarray]:
     """The terms of the correction's coefficients: 1, a, p, a^2, a p, p^2 with
-    a = ln(w/t) and p = ln(w/h) held inside the fitted box (``CORRECTION_BOX``)."""
+    a = ln(w/t) and p = ln(w/h) held inside the fitted box (``CORRECTION_BOX``), and
+    r, r a, r p with r the nearer plane's distance over the farther's (0 for one plane;
+    1 for a centred stripline) where the fitted rows have them."""
     (a_lo, a_hi), (p_lo, p_hi) = CORRECTION_BOX
     a = np.clip(np.log(np.asarray(aspect, float)), a_lo, a_hi)
     p = np.clip(np.log(np.asarray(proximity, float)), p_lo, p_hi)
-    return [np.ones_like(a), a, p, a * a, a * p, p * p]
+    r = np.clip(np.asarray(balance, float), 0.0, 1.0)
+    return [np.ones_like(a), a, p, a * a, a * p, p * p, r * np.ones_like(a), r * a, r * p]
 
 
-def transition_correction(s: np.ndarray, aspect: ArrayLike, proximity: ArrayLike) -> np.ndarray:
+def transition_correction(
+    s: np.ndarray, aspect: ArrayLike, proximity: ArrayLike, balance: ArrayLike = 0.0
+) -> np.ndarray:
     """The fitted correction to ``strip_impedance``'s (Phi - 1)/s: a sum of band-pass terms
     c_k (1/(s + p_k) - 1/(s + p_(k+1))), with the poles p_k = 2 x_k^2 at fixed
     tau/delta = x_k (``CORRECTION_POLES``) and each c_k a quadratic in ln(w/t) and
-    ln(w/h) (``correction_features``). Each term is a causal rational function that
-    vanishes at DC and at high frequency, so the DC resistance and Wheeler's limit stay
-    exact and R and L_int stay a causal pair; 0 where nothing is fitted."""
+    ln(w/h), plus terms in the planes' balance (``correction_features``). Each term is a
+    causal rational function that vanishes at DC and at high frequency, so the DC
+    resistance and Wheeler's limit stay exact and R and L_int stay a causal pair; 0 where
+    nothing is fitted."""
     if not CORRECTION:
         return np.zeros(1)
-    feats = correction_features(aspect, proximity)
+    feats = correction_features(aspect, proximity, balance)
     poles = [2.0 * x * x for x in CORRECTION_POLES]
     out = 0.0
     for k, row in enumerate(CORRECTION):
+        ck = sum(b * v for b, v in zip(row, feats[: len(row)], strict=True))
+        out = out + ck * (1.0 / (s + poles[k]) - 1.0 / (s + poles[k + 1]))
+    return np.asarray(out)
+
+
+# BEGIN fitted pair correction (written by tools/fit_pair_correction.py; do not edit)
+PAIR_BOX: tuple[tuple[float, float], tuple[float, float], tuple[float, float]] = (
+    (0.0, 0.0),
+    (0.0, 0.0),
+    (0.0, 0.0),
+)
+PAIR_CORRECTION: tuple[tuple[float, ...], ...] = ()
+PAIR_NOTE = "none"
+# END fitted pair correction
+
+
+def pair_features(
+    aspect: ArrayLike, proximity: ArrayLike, spacing: ArrayLike, sign: float
+) -> list[np.ndarray]:
+    """The terms of the pair correction's coefficients: 1, a, p, g and each times the
+    mode's sign m (+1 even, -1 odd), with a = ln(w/t), p = ln(w/h), g = ln(s/w) held
+    inside the fitted box (``PAIR_BOX``)."""
+    (a_lo, a_hi), (p_lo, p_hi), (g_lo, g_hi) = PAIR_BOX
+    a = np.clip(np.log(np.asarray(aspect, float)), a_lo, a_hi)
+    p = np.clip(np.log(np.asarray(proximity, float)), p_lo, p_hi)
+    g = np.clip(np.log(np.asarray(spacing, float)), g_lo, g_hi)
+    one = np.ones_like(a + p + g)
+    base = [one, a * one, p * one, g * one]
+    return base + [sign * v for v in base]
+
+
+def pair_correction(
+    s: np.ndarray, aspect: ArrayLike, proximity: ArrayLike, spacing: ArrayLike, sign: float
+) -> np.ndarray:
+    """The correction of a pair's strip on top of the single line's
+    (``transition_correction``), in the same band-pass terms: the other strip moves the
+    current (the odd mode crowds it toward the gap), which the single line's fit does not
+    see; fitted to eddy-current solutions of coupled microstrips and striplines per mode
+    (tools/fit_pair_correction.py). 0 where nothing is fitted."""
+    if not PAIR_CORRECTION or not CORRECTION_POLES:
+        return np.zeros(1)
+    feats = pair_features(aspect, proximity, spacing, sign)
+    poles = [2.0 * x * x for x in CORRECTION_POLES]
+    out = 0.0
+    for k, row in enumerate(PAIR_CORRECTION):
         ck = sum(b * v for b, v in zip(row, feats, strict=True))
         out = out + ck * (1.0 / (s + poles[k]) - 1.0 / (s + poles[k + 1]))
     return np.asarray(out)
@@ -523,6 +587,8 @@ def strip_impedance(
     aspect: ArrayLike = 4.0,
     proximity: ArrayLike = 1.5,
     corrected: bool = True,
+    balance: ArrayLike = 0.0,
+    pair: tuple[ArrayLike, float] = (0.0, 0.0),
 ) -> tuple[np.ndarray, np.ndarray]:
     """Internal resistance and inductance per unit length (R, L_int) of a signal strip
     from DC through the skin-effect transition.
@@ -570,7 +636,9 @@ def strip_impedance(
     q = alpha * _coth_excess(alpha * alpha * s) - (1.0 - 1.0 / alpha) / (d + s)
     q = (1.0 - eps) * q
     if corrected:
-        q = q + transition_correction(s, aspect, proximity)
+        q = q + transition_correction(s, aspect, proximity, balance)
+        if pair[1] != 0.0:
+            q = q + pair_correction(s, aspect, proximity, pair[0], pair[1])
     q = np.asarray(roughness) * q
     r_dc = np.where(live, gf, 0.0) / (conductor.sigma * tau)
     # Z = r_dc (1 + s q), s = j w a

@@ -113,16 +113,27 @@ def strip_and_planes(
     metal: Metal,
     aspect: np.ndarray,
     proximity: np.ndarray,
+    balance: np.ndarray | float = 0.0,
 ) -> list[ConductorGroup]:
     """Wheeler's conductor groups of one mode: the strip(s), then each return plane.
 
     The strips' depth is G * ``area`` (their exact DC resistance), with their
-    width/thickness ``aspect`` and width over the distance to the nearer plane
-    (``proximity``); a plane's depth is ``metal.plane_thickness`` with the planes' foil,
+    width/thickness ``aspect``, width over the distance to the nearer plane
+    (``proximity``) and the nearer plane's distance over the farther's (``balance``, 0
+    for one plane); a plane's depth is ``metal.plane_thickness`` with the planes' foil,
     marked wide.
     """
     groups = modal_strip_and_planes(
-        lambda p: {"mode": z_air(p)}, p0, strip, planes, scale, area, metal, aspect, proximity
+        lambda p: {"mode": z_air(p)},
+        p0,
+        strip,
+        planes,
+        scale,
+        area,
+        metal,
+        aspect,
+        proximity,
+        balance=balance,
     )
     return groups["mode"]
 
@@ -138,9 +149,13 @@ def modal_strip_and_planes(
     aspect: np.ndarray,
     proximity: np.ndarray,
     at_p0: Mapping[str, np.ndarray] | None = None,
+    balance: np.ndarray | float = 0.0,
+    spacing: np.ndarray | float = 0.0,
 ) -> dict[str, list[ConductorGroup]]:
     """``strip_and_planes`` of every mode at once: ``z_air(params)`` returns {mode: Z_air},
-    so each receded geometry is evaluated once for all modes (a pair's even and odd).
+    so each receded geometry is evaluated once for all modes (a pair's even and odd,
+    whose strips carry the pair's ``spacing`` s/w and the mode's sign for their
+    transition's pair correction).
     With ``at_p0`` (the values at ``p0``) the difference is one-sided, step 1e-4 of
     ``scale``: one evaluation per wall instead of two (its error, of the order of the
     step, is far below the rule's own)."""
@@ -158,7 +173,16 @@ def modal_strip_and_planes(
     out = {
         m: [
             ConductorGroup(
-                name, g, g * area, metal.conductor, metal.foil, aspect=aspect, proximity=proximity
+                name,
+                g,
+                g * area,
+                metal.conductor,
+                metal.foil,
+                aspect=aspect,
+                proximity=proximity,
+                balance=balance,
+                spacing=spacing,
+                mode_sign={"even": 1.0, "odd": -1.0}.get(m, 0.0),
             )
         ]
         for m, g in g_strip.items()

@@ -296,6 +296,7 @@ class Stripline(CrossSection):
             self.metal,
             w / t,
             w / np.minimum(lo, hi),
+            np.minimum(lo, hi) / np.maximum(lo, hi),
         )
 
     @classmethod

@@ -903,6 +903,8 @@ class StriplinePair(CrossSection):
             w / t,
             w / np.minimum(lo, hi),
             at_p0=z_air((w, s, lo, hi, t)),
+            balance=np.minimum(lo, hi) / np.maximum(lo, hi),
+            spacing=s / w,
         )
 
     @classmethod
