@@ -502,7 +502,7 @@ def transition_correction(
     ln(w/h), plus terms in the planes' balance (``correction_features``). Each term is a
     causal rational function that vanishes at DC and at high frequency, so the DC
     resistance and Wheeler's limit stay exact and R and L_int stay a causal pair; 0 where
-    nothing is fitted."""
+    nothing is fitted. Beyond the fitted w/h it fades as h/w."""
     if not CORRECTION:
         return np.zeros(1)
     feats = correction_features(aspect, proximity, balance)
@@ -511,52 +511,10 @@ def transition_correction(
     for k, row in enumerate(CORRECTION):
         ck = sum(b * v for b, v in zip(row, feats[: len(row)], strict=True))
         out = out + ck * (1.0 / (s + poles[k]) - 1.0 / (s + poles[k + 1]))
-    return np.asarray(out)
-
-
-# BEGIN fitted pair correction (written by tools/fit_pair_correction.py; do not edit)
-PAIR_BOX: tuple[tuple[float, float], tuple[float, float], tuple[float, float]] = (
-    (0.0, 0.0),
-    (0.0, 0.0),
-    (0.0, 0.0),
-)
-PAIR_CORRECTION: tuple[tuple[float, ...], ...] = ()
-PAIR_NOTE = "none"
-# END fitted pair correction
-
-
-def pair_features(
-    aspect: ArrayLike, proximity: ArrayLike, spacing: ArrayLike, sign: float
-) -> list[np.ndarray]:
-    """The terms of the pair correction's coefficients: 1, a, p, g and each times the
-    mode's sign m (+1 even, -1 odd), with a = ln(w/t), p = ln(w/h), g = ln(s/w) held
-    inside the fitted box (``PAIR_BOX``)."""
-    (a_lo, a_hi), (p_lo, p_hi), (g_lo, g_hi) = PAIR_BOX
-    a = np.clip(np.log(np.asarray(aspect, float)), a_lo, a_hi)
-    p = np.clip(np.log(np.asarray(proximity, float)), p_lo, p_hi)
-    g = np.clip(np.log(np.asarray(spacing, float)), g_lo, g_hi)
-    one = np.ones_like(a + p + g)
-    base = [one, a * one, p * one, g * one]
-    return base + [sign * v for v in base]
-
-
-def pair_correction(
-    s: np.ndarray, aspect: ArrayLike, proximity: ArrayLike, spacing: ArrayLike, sign: float
-) -> np.ndarray:
-    """The correction of a pair's strip on top of the single line's
-    (``transition_correction``), in the same band-pass terms: the other strip moves the
-    current (the odd mode crowds it toward the gap), which the single line's fit does not
-    see; fitted to eddy-current solutions of coupled microstrips and striplines per mode
-    (tools/fit_pair_correction.py). 0 where nothing is fitted."""
-    if not PAIR_CORRECTION or not CORRECTION_POLES:
-        return np.zeros(1)
-    feats = pair_features(aspect, proximity, spacing, sign)
-    poles = [2.0 * x * x for x in CORRECTION_POLES]
-    out = 0.0
-    for k, row in enumerate(PAIR_CORRECTION):
-        ck = sum(b * v for b, v in zip(row, feats, strict=True))
-        out = out + ck * (1.0 / (s + poles[k]) - 1.0 / (s + poles[k + 1]))
-    return np.asarray(out)
+    # beyond the box's widest strips it fades as h/w: the edges' share of the current,
+    # where the strip's transition departs from the slab's, falls so (parallel plates)
+    widest = np.exp(CORRECTION_BOX[1][1])
+    return np.asarray(out) * np.minimum(1.0, widest / np.asarray(proximity, float))
 
 
 def transition_shape(
@@ -588,7 +546,6 @@ def strip_impedance(
     proximity: ArrayLike = 1.5,
     corrected: bool = True,
     balance: ArrayLike = 0.0,
-    pair: tuple[ArrayLike, float] = (0.0, 0.0),
 ) -> tuple[np.ndarray, np.ndarray]:
     """Internal resistance and inductance per unit length (R, L_int) of a signal strip
     from DC through the skin-effect transition.
@@ -637,8 +594,6 @@ def strip_impedance(
     q = (1.0 - eps) * q
     if corrected:
         q = q + transition_correction(s, aspect, proximity, balance)
-        if pair[1] != 0.0:
-            q = q + pair_correction(s, aspect, proximity, pair[0], pair[1])
     q = np.asarray(roughness) * q
     r_dc = np.where(live, gf, 0.0) / (conductor.sigma * tau)
     # Z = r_dc (1 + s q), s = j w a

@@ -150,12 +150,9 @@ def modal_strip_and_planes(
     proximity: np.ndarray,
     at_p0: Mapping[str, np.ndarray] | None = None,
     balance: np.ndarray | float = 0.0,
-    spacing: np.ndarray | float = 0.0,
 ) -> dict[str, list[ConductorGroup]]:
     """``strip_and_planes`` of every mode at once: ``z_air(params)`` returns {mode: Z_air},
-    so each receded geometry is evaluated once for all modes (a pair's even and odd,
-    whose strips carry the pair's ``spacing`` s/w and the mode's sign for their
-    transition's pair correction).
+    so each receded geometry is evaluated once for all modes (a pair's even and odd).
     With ``at_p0`` (the values at ``p0``) the difference is one-sided, step 1e-4 of
     ``scale``: one evaluation per wall instead of two (its error, of the order of the
     step, is far below the rule's own)."""
@@ -181,8 +178,6 @@ def modal_strip_and_planes(
                 aspect=aspect,
                 proximity=proximity,
                 balance=balance,
-                spacing=spacing,
-                mode_sign={"even": 1.0, "odd": -1.0}.get(m, 0.0),
             )
         ]
         for m, g in g_strip.items()

@@ -1123,7 +1123,6 @@ class MicrostripPair(CrossSection):
             w / t,
             w / h,
             at_p0=z_air((w, s, h, t)),
-            spacing=s / w,
         )
 
     @classmethod

@@ -121,10 +121,6 @@ class ConductorGroup:
     proximity: float | np.ndarray = 1.5
     #: the nearer plane's distance over the farther's (0: one plane)
     balance: float | np.ndarray = 0.0
-    #: a strip of a pair: its spacing over width, and the mode's sign (+1 even, -1 odd;
-    #: 0 a single line), for the transition's pair correction
-    spacing: float | np.ndarray = 0.0
-    mode_sign: float = 0.0
     #: a return group of one mode of a symmetric pair: (h, d, sign) of the two line
     #: currents its return sees (``materials.conductor.pair_return_shape``)
     pair: tuple | None = None
@@ -236,7 +232,6 @@ def group_impedances(
                 grp.proximity,
                 grp.corrected,
                 grp.balance,
-                (grp.spacing, grp.mode_sign),
             )
     if returns:
         cond = groups[returns[0]].conductor

@@ -904,7 +904,6 @@ class StriplinePair(CrossSection):
             w / np.minimum(lo, hi),
             at_p0=z_air((w, s, lo, hi, t)),
             balance=np.minimum(lo, hi) / np.maximum(lo, hi),
-            spacing=s / w,
         )
 
     @classmethod

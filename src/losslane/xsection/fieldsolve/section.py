@@ -212,8 +212,18 @@ class FieldSection(CrossSection):
             k = grp.index
             gkk = float(grp.matrix[k, k])
             rough = m.foil.factor(f, m.conductor)
-            aspect, proximity = _strip_ratios(self.geometry, signals[k])
-            rk, lk = strip_impedance(f, m.conductor, gkk, gkk * grp.area, rough, aspect, proximity)
+            aspect, proximity, balance, over_planes = _strip_ratios(self.geometry, signals[k])
+            rk, lk = strip_impedance(
+                f,
+                m.conductor,
+                gkk,
+                gkk * grp.area,
+                rough,
+                aspect,
+                proximity,
+                over_planes,
+                balance,
+            )
             r_dc = 1.0 / (m.conductor.sigma * grp.area)
             shape = grp.matrix / gkk
             r += (rk - r_dc)[:, None, None] * shape
@@ -381,20 +391,26 @@ def complex_capacitance(sol: Solution, eps: np.ndarray) -> np.ndarray:
     return p - np.einsum("fki,fkj->fij", q, np.linalg.solve(r, q))
 
 
-def _strip_ratios(geom: Geometry, tr) -> tuple[float, float]:
-    """(width/thickness, width over the distance to the nearest return) of a signal trace:
-    the shape of its DC-to-skin transition (``materials.conductor.strip_impedance``)."""
+def _strip_ratios(geom: Geometry, tr) -> tuple[float, float, float, bool]:
+    """(width/thickness, width over the distance to the nearest return, the nearer
+    plane's distance over the farther's, whether the returns are planes only) of a signal
+    trace: the shape of its DC-to-skin transition (``materials.conductor.strip_impedance``;
+    its fitted correction is for strips over planes, as in the closed forms)."""
     width = tr.x_right - tr.x_left
-    gaps = []
+    planes = []
     if geom.plane_below:
-        gaps.append(tr.y)
+        planes.append(tr.y)
     if geom.plane_above:
-        gaps.append(geom.stack_top - tr.top)
-    for other in geom.traces:
-        if not other.signal:
-            gaps.append(max(other.x_left - tr.x_right, tr.x_left - other.x_right))
-    gaps = [g for g in gaps if g > 0]
-    return width / tr.thickness, width / min(gaps) if gaps else 1.0
+        planes.append(geom.stack_top - tr.top)
+    grounds = [
+        max(other.x_left - tr.x_right, tr.x_left - other.x_right)
+        for other in geom.traces
+        if not other.signal
+    ]
+    gaps = [g for g in planes + grounds if g > 0]
+    balance = min(planes) / max(planes) if len(planes) == 2 and min(planes) > 0 else 0.0
+    over_planes = bool(planes) and not grounds
+    return width / tr.thickness, width / min(gaps) if gaps else 1.0, balance, over_planes
 
 
 def _return_matrices(f: np.ndarray, m: Metal, returns: list) -> tuple[np.ndarray, np.ndarray]:
