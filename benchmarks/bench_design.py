@@ -12,14 +12,12 @@ few runs after a warm-up; target None where there is no goal). Standalone:
 
 from __future__ import annotations
 
-import statistics
 import sys
-import time
 import warnings
-from pathlib import Path
 
-if __package__ in (None, ""):
-    sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "src"))
+from benchkit import median_time, use_source_tree
+
+use_source_tree()
 
 MIL = 25.4e-6
 MATERIALS = [
@@ -35,12 +33,7 @@ FOILS = ["standard-ed", "very-low-profile", "hyper-low-profile"]
 
 def _median(fn, repeat: int = 3) -> float:
     fn()  # warm-up: imports, caches
-    times = []
-    for _ in range(repeat):
-        t = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t)
-    return statistics.median(times)
+    return median_time(fn, repeat)
 
 
 def run() -> list[tuple[str, float, float | None, str]]:

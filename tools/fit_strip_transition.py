@@ -12,7 +12,8 @@ and this tool fits alpha and d as piecewise-linear functions of ln(w/t) (knots b
 eps = (e0 + e1 ln(w/t) + e2 ln(w/h)) / (1 + (w/(8 h))^2) by least squares on
 R_strip(model) / R_strip(eddy) - 1 over 0.1 <= tau/delta <= 25; then the correction
 added to (Phi - 1)/s (``materials.conductor.transition_correction``: band-pass terms
-between fixed poles, coefficients quadratic in ln(w/t) and ln(w/h)) by a minimax linear
+between fixed poles, coefficients quadratic in ln(w/t) and ln(w/h) plus terms in the
+planes' balance) by a minimax linear
 program over the typical grid and the thick-copper corner (``corner_set``), and prints
 the worst deviations per geometry and the whole line's R and L against the eddy
 solution.
@@ -167,6 +168,7 @@ def strip_data(cases: list, solved: dict) -> list:
                 "aspect": float(g.aspect),
                 "proximity": float(g.proximity),
                 "balance": float(g.balance),
+                "inside": declared(label),
                 "x_l": tau / delta[hf],
                 "band": f[hf] <= 1e7,
                 "l_rest": rl.l[:, 0, 0] - l_strip,
@@ -264,6 +266,16 @@ def fit(rows: list) -> np.ndarray:
     return least_squares(resid, q0, bounds=(lo, hi)).x
 
 
+def strip_design(r: dict) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Over 0.05 <= tau/delta <= 40 of one geometry: the eddy strip R / R_dc, the fitted
+    shape's, and the correction's real basis columns (its contribution to R / R_dc)."""
+    sel = (r["x"] > 0.05) & (r["x"] < 40)
+    x = r["x"][sel]
+    a, d, e = cond.transition_shape(r["aspect"], r["proximity"])
+    terms = 2j * x[:, None] ** 2 * correction_terms(x, r["aspect"], r["proximity"], r["balance"])
+    return r["y"][sel], model_ratio(x, a, d, e), terms.real
+
+
 def fit_correction(rows: list) -> np.ndarray:
     """The correction's coefficients, (poles - 1) x features: a minimax fit (linear
     program) of the strip's R / R_eddy - 1 (0.05 <= tau/delta <= 40), the geometries
@@ -274,14 +286,11 @@ def fit_correction(rows: list) -> np.ndarray:
 
     r_rows, r_y, l_rows, l_y, l_bound = [], [], [], [], []
     for r in rows:
-        w = 1.0 if declared(r["label"]) else WEIGHT_OUTSIDE
-        sel = (r["x"] > 0.05) & (r["x"] < 40)
-        x = r["x"][sel]
+        w = 1.0 if r["inside"] else WEIGHT_OUTSIDE
+        y, base, terms = strip_design(r)
+        r_rows.append(w * terms / y[:, None])
+        r_y.append(w * (1 - base / y))
         a, d, e = cond.transition_shape(r["aspect"], r["proximity"])
-        s = 2j * x[:, None] ** 2
-        terms = (s * correction_terms(x, r["aspect"], r["proximity"], r["balance"])).real
-        r_rows.append(w * terms / r["y"][sel][:, None])
-        r_y.append(w * (1 - model_ratio(x, a, d, e) / r["y"][sel]))
         lx = r["x_l"]
         l_model = r["l_rest"] + model_inductance(lx, a, d, e) * r["l_scale"]
         terms = correction_terms(lx, r["aspect"], r["proximity"], r["balance"]).real * r["l_scale"]
@@ -426,7 +435,7 @@ def main() -> None:
     c = fit_correction(rows)
     cond.CORRECTION = tuple(tuple(row) for row in c)
     after = strip_errors(rows, c)
-    inside = np.array([declared(r["label"]) for r in rows])
+    inside = np.array([r["inside"] for r in rows])
     for r, e0, e1, ok in zip(rows, worst, after, inside, strict=True):
         print(
             f"{r['label']}{'' if ok else ' (outside the declared ranges)'}: w/t "
@@ -451,18 +460,10 @@ def strip_errors(rows: list, c: np.ndarray | None) -> np.ndarray:
     the correction ``c`` (None: the fitted shape alone)."""
     out = []
     for r in rows:
-        sel = (r["x"] > 0.05) & (r["x"] < 40)
-        x = r["x"][sel]
-        a, d, e = cond.transition_shape(r["aspect"], r["proximity"])
-        ratio = model_ratio(x, a, d, e)
+        y, ratio, terms = strip_design(r)
         if c is not None:
-            terms = (
-                2j
-                * x[:, None] ** 2
-                * correction_terms(x, r["aspect"], r["proximity"], r["balance"])
-            )
-            ratio = ratio + terms.real @ c.ravel()
-        out.append(np.abs(ratio / r["y"][sel] - 1).max())
+            ratio = ratio + terms @ c.ravel()
+        out.append(np.abs(ratio / y - 1).max())
     return np.array(out)
 
 

@@ -485,7 +485,7 @@ def correction_features(
     """The terms of the correction's coefficients: 1, a, p, a^2, a p, p^2 with
     a = ln(w/t) and p = ln(w/h) held inside the fitted box (``CORRECTION_BOX``), and
     r, r a, r p with r the nearer plane's distance over the farther's (0 for one plane;
-    1 for a centred stripline) where the fitted rows have them."""
+    1 for a centred stripline)."""
     (a_lo, a_hi), (p_lo, p_hi) = CORRECTION_BOX
     a = np.clip(np.log(np.asarray(aspect, float)), a_lo, a_hi)
     p = np.clip(np.log(np.asarray(proximity, float)), p_lo, p_hi)
@@ -509,7 +509,7 @@ def transition_correction(
     poles = [2.0 * x * x for x in CORRECTION_POLES]
     out = 0.0
     for k, row in enumerate(CORRECTION):
-        ck = sum(b * v for b, v in zip(row, feats[: len(row)], strict=True))
+        ck = sum(b * v for b, v in zip(row, feats, strict=True))
         out = out + ck * (1.0 / (s + poles[k]) - 1.0 / (s + poles[k + 1]))
     # beyond the box's widest strips it fades as h/w: the edges' share of the current,
     # where the strip's transition departs from the slab's, falls so (parallel plates)
@@ -570,10 +570,12 @@ def strip_impedance(
     with ``roughness`` K(f) scaling the part above the DC resistance, as for every
     conductor (DC exact whatever the foil), and C(s) the fitted correction
     (``transition_correction``; ``corrected=False`` leaves it out, for strips that are not
-    over planes): the slab-plus-relaxation family cannot follow the eddy-current R of a
-    wide thin strip (whose R/R_dc climbs slowly for a decade before the skin effect), and
-    the correction takes the strip's R from 4.5 % to 1.5 % of the eddy-current solution
-    over the fitting geometries inside the declared ranges. Where G = 0 the result is 0.
+    over planes; ``balance`` the nearer plane's distance over the farther's): the
+    slab-plus-relaxation family cannot follow the eddy-current R of a wide thin strip
+    (whose R/R_dc climbs slowly for a decade before the skin effect) nor of copper about as
+    thick as wide between close planes, and with the correction the strip's R is within
+    2 % of the eddy-current solution over the fitting geometries inside the declared ranges
+    (``CORRECTION_NOTE``). Where G = 0 the result is 0.
     """
     f = np.asarray(f, dtype=float)
     gf = np.asarray(geometry_factor, dtype=float)

@@ -392,8 +392,9 @@ class CrossSection:
             }
         out["conductor"] = (
             "strip: exact DC resistance, DC-to-skin transition fitted to the eddy-current "
-            "solver (over planes with a fitted correction in w/t and w/h), Wheeler's rule at "
-            "high frequency; returns: closed-form slab under a line current"
+            "solver (over planes with a fitted correction), Wheeler's rule at high "
+            "frequency; returns: closed-form slab under a line current, a stripline's two "
+            "planes coupled while their current spreads"
         )
         return out
 
